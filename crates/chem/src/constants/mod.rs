@@ -1,0 +1,276 @@
+//! Equilibrium constants, one module per published paper, and their assembly at a sample's
+//! in-situ temperature, salinity and pressure on the total pH scale.
+
+pub mod dickson1990;
+pub mod dickson_riley1979;
+pub mod lueker2000;
+pub mod millero1995;
+pub mod millero2006;
+pub mod millero2010;
+pub mod mucci1983;
+pub mod perez_fraga1987;
+pub mod pressure;
+pub mod totals;
+pub mod waters2014;
+pub mod weiss1974;
+
+use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
+use crate::error::{check_range, ChemError};
+use crate::validity::Validity;
+use crate::Conditions;
+use pressure::PressureTerms;
+
+/// Temperature and salinity terms shared by many constants, each evaluated once per sample.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SampleTerms {
+    /// Temperature [°C].
+    pub celsius: f64,
+    /// Temperature [K].
+    pub kelvin: f64,
+    /// 1 / T [K-1].
+    pub inv_kelvin: f64,
+    /// ln(T / K).
+    pub ln_kelvin: f64,
+    /// Practical salinity.
+    pub salinity: f64,
+    /// √S.
+    pub sqrt_salinity: f64,
+    /// Ionic strength [mol kg-1 H2O].
+    pub ionic_strength: f64,
+    /// √I.
+    pub sqrt_ionic_strength: f64,
+    /// ln(1 - 0.001005 S): converts mol kg-1 of water to mol kg-1 of seawater.
+    pub ln_water_fraction: f64,
+}
+
+impl SampleTerms {
+    /// Terms at in-situ temperature [°C] and practical salinity.
+    pub fn new(temperature_c: f64, salinity: f64) -> Self {
+        let kelvin = temperature_c + 273.15;
+        let ionic_strength = ionic_strength(salinity);
+        Self {
+            celsius: temperature_c,
+            kelvin,
+            inv_kelvin: 1.0 / kelvin,
+            ln_kelvin: kelvin.ln(),
+            salinity,
+            sqrt_salinity: salinity.sqrt(),
+            ionic_strength,
+            sqrt_ionic_strength: ionic_strength.sqrt(),
+            ln_water_fraction: (1.0 - 0.001005 * salinity).ln(),
+        }
+    }
+
+    /// log10(T / K), from the stored ln T.
+    pub fn log10_kelvin(&self) -> f64 {
+        self.ln_kelvin * std::f64::consts::LOG10_E
+    }
+}
+
+/// Ionic strength of seawater [mol kg-1 H2O]: I = 19.924 S / (1000 - 1.005 S), Dickson 1990.
+pub fn ionic_strength(salinity: f64) -> f64 {
+    19.924 * salinity / (1000.0 - 1.005 * salinity)
+}
+
+/// All constants at the sample's in-situ T, S and P. Acid constants are on the total scale
+/// (mol kg-1 of seawater) except where named free; totals are mol kg-1.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct EquilibriumConstants {
+    /// CO2 solubility K0 [mol kg-1 atm-1] at in-situ temperature and 1 atm (not pressure-corrected).
+    pub k0: f64,
+    /// fCO2 / pCO2 at in-situ temperature and 1 atm total pressure.
+    pub fugacity_factor: f64,
+    /// K1 of carbonic acid (total scale).
+    pub k1: f64,
+    /// K2 of carbonic acid (total scale).
+    pub k2: f64,
+    /// KB of boric acid (total scale).
+    pub kb: f64,
+    /// KW of water (total scale, mol² kg-2).
+    pub kw: f64,
+    /// KS of bisulfate (free scale).
+    pub ks_free: f64,
+    /// KF of hydrogen fluoride (total scale).
+    pub kf: f64,
+    /// KF of hydrogen fluoride (free scale).
+    pub kf_free: f64,
+    /// K1P of phosphoric acid (total scale).
+    pub k1p: f64,
+    /// K2P of phosphoric acid (total scale).
+    pub k2p: f64,
+    /// K3P of phosphoric acid (total scale).
+    pub k3p: f64,
+    /// KSi of silicic acid (total scale).
+    pub ksi: f64,
+    /// Ksp* of calcite [mol² kg-2].
+    pub ksp_calcite: f64,
+    /// Ksp* of aragonite [mol² kg-2].
+    pub ksp_aragonite: f64,
+    /// Total boron [mol kg-1].
+    pub total_boron: f64,
+    /// Total sulfate [mol kg-1].
+    pub total_sulfate: f64,
+    /// Total fluoride [mol kg-1].
+    pub total_fluoride: f64,
+    /// Calcium [mol kg-1].
+    pub calcium: f64,
+    /// [H+]total / [H+]free = 1 + ST/KS.
+    pub free_to_total: f64,
+    /// [H+]total / [H+]seawater = (1 + ST/KS) / (1 + ST/KS + FT/KF).
+    pub seawater_to_total: f64,
+    /// Validity ranges the sample falls outside.
+    pub validity: Validity,
+}
+
+/// Rejects conditions that are not numbers or not seawater at all (validity ranges are separate).
+pub(crate) fn validate_conditions(conditions: &Conditions) -> Result<(), ChemError> {
+    check_range(
+        "temperature_c",
+        conditions.temperature_c,
+        -10.0,
+        60.0,
+        "in-situ temperature between -10 and 60 °C",
+    )?;
+    check_range(
+        "salinity",
+        conditions.salinity,
+        f64::MIN_POSITIVE,
+        60.0,
+        "practical salinity above 0 and at most 60",
+    )?;
+    check_range(
+        "pressure_dbar",
+        conditions.pressure_dbar,
+        0.0,
+        12_000.0,
+        "sea pressure between 0 (surface) and 12000 dbar",
+    )?;
+    check_range(
+        "phosphate",
+        conditions.phosphate,
+        0.0,
+        1_000.0,
+        "phosphate between 0 and 1000 µmol kg-1",
+    )?;
+    check_range(
+        "silicate",
+        conditions.silicate,
+        0.0,
+        5_000.0,
+        "silicate between 0 and 5000 µmol kg-1",
+    )?;
+    Ok(())
+}
+
+/// All equilibrium constants at the sample's in-situ T, S, P on the total scale (KS and KF also
+/// free), with the totals from salinity. KS and KF are pressure-corrected on the free scale first;
+/// the other acid constants are pressure-corrected on the seawater scale (as Millero 1995 fitted
+/// them) and then converted to the total scale with the in-situ KS and KF.
+///
+/// ```
+/// use acidscape_chem::{equilibrium_constants, Conditions, ConstantChoice};
+/// let surface = Conditions { temperature_c: 25.0, salinity: 35.0, pressure_dbar: 0.0, phosphate: 0.0, silicate: 0.0 };
+/// let k = equilibrium_constants(&surface, &ConstantChoice::default()).unwrap();
+/// // log10 K1 = -5.8472 (Lueker et al. 2000 via Dickson et al. 2007; check value from memory)
+/// assert!((k.k1.log10() + 5.8472).abs() < 5e-5);
+/// ```
+pub fn equilibrium_constants(
+    conditions: &Conditions,
+    choice: &ConstantChoice,
+) -> Result<EquilibriumConstants, ChemError> {
+    validate_conditions(conditions)?;
+    Ok(constants_unchecked(conditions, choice))
+}
+
+/// As [`equilibrium_constants`], for conditions already validated.
+pub(crate) fn constants_unchecked(conditions: &Conditions, choice: &ConstantChoice) -> EquilibriumConstants {
+    let terms = SampleTerms::new(conditions.temperature_c, conditions.salinity);
+    let pressure_bar = conditions.pressure_dbar * 0.1;
+    let pt = PressureTerms::new(conditions.temperature_c, pressure_bar);
+    let salinity = conditions.salinity;
+
+    let total_boron = totals::boron(salinity, choice.boron);
+    let total_sulfate = totals::sulfate(salinity);
+    let total_fluoride = totals::fluoride(salinity);
+    let calcium = totals::calcium(salinity);
+
+    // Free-scale KS and KF at the surface, then at in-situ pressure.
+    let ln_ks_surface = dickson1990::ln_ks(&terms);
+    let ks_surface = ln_ks_surface.exp();
+    let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
+    let ln_kf_free_surface = match choice.fluoride {
+        FluorideSet::PerezFraga1987 => perez_fraga1987::ln_kf(&terms) - free_to_total_surface.ln(),
+        FluorideSet::DicksonRiley1979 => dickson_riley1979::ln_kf_free(&terms),
+    };
+    let kf_free_surface = ln_kf_free_surface.exp();
+    let ks_free = (ln_ks_surface + pt.ln_factor(&pressure::KS)).exp();
+    let kf_free = (ln_kf_free_surface + pt.ln_factor(&pressure::KF)).exp();
+
+    let free_to_total = 1.0 + total_sulfate / ks_free;
+    let free_to_seawater = free_to_total + total_fluoride / kf_free;
+    let seawater_to_total = free_to_total / free_to_seawater;
+    let free_to_seawater_surface = free_to_total_surface + total_fluoride / kf_free_surface;
+
+    // ln of the factors taking a constant to the total scale at in-situ pressure.
+    let ln_seawater_to_total = seawater_to_total.ln();
+    let ln_total_surface_to_total = ln_seawater_to_total + (free_to_seawater_surface / free_to_total_surface).ln();
+
+    let in_situ_total = |ln_k_surface_total: f64, coefficients: &pressure::PressureCoefficients| {
+        (ln_k_surface_total + pt.ln_factor(coefficients) + ln_total_surface_to_total).exp()
+    };
+    let ln10 = std::f64::consts::LN_10;
+    let (ln_k1, ln_k2, ln_to_total) = match choice.carbonic {
+        CarbonicSet::Lueker2000 => (
+            -lueker2000::pk1(&terms) * ln10,
+            -lueker2000::pk2(&terms) * ln10,
+            ln_total_surface_to_total,
+        ),
+        CarbonicSet::Millero2010 => (
+            -millero2010::pk1(&terms) * ln10,
+            -millero2010::pk2(&terms) * ln10,
+            ln_seawater_to_total,
+        ),
+        CarbonicSet::WatersMilleroWoosley2014 => (
+            -waters2014::pk1(&terms) * ln10,
+            -waters2014::pk2(&terms) * ln10,
+            ln_seawater_to_total,
+        ),
+    };
+    let k1 = (ln_k1 + pt.ln_factor(&pressure::K1) + ln_to_total).exp();
+    let k2 = (ln_k2 + pt.ln_factor(&pressure::K2) + ln_to_total).exp();
+
+    let ksp_calcite =
+        (mucci1983::log10_ksp_calcite(&terms) * ln10 + pt.ln_factor(&pressure::CALCITE)).exp();
+    let ksp_aragonite =
+        (mucci1983::log10_ksp_aragonite(&terms) * ln10 + pt.ln_factor(&pressure::ARAGONITE)).exp();
+
+    EquilibriumConstants {
+        k0: weiss1974::ln_k0(&terms).exp(),
+        fugacity_factor: weiss1974::fugacity_factor(terms.kelvin),
+        k1,
+        k2,
+        kb: in_situ_total(dickson1990::ln_kb(&terms), &pressure::KB),
+        kw: in_situ_total(millero1995::ln_kw(&terms), &pressure::KW),
+        ks_free,
+        kf: kf_free * free_to_total,
+        kf_free,
+        k1p: in_situ_total(millero1995::ln_k1p(&terms), &pressure::K1P),
+        k2p: in_situ_total(millero1995::ln_k2p(&terms), &pressure::K2P),
+        k3p: in_situ_total(millero1995::ln_k3p(&terms), &pressure::K3P),
+        ksi: in_situ_total(millero1995::ln_ksi(&terms), &pressure::KSI),
+        ksp_calcite,
+        ksp_aragonite,
+        total_boron,
+        total_sulfate,
+        total_fluoride,
+        calcium,
+        free_to_total,
+        seawater_to_total,
+        validity: Validity::assess(
+            conditions.temperature_c,
+            salinity,
+            conditions.pressure_dbar,
+            choice,
+        ),
+    }
+}

@@ -1,0 +1,56 @@
+//! Errors are values: bad input and samples with no physical solution.
+
+use std::fmt;
+
+/// Why a sample could not be solved. Messages name the field and what was expected.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ChemError {
+    /// An input value is not a number, infinite, negative, or outside any plausible seawater range.
+    InvalidInput {
+        /// Which input field (e.g. "salinity", "dic").
+        field: &'static str,
+        /// The value given.
+        value: f64,
+        /// What was expected, with units.
+        expected: &'static str,
+    },
+    /// The inputs are numbers but no seawater state satisfies them together.
+    NoSolution {
+        /// Why, in words a user can act on.
+        reason: String,
+    },
+}
+
+impl fmt::Display for ChemError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            ChemError::InvalidInput {
+                field,
+                value,
+                expected,
+            } => write!(f, "invalid {field} = {value}: expected {expected}"),
+            ChemError::NoSolution { reason } => write!(f, "no carbonate-system solution: {reason}"),
+        }
+    }
+}
+
+impl std::error::Error for ChemError {}
+
+/// Rejects NaN, infinities and values outside `[min, max]`.
+pub(crate) fn check_range(
+    field: &'static str,
+    value: f64,
+    min: f64,
+    max: f64,
+    expected: &'static str,
+) -> Result<f64, ChemError> {
+    if value.is_finite() && value >= min && value <= max {
+        Ok(value)
+    } else {
+        Err(ChemError::InvalidInput {
+            field,
+            value,
+            expected,
+        })
+    }
+}

@@ -1,0 +1,106 @@
+//! Seawater carbonate-system chemistry from published constants: equilibrium constants at in-situ
+//! temperature, salinity and pressure, the alkalinity-pH equation and its solution from any of five
+//! input pairs, speciation, saturation states and the Revelle factor. Pure computation, no I/O.
+//!
+//! Units at the interface: concentrations µmol kg-1, in-situ temperature °C, practical salinity,
+//! sea pressure dbar (0 at the surface), pH on the total scale, pCO2 and fCO2 in µatm.
+
+mod choice;
+pub mod constants;
+mod error;
+mod solver;
+mod speciation;
+mod validity;
+
+pub use choice::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet, UnknownKey, FIXED_SOURCES};
+pub use constants::{equilibrium_constants, EquilibriumConstants};
+pub use error::ChemError;
+pub use speciation::solve;
+pub use validity::Validity;
+
+/// One sample's physical state. Concentrations µmol kg-1; in-situ temperature °C; practical
+/// salinity; sea pressure dbar (0 at surface).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Conditions {
+    /// In-situ temperature [°C].
+    pub temperature_c: f64,
+    /// Practical salinity [-].
+    pub salinity: f64,
+    /// Sea (gauge) pressure [dbar], 0 at the surface.
+    pub pressure_dbar: f64,
+    /// Total phosphate [µmol kg-1].
+    pub phosphate: f64,
+    /// Total silicate [µmol kg-1].
+    pub silicate: f64,
+}
+
+/// The two measured or modelled carbonate quantities that fix the system. µmol kg-1, pH total
+/// scale, µatm.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum InputPair {
+    /// Total alkalinity and dissolved inorganic carbon [µmol kg-1].
+    AlkalinityDic { alkalinity: f64, dic: f64 },
+    /// Total alkalinity [µmol kg-1] and pH (total scale).
+    AlkalinityPh { alkalinity: f64, ph_total: f64 },
+    /// Dissolved inorganic carbon [µmol kg-1] and pH (total scale).
+    DicPh { dic: f64, ph_total: f64 },
+    /// Total alkalinity [µmol kg-1] and pCO2 [µatm] at in-situ temperature and 1 atm.
+    AlkalinityPco2 { alkalinity: f64, pco2_uatm: f64 },
+    /// Dissolved inorganic carbon [µmol kg-1] and pCO2 [µatm] at in-situ temperature and 1 atm.
+    DicPco2 { dic: f64, pco2_uatm: f64 },
+}
+
+/// The solved carbonate system of one sample.
+///
+/// pCO2 and fCO2 are reported at the sample's in-situ temperature and 1 atm total pressure, i.e.
+/// as if the water were brought to the surface without changing temperature (common practice for
+/// in-situ pCO2); every other quantity is at in-situ pressure.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Solution {
+    /// [H+] on the total scale [mol kg-1].
+    pub h_total: f64,
+    /// pH, total scale.
+    pub ph_total: f64,
+    /// pH, seawater scale.
+    pub ph_seawater: f64,
+    /// pH, free scale.
+    pub ph_free: f64,
+    /// Dissolved inorganic carbon [µmol kg-1].
+    pub dic: f64,
+    /// Total alkalinity [µmol kg-1].
+    pub alkalinity: f64,
+    /// CO2* (dissolved CO2 + H2CO3) [µmol kg-1].
+    pub co2: f64,
+    /// HCO3- [µmol kg-1].
+    pub bicarbonate: f64,
+    /// CO3-- [µmol kg-1].
+    pub carbonate: f64,
+    /// CO2 partial pressure [µatm].
+    pub pco2_uatm: f64,
+    /// CO2 fugacity [µatm].
+    pub fco2_uatm: f64,
+    /// Saturation state of aragonite, [Ca][CO3]/Ksp*.
+    pub omega_aragonite: f64,
+    /// Saturation state of calcite, [Ca][CO3]/Ksp*.
+    pub omega_calcite: f64,
+    /// Revelle factor (∂ln pCO2/∂ln DIC at constant alkalinity), evaluated analytically.
+    pub revelle_factor: f64,
+    /// Borate alkalinity [B(OH)4-] [µmol kg-1], positive.
+    pub alk_borate: f64,
+    /// Hydroxide alkalinity [OH-] [µmol kg-1], positive.
+    pub alk_hydroxide: f64,
+    /// Phosphate alkalinity [HPO4--] + 2[PO4---] - [H3PO4] [µmol kg-1].
+    pub alk_phosphate: f64,
+    /// Silicate alkalinity [SiO(OH)3-] [µmol kg-1], positive.
+    pub alk_silicate: f64,
+    /// -[HSO4-] [µmol kg-1]: negative, as it enters alkalinity.
+    pub alk_hydrogen_sulfate: f64,
+    /// -[HF] [µmol kg-1]: negative, as it enters alkalinity.
+    pub alk_hydrogen_fluoride: f64,
+    /// -[H+]free [µmol kg-1]: negative, as it enters alkalinity.
+    pub alk_free_hydrogen: f64,
+    /// Iterations of the alkalinity-pH solver (0 for pairs solved in closed form).
+    pub iterations: u32,
+    /// Validity ranges the inputs fall outside.
+    pub validity: Validity,
+}

@@ -1,0 +1,225 @@
+//! Solving each input pair and assembling the full speciation.
+
+use crate::constants::{constants_unchecked, validate_conditions, EquilibriumConstants};
+use crate::error::{check_range, ChemError};
+use crate::solver::{carbonate_from_dic, solve_alkalinity, CarbonFixed, NonCarbonate};
+use crate::{Conditions, ConstantChoice, InputPair, Solution};
+
+/// µmol kg-1 per mol kg-1.
+const MICRO: f64 = 1e6;
+/// Highest concentration accepted [µmol kg-1] (50 mmol kg-1, far beyond any seawater).
+const MAX_CONCENTRATION: f64 = 50_000.0;
+/// pH (total scale) range accepted as input and as a solution; outside it the pair describes no seawater.
+const PH_RANGE: (f64, f64) = (3.0, 12.0);
+
+fn check_alkalinity(value: f64) -> Result<f64, ChemError> {
+    check_range("alkalinity", value, 0.0, MAX_CONCENTRATION, "total alkalinity between 0 and 50000 µmol kg-1")
+}
+
+fn check_dic(value: f64) -> Result<f64, ChemError> {
+    check_range(
+        "dic",
+        value,
+        1e-6,
+        MAX_CONCENTRATION,
+        "dissolved inorganic carbon above 0 and at most 50000 µmol kg-1",
+    )
+}
+
+fn check_ph(value: f64) -> Result<f64, ChemError> {
+    check_range("ph_total", value, PH_RANGE.0, PH_RANGE.1, "pH (total scale) between 3 and 12")
+}
+
+fn check_pco2(value: f64) -> Result<f64, ChemError> {
+    check_range("pco2_uatm", value, 1e-6, 1e6, "pCO2 above 0 and at most 1000000 µatm")
+}
+
+/// Solves the carbonate system of one sample from any input pair with the chosen constants.
+/// Bad or inconsistent input gives a [`ChemError`], never a plausible-looking number.
+///
+/// ```
+/// use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair};
+/// let surface = Conditions { temperature_c: 25.0, salinity: 35.0, pressure_dbar: 0.0, phosphate: 0.0, silicate: 0.0 };
+/// let s = solve(InputPair::AlkalinityDic { alkalinity: 2300.0, dic: 2000.0 }, &surface, &ConstantChoice::default()).unwrap();
+/// // Typical warm surface seawater: pH near 8.0-8.1 and supersaturated for aragonite (common practice).
+/// assert!(s.ph_total > 7.95 && s.ph_total < 8.15);
+/// assert!(s.omega_aragonite > 2.5 && s.omega_aragonite < 4.5);
+/// ```
+pub fn solve(pair: InputPair, conditions: &Conditions, choice: &ConstantChoice) -> Result<Solution, ChemError> {
+    validate_conditions(conditions)?;
+    let k = constants_unchecked(conditions, choice);
+    let others = NonCarbonate::new(&k, conditions.phosphate / MICRO, conditions.silicate / MICRO);
+    let (h, dic, iterations) = match pair {
+        InputPair::AlkalinityDic { alkalinity, dic } => {
+            let alkalinity = check_alkalinity(alkalinity)? / MICRO;
+            let dic = check_dic(dic)? / MICRO;
+            let root = solve_alkalinity(alkalinity, CarbonFixed::Dic(dic), k.k1, k.k2, &others)?;
+            (root.h, dic, root.iterations)
+        }
+        InputPair::DicPh { dic, ph_total } => {
+            let dic = check_dic(dic)? / MICRO;
+            (h_from_ph(check_ph(ph_total)?), dic, 0)
+        }
+        InputPair::AlkalinityPh { alkalinity, ph_total } => {
+            let alkalinity = check_alkalinity(alkalinity)? / MICRO;
+            let h = h_from_ph(check_ph(ph_total)?);
+            (h, dic_from_alkalinity_ph(alkalinity, h, ph_total, &k, &others)?, 0)
+        }
+        InputPair::AlkalinityPco2 { alkalinity, pco2_uatm } => {
+            let alkalinity = check_alkalinity(alkalinity)? / MICRO;
+            let co2 = co2_from_pco2(check_pco2(pco2_uatm)?, &k);
+            let root = solve_alkalinity(alkalinity, CarbonFixed::Co2(co2), k.k1, k.k2, &others)?;
+            let dic = co2 * (1.0 + k.k1 / root.h * (1.0 + k.k2 / root.h));
+            (root.h, dic, root.iterations)
+        }
+        InputPair::DicPco2 { dic, pco2_uatm } => {
+            let dic = check_dic(dic)? / MICRO;
+            let co2 = co2_from_pco2(check_pco2(pco2_uatm)?, &k);
+            (h_from_dic_co2(dic, co2, pco2_uatm, &k)?, dic, 0)
+        }
+    };
+    speciate(h, dic, iterations, &k, &others)
+}
+
+fn h_from_ph(ph: f64) -> f64 {
+    10f64.powf(-ph)
+}
+
+/// CO2* [mol kg-1] = K0 · fCO2, with fCO2 = pCO2 · fugacity factor (Weiss 1974).
+fn co2_from_pco2(pco2_uatm: f64, k: &EquilibriumConstants) -> f64 {
+    k.k0 * pco2_uatm * k.fugacity_factor / MICRO
+}
+
+/// DIC from alkalinity and pH: what alkalinity the non-carbonate systems leave, over [HCO3-] + 2[CO3--] per unit DIC.
+fn dic_from_alkalinity_ph(
+    alkalinity: f64,
+    h: f64,
+    ph_total: f64,
+    k: &EquilibriumConstants,
+    others: &NonCarbonate,
+) -> Result<f64, ChemError> {
+    let (noncarbonate, _) = others.value_and_slope(h);
+    let (per_unit_dic, _) = carbonate_from_dic(1.0, k.k1, k.k2, h);
+    let carbonate_alkalinity = alkalinity - noncarbonate;
+    if carbonate_alkalinity <= 0.0 {
+        return Err(ChemError::NoSolution {
+            reason: format!(
+                "alkalinity {:.2} µmol kg-1 is not above the {:.2} µmol kg-1 that borate, water and nutrients alone give at pH {ph_total}",
+                alkalinity * MICRO,
+                noncarbonate * MICRO
+            ),
+        });
+    }
+    Ok(carbonate_alkalinity / per_unit_dic)
+}
+
+/// [H+] from DIC and CO2*: DIC/CO2* - 1 = K1/h + K1K2/h², solved as a quadratic in 1/h.
+fn h_from_dic_co2(dic: f64, co2: f64, pco2_uatm: f64, k: &EquilibriumConstants) -> Result<f64, ChemError> {
+    let excess = dic / co2 - 1.0;
+    if excess <= 0.0 {
+        return Err(ChemError::NoSolution {
+            reason: format!(
+                "pCO2 {pco2_uatm} µatm needs {:.2} µmol kg-1 of CO2 alone, more than the DIC {:.2} µmol kg-1",
+                co2 * MICRO,
+                dic * MICRO
+            ),
+        });
+    }
+    Ok((k.k1 + (k.k1 * k.k1 + 4.0 * k.k1 * k.k2 * excess).sqrt()) / (2.0 * excess))
+}
+
+/// Full speciation at total-scale [H+] = h and DIC [mol kg-1].
+fn speciate(
+    h: f64,
+    dic: f64,
+    iterations: u32,
+    k: &EquilibriumConstants,
+    others: &NonCarbonate,
+) -> Result<Solution, ChemError> {
+    let ph_total = -h.log10();
+    if !(ph_total >= PH_RANGE.0 && ph_total <= PH_RANGE.1) {
+        return Err(ChemError::NoSolution {
+            reason: format!(
+                "the inputs give pH {ph_total:.2} (total scale), outside the 3-12 of any seawater: check that alkalinity and DIC (or pH, pCO2) belong together and are in µmol kg-1"
+            ),
+        });
+    }
+    let k12 = k.k1 * k.k2;
+    let denominator = h * h + k.k1 * h + k12;
+    let dic_over_denominator = dic / denominator;
+    let co2 = dic_over_denominator * h * h;
+    let bicarbonate = dic_over_denominator * k.k1 * h;
+    let carbonate = dic_over_denominator * k12;
+    let parts = others.contributions(h);
+    let alkalinity = bicarbonate + 2.0 * carbonate + parts.sum();
+    let fco2_uatm = co2 / k.k0 * MICRO;
+
+    // Revelle factor, analytically: d ln CO2*/d ln DIC at constant TA, with dh/dDIC from the
+    // alkalinity equation (dTA = 0).
+    let (_, carbonate_slope) = carbonate_from_dic(dic, k.k1, k.k2, h);
+    let (_, others_slope) = others.value_and_slope(h);
+    let alkalinity_per_dic = (bicarbonate + 2.0 * carbonate) / dic;
+    let dh_ddic = -alkalinity_per_dic / (carbonate_slope + others_slope);
+    let dln_co2_fraction_dh = 2.0 / h - (2.0 * h + k.k1) / denominator;
+    let revelle_factor = 1.0 + dic * dln_co2_fraction_dh * dh_ddic;
+
+    let solution = Solution {
+        h_total: h,
+        ph_total,
+        ph_seawater: -(h / k.seawater_to_total).log10(),
+        ph_free: -(h / k.free_to_total).log10(),
+        dic: dic * MICRO,
+        alkalinity: alkalinity * MICRO,
+        co2: co2 * MICRO,
+        bicarbonate: bicarbonate * MICRO,
+        carbonate: carbonate * MICRO,
+        pco2_uatm: fco2_uatm / k.fugacity_factor,
+        fco2_uatm,
+        omega_aragonite: k.calcium * carbonate / k.ksp_aragonite,
+        omega_calcite: k.calcium * carbonate / k.ksp_calcite,
+        revelle_factor,
+        alk_borate: parts.borate * MICRO,
+        alk_hydroxide: parts.hydroxide * MICRO,
+        alk_phosphate: parts.phosphate * MICRO,
+        alk_silicate: parts.silicate * MICRO,
+        alk_hydrogen_sulfate: parts.hydrogen_sulfate * MICRO,
+        alk_hydrogen_fluoride: parts.hydrogen_fluoride * MICRO,
+        alk_free_hydrogen: parts.free_hydrogen * MICRO,
+        iterations,
+        validity: k.validity,
+    };
+    if all_finite(&solution) {
+        Ok(solution)
+    } else {
+        Err(ChemError::NoSolution {
+            reason: "the speciation overflowed (non-finite result): inputs far outside seawater".to_string(),
+        })
+    }
+}
+
+fn all_finite(s: &Solution) -> bool {
+    [
+        s.h_total,
+        s.ph_seawater,
+        s.ph_free,
+        s.dic,
+        s.alkalinity,
+        s.co2,
+        s.bicarbonate,
+        s.carbonate,
+        s.pco2_uatm,
+        s.fco2_uatm,
+        s.omega_aragonite,
+        s.omega_calcite,
+        s.revelle_factor,
+        s.alk_borate,
+        s.alk_hydroxide,
+        s.alk_phosphate,
+        s.alk_silicate,
+        s.alk_hydrogen_sulfate,
+        s.alk_hydrogen_fluoride,
+        s.alk_free_hydrogen,
+    ]
+    .iter()
+    .all(|v| v.is_finite())
+}

@@ -1,0 +1,166 @@
+//! Which published validity ranges a sample falls outside. The result is still computed.
+
+use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
+
+/// Bit set of validity-range breaches (empty = all within). See the associated constants.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+pub struct Validity(pub u32);
+
+#[derive(Clone, Copy)]
+enum Quantity {
+    Temperature,
+    Salinity,
+    Pressure,
+}
+
+impl Quantity {
+    fn name(self) -> &'static str {
+        match self {
+            Quantity::Temperature => "temperature",
+            Quantity::Salinity => "salinity",
+            Quantity::Pressure => "pressure",
+        }
+    }
+}
+
+/// One validity range: bit, what it covers, the variable, limits and units.
+struct Range {
+    bit: u32,
+    quantity: Quantity,
+    min: f64,
+    max: f64,
+    unit: &'static str,
+    source: &'static str,
+}
+
+// Ranges as the papers state them (all `from memory`, except Lueker et al. 2000 which
+// check-values.md quotes as T 2-35 °C, S 19-43).
+const RANGES: &[Range] = &[
+    Range { bit: Validity::LUEKER2000_TEMPERATURE, quantity: Quantity::Temperature, min: 2.0, max: 35.0, unit: " °C", source: "Lueker et al. 2000" },
+    Range { bit: Validity::LUEKER2000_SALINITY, quantity: Quantity::Salinity, min: 19.0, max: 43.0, unit: "", source: "Lueker et al. 2000" },
+    Range { bit: Validity::MILLERO2010_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 50.0, unit: " °C", source: "Millero 2010" },
+    Range { bit: Validity::MILLERO2010_SALINITY, quantity: Quantity::Salinity, min: 1.0, max: 50.0, unit: "", source: "Millero 2010" },
+    Range { bit: Validity::WATERS2014_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 50.0, unit: " °C", source: "Waters, Millero & Woosley 2014" },
+    Range { bit: Validity::WATERS2014_SALINITY, quantity: Quantity::Salinity, min: 1.0, max: 50.0, unit: "", source: "Waters, Millero & Woosley 2014" },
+    Range { bit: Validity::PEREZ_FRAGA1987_TEMPERATURE, quantity: Quantity::Temperature, min: 9.0, max: 33.0, unit: " °C", source: "Perez & Fraga 1987" },
+    Range { bit: Validity::PEREZ_FRAGA1987_SALINITY, quantity: Quantity::Salinity, min: 10.0, max: 40.0, unit: "", source: "Perez & Fraga 1987" },
+    Range { bit: Validity::DICKSON_RILEY1979_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 45.0, unit: " °C", source: "Dickson & Riley 1979" },
+    Range { bit: Validity::DICKSON_RILEY1979_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 45.0, unit: "", source: "Dickson & Riley 1979" },
+    Range { bit: Validity::WEISS1974_TEMPERATURE, quantity: Quantity::Temperature, min: -1.0, max: 40.0, unit: " °C", source: "Weiss 1974 (K0)" },
+    Range { bit: Validity::WEISS1974_SALINITY, quantity: Quantity::Salinity, min: 0.0, max: 40.0, unit: "", source: "Weiss 1974 (K0)" },
+    Range { bit: Validity::MINOR_ACIDS_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 45.0, unit: " °C", source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)" },
+    Range { bit: Validity::MINOR_ACIDS_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 45.0, unit: "", source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)" },
+    Range { bit: Validity::MUCCI1983_TEMPERATURE, quantity: Quantity::Temperature, min: 5.0, max: 40.0, unit: " °C", source: "Mucci 1983 (Ksp)" },
+    Range { bit: Validity::MUCCI1983_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 44.0, unit: "", source: "Mucci 1983 (Ksp)" },
+    Range { bit: Validity::PRESSURE, quantity: Quantity::Pressure, min: 0.0, max: 10_000.0, unit: " dbar", source: "Millero 1995 pressure corrections" },
+];
+
+impl Validity {
+    /// K1, K2 of Lueker et al. 2000 used outside 2-35 °C.
+    pub const LUEKER2000_TEMPERATURE: u32 = 1 << 0;
+    /// K1, K2 of Lueker et al. 2000 used outside S 19-43.
+    pub const LUEKER2000_SALINITY: u32 = 1 << 1;
+    /// K1, K2 of Millero 2010 used outside 0-50 °C.
+    pub const MILLERO2010_TEMPERATURE: u32 = 1 << 2;
+    /// K1, K2 of Millero 2010 used outside S 1-50.
+    pub const MILLERO2010_SALINITY: u32 = 1 << 3;
+    /// K1, K2 of Waters et al. 2014 used outside 0-50 °C.
+    pub const WATERS2014_TEMPERATURE: u32 = 1 << 4;
+    /// K1, K2 of Waters et al. 2014 used outside S 1-50.
+    pub const WATERS2014_SALINITY: u32 = 1 << 5;
+    /// KF of Perez & Fraga 1987 used outside 9-33 °C.
+    pub const PEREZ_FRAGA1987_TEMPERATURE: u32 = 1 << 6;
+    /// KF of Perez & Fraga 1987 used outside S 10-40.
+    pub const PEREZ_FRAGA1987_SALINITY: u32 = 1 << 7;
+    /// KF of Dickson & Riley 1979 used outside 0-45 °C.
+    pub const DICKSON_RILEY1979_TEMPERATURE: u32 = 1 << 8;
+    /// KF of Dickson & Riley 1979 used outside S 5-45.
+    pub const DICKSON_RILEY1979_SALINITY: u32 = 1 << 9;
+    /// K0 of Weiss 1974 used outside -1-40 °C.
+    pub const WEISS1974_TEMPERATURE: u32 = 1 << 10;
+    /// K0 of Weiss 1974 used outside S 0-40.
+    pub const WEISS1974_SALINITY: u32 = 1 << 11;
+    /// KB, KS, KW, phosphate and silicate constants used outside 0-45 °C.
+    pub const MINOR_ACIDS_TEMPERATURE: u32 = 1 << 12;
+    /// KB, KS, KW, phosphate and silicate constants used outside S 5-45.
+    pub const MINOR_ACIDS_SALINITY: u32 = 1 << 13;
+    /// Ksp of Mucci 1983 used outside 5-40 °C.
+    pub const MUCCI1983_TEMPERATURE: u32 = 1 << 14;
+    /// Ksp of Mucci 1983 used outside S 5-44.
+    pub const MUCCI1983_SALINITY: u32 = 1 << 15;
+    /// Pressure corrections used beyond 10000 dbar (1000 bar).
+    pub const PRESSURE: u32 = 1 << 16;
+
+    /// True when no constant was used outside its published range.
+    pub fn is_within(self) -> bool {
+        self.0 == 0
+    }
+
+    /// The raw bits (for per-cell flag variables).
+    pub fn bits(self) -> u32 {
+        self.0
+    }
+
+    /// True when every bit of `flag` is set.
+    pub fn contains(self, flag: u32) -> bool {
+        self.0 & flag == flag
+    }
+
+    /// Plain-language list of the breached ranges, "; "-separated (empty when within).
+    pub fn describe(self) -> String {
+        RANGES
+            .iter()
+            .filter(|range| self.contains(range.bit))
+            .map(|range| {
+                format!(
+                    "{} outside {}-{}{} for {}",
+                    range.quantity.name(), range.min, range.max, range.unit, range.source
+                )
+            })
+            .collect::<Vec<_>>()
+            .join("; ")
+    }
+
+    /// Checks a sample's temperature (°C), salinity and pressure (dbar) against the ranges of the chosen sets.
+    pub fn assess(temperature_c: f64, salinity: f64, pressure_dbar: f64, choice: &ConstantChoice) -> Self {
+        let (carbonic_t, carbonic_s) = match choice.carbonic {
+            CarbonicSet::Lueker2000 => (Self::LUEKER2000_TEMPERATURE, Self::LUEKER2000_SALINITY),
+            CarbonicSet::Millero2010 => (Self::MILLERO2010_TEMPERATURE, Self::MILLERO2010_SALINITY),
+            CarbonicSet::WatersMilleroWoosley2014 => {
+                (Self::WATERS2014_TEMPERATURE, Self::WATERS2014_SALINITY)
+            }
+        };
+        let (fluoride_t, fluoride_s) = match choice.fluoride {
+            FluorideSet::PerezFraga1987 => {
+                (Self::PEREZ_FRAGA1987_TEMPERATURE, Self::PEREZ_FRAGA1987_SALINITY)
+            }
+            FluorideSet::DicksonRiley1979 => (
+                Self::DICKSON_RILEY1979_TEMPERATURE,
+                Self::DICKSON_RILEY1979_SALINITY,
+            ),
+        };
+        let relevant = carbonic_t
+            | carbonic_s
+            | fluoride_t
+            | fluoride_s
+            | Self::WEISS1974_TEMPERATURE
+            | Self::WEISS1974_SALINITY
+            | Self::MINOR_ACIDS_TEMPERATURE
+            | Self::MINOR_ACIDS_SALINITY
+            | Self::MUCCI1983_TEMPERATURE
+            | Self::MUCCI1983_SALINITY
+            | Self::PRESSURE;
+        let mut bits = 0;
+        for range in RANGES.iter().filter(|range| relevant & range.bit != 0) {
+            let value = match range.quantity {
+                Quantity::Temperature => temperature_c,
+                Quantity::Salinity => salinity,
+                Quantity::Pressure => pressure_dbar,
+            };
+            if !(range.min..=range.max).contains(&value) {
+                bits |= range.bit;
+            }
+        }
+        Validity(bits)
+    }
+}

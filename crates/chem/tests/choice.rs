@@ -1,0 +1,68 @@
+//! User keys, citations and validity descriptions.
+
+use acidscape_chem::{solve, BoronTotal, CarbonicSet, Conditions, ConstantChoice, FluorideSet, InputPair, Validity};
+
+#[test]
+fn keys_parse_case_insensitively_and_round_trip() {
+    for set in CarbonicSet::ALL {
+        assert_eq!(set.key().parse::<CarbonicSet>().unwrap(), *set);
+        assert_eq!(set.key().to_uppercase().parse::<CarbonicSet>().unwrap(), *set);
+        assert_eq!(set.to_string(), set.key());
+        assert!(set.citation().contains("Mar") && set.citation().contains("20"));
+    }
+    for set in FluorideSet::ALL {
+        assert_eq!(set.key().parse::<FluorideSet>().unwrap(), *set);
+        assert!(set.citation().contains("Marine Chemistry"));
+    }
+    for set in BoronTotal::ALL {
+        assert_eq!(set.key().parse::<BoronTotal>().unwrap(), *set);
+        assert!(!set.citation().is_empty());
+    }
+    assert_eq!(CarbonicSet::ALL[0], CarbonicSet::default());
+    assert_eq!("lueker2000".parse::<CarbonicSet>().unwrap(), CarbonicSet::Lueker2000);
+    assert_eq!("Perez-Fraga1987".parse::<FluorideSet>().unwrap(), FluorideSet::PerezFraga1987);
+    assert_eq!("uppstrom1974".parse::<BoronTotal>().unwrap(), BoronTotal::Uppstrom1974);
+}
+
+#[test]
+fn unknown_key_lists_the_valid_ones() {
+    let message = "mehrbach".parse::<CarbonicSet>().unwrap_err().to_string();
+    for key in ["lueker2000", "millero2010", "waters2014", "mehrbach"] {
+        assert!(message.contains(key), "{message}");
+    }
+}
+
+#[test]
+fn describe_names_every_constant() {
+    let text = ConstantChoice::default().describe();
+    for needle in ["Lueker", "Perez", "Uppström", "Weiss 1974", "Dickson 1990", "Millero 1995", "Mucci 1983", "Munhoven 2013"] {
+        assert!(text.contains(needle), "{needle} missing from {text}");
+    }
+    assert!(!text.contains('\n'));
+}
+
+#[test]
+fn cold_water_is_flagged_but_still_solved() {
+    // Lueker et al. 2000 range: 2-35 °C, S 19-43 (check-values.md); Mucci 1983: 5-40 °C (from memory).
+    let cold = Conditions { temperature_c: -1.5, salinity: 34.0, pressure_dbar: 0.0, phosphate: 1.0, silicate: 20.0 };
+    let s = solve(InputPair::AlkalinityDic { alkalinity: 2300.0, dic: 2150.0 }, &cold, &ConstantChoice::default()).unwrap();
+    assert!(!s.validity.is_within());
+    assert!(s.validity.contains(Validity::LUEKER2000_TEMPERATURE));
+    assert!(!s.validity.contains(Validity::LUEKER2000_SALINITY));
+    let text = s.validity.describe();
+    assert!(text.contains("temperature outside 2-35 °C for Lueker et al. 2000"), "{text}");
+    assert!(s.ph_total.is_finite());
+    // Waters et al. 2014 extends to 0 °C only; -1.5 °C is outside it too (from memory).
+    let waters = ConstantChoice { carbonic: CarbonicSet::WatersMilleroWoosley2014, ..Default::default() };
+    let s = solve(InputPair::AlkalinityDic { alkalinity: 2300.0, dic: 2150.0 }, &cold, &waters).unwrap();
+    assert!(s.validity.contains(Validity::WATERS2014_TEMPERATURE));
+    assert!(!s.validity.contains(Validity::LUEKER2000_TEMPERATURE));
+}
+
+#[test]
+fn typical_water_is_within_every_range() {
+    let c = Conditions { temperature_c: 18.0, salinity: 35.0, pressure_dbar: 1000.0, phosphate: 1.0, silicate: 10.0 };
+    let s = solve(InputPair::AlkalinityDic { alkalinity: 2300.0, dic: 2100.0 }, &c, &ConstantChoice::default()).unwrap();
+    assert!(s.validity.is_within(), "{}", s.validity.describe());
+    assert_eq!(s.validity.describe(), "");
+}

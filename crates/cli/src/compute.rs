@@ -1,0 +1,250 @@
+//! `compute`: indicator fields for a whole run, written as CF NetCDF-4.
+
+use crate::run_options::{ConstantOptions, RunOptions};
+use acidscape_gridio::Run;
+use acidscape_pipeline::{
+    format_bytes, parse_list, parse_memory_size, run_job, IndicatorChoice, JobOptions,
+    JobSummary, Progress,
+};
+use clap::Args;
+use indicatif::{ProgressBar, ProgressStyle};
+use std::error::Error;
+use std::io::IsTerminal;
+use std::path::PathBuf;
+use std::time::{Duration, Instant};
+
+/// Environment variable that stops a job after N finished time steps, as if it had been
+/// interrupted (used by the tests of `--resume`).
+pub const STOP_AFTER_STEPS_ENV: &str = "ACIDSCAPE_STOP_AFTER_STEPS";
+
+#[derive(Args, Debug)]
+pub struct ComputeArgs {
+    #[command(flatten)]
+    pub run: RunOptions,
+
+    #[command(flatten)]
+    pub constants: ConstantOptions,
+
+    /// Output file (CF NetCDF-4); written as .NAME.partial beside it and renamed when complete
+    #[arg(short, long, value_name = "FILE")]
+    pub output: PathBuf,
+
+    /// Indicators to compute, comma-separated, from: ph, co3, hco3, co2 (CO2*), pco2, fco2,
+    /// omega-aragonite, omega-calcite, revelle
+    #[arg(long, value_name = "LIST", default_value = "ph,co3,pco2,omega-aragonite,omega-calcite")]
+    pub indicators: String,
+
+    /// pH scales to write when ph is chosen, comma-separated: total, seawater, free
+    #[arg(long, value_name = "LIST", default_value = "total")]
+    pub ph_scales: String,
+
+    /// Units of CO3--, HCO3- and CO2*: mol-m3 (per volume, using the run's density) or umol-kg
+    #[arg(long, value_name = "UNIT", default_value = "mol-m3")]
+    pub concentration_units: String,
+
+    /// Memory the job may use; slabs are sized to fit (e.g. 512MiB, 2GiB)
+    #[arg(long, value_name = "SIZE", default_value = "2GiB")]
+    pub memory_budget: String,
+
+    /// Deflate level of the output variables, 0 (none) to 9
+    #[arg(long, value_name = "LEVEL", default_value_t = 4)]
+    pub deflate_level: i32,
+
+    /// Solver threads (default: all cores)
+    #[arg(long, value_name = "N")]
+    pub threads: Option<usize>,
+
+    /// Replace an existing output (or start over after an interrupted run)
+    #[arg(long, conflicts_with = "resume")]
+    pub overwrite: bool,
+
+    /// Continue an interrupted run from its last finished time step
+    #[arg(long)]
+    pub resume: bool,
+}
+
+pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
+    // Every option is checked before the run is opened or any output touched.
+    let indicators = IndicatorChoice {
+        indicators: parse_list(&args.indicators)?,
+        ph_scales: parse_list(&args.ph_scales)?,
+        concentration_unit: args.concentration_units.parse()?,
+    };
+    indicators.fields()?;
+    let memory_budget_bytes = parse_memory_size(&args.memory_budget)?;
+    let constants = args.constants.choice()?;
+    let stop_after_steps = match std::env::var(STOP_AFTER_STEPS_ENV) {
+        Ok(text) => Some(text.trim().parse::<usize>().map_err(|_| {
+            format!("{STOP_AFTER_STEPS_ENV}={text}: expected a number of time steps")
+        })?),
+        Err(_) => None,
+    };
+    if let Some(threads) = args.threads {
+        if threads == 0 {
+            return Err("--threads: expected at least 1".into());
+        }
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build_global()
+            .map_err(|e| format!("--threads: {e}"))?;
+    }
+
+    let run = Run::open(&args.run.spec()?)?;
+    let options = JobOptions {
+        output: args.output.clone(),
+        overwrite: args.overwrite,
+        resume: args.resume,
+        memory_budget_bytes,
+        constants,
+        indicators,
+        command_line: command_line(),
+        deflate_level: args.deflate_level,
+        stop_after_steps,
+        max_rows_per_slab: None,
+    };
+    let mut progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {
+        Box::new(BarProgress::default())
+    } else {
+        Box::new(LogProgress::default())
+    };
+    let summary = run_job(&run, &options, progress.as_mut())?;
+    println!("{}", summary_text(&summary));
+    Ok(())
+}
+
+/// The command line as typed, quoted where needed, for the history attribute.
+fn command_line() -> String {
+    std::env::args()
+        .map(|arg| {
+            if arg.is_empty() || arg.contains(|c: char| c.is_whitespace() || "'\"$*?".contains(c)) {
+                format!("'{}'", arg.replace('\'', r"'\''"))
+            } else {
+                arg
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// A one-screen account of the job.
+fn summary_text(summary: &JobSummary) -> String {
+    let seconds = summary.wall.as_secs_f64().max(1e-9);
+    let counts = summary.counts;
+    let output = summary.output.display();
+    let resumed = if summary.first_step > 0 {
+        format!(" (resumed at time step {})", summary.first_step + 1)
+    } else {
+        String::new()
+    };
+    format!(
+        "Wrote {output}\n\
+         cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
+         wall time: {:.2} s; throughput {:.3e} cells/s\n\
+         stage time (stages overlap): read {:.2} s, solve {:.2} s, write {:.2} s\n\
+         quality flags (all steps): computed {}, outside validity range {}, no solution {}, missing input {}; land {}\n\
+         peak memory estimate: {}\n\
+         open it with: ncdump -h {output}   or   python3 -c \"import xarray; print(xarray.open_dataset('{output}'))\"",
+        summary.cells_processed,
+        summary.plan.shape[0],
+        summary.plan.shape[1],
+        summary.plan.shape[2],
+        summary.plan.steps,
+        summary.plan.slabs_per_step(),
+        seconds,
+        summary.cells_processed as f64 / seconds,
+        summary.read.as_secs_f64(),
+        summary.compute.as_secs_f64(),
+        summary.write.as_secs_f64(),
+        counts.computed,
+        counts.outside_validity_range,
+        counts.no_solution,
+        counts.missing_input,
+        counts.land,
+        format_bytes(summary.plan.estimated_peak_bytes()),
+    )
+}
+
+/// An indicatif bar for terminals.
+#[derive(Default)]
+struct BarProgress {
+    bar: Option<ProgressBar>,
+}
+
+impl Progress for BarProgress {
+    fn begin(&mut self, total_cells: u64, done_cells: u64) {
+        let bar = ProgressBar::new(total_cells);
+        let style = ProgressStyle::with_template(
+            "{elapsed_precise} [{bar:40}] {percent:>3}% {human_pos}/{human_len} cells, {per_sec}, ETA {eta}",
+        )
+        .unwrap_or_else(|_| ProgressStyle::default_bar());
+        bar.set_style(style.progress_chars("=> "));
+        bar.set_position(done_cells);
+        bar.reset_eta();
+        self.bar = Some(bar);
+    }
+    fn advance(&mut self, cells: u64) {
+        if let Some(bar) = &self.bar {
+            bar.inc(cells);
+        }
+    }
+    fn finish(&mut self) {
+        if let Some(bar) = self.bar.take() {
+            bar.finish_and_clear();
+        }
+    }
+}
+
+/// Plain log lines for batch jobs: every 10 s or every 5 % of the work, whichever first.
+#[derive(Default)]
+struct LogProgress {
+    total: u64,
+    done: u64,
+    done_at_start: u64,
+    started: Option<Instant>,
+    last_line: Option<Instant>,
+    last_percent_step: u64,
+}
+
+const LOG_INTERVAL: Duration = Duration::from_secs(10);
+
+impl Progress for LogProgress {
+    fn begin(&mut self, total_cells: u64, done_cells: u64) {
+        self.total = total_cells.max(1);
+        self.done = done_cells;
+        self.done_at_start = done_cells;
+        self.started = Some(Instant::now());
+        self.last_line = self.started;
+        self.last_percent_step = done_cells * 20 / self.total;
+        eprintln!(
+            "acidscape: computing {total_cells} cells ({} already done)",
+            done_cells
+        );
+    }
+    fn advance(&mut self, cells: u64) {
+        self.done += cells;
+        let percent_step = self.done * 20 / self.total;
+        let now = Instant::now();
+        let due = self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL);
+        if !(due || percent_step > self.last_percent_step) {
+            return;
+        }
+        self.last_percent_step = percent_step;
+        self.last_line = Some(now);
+        let elapsed = self.started.map_or(0.0, |t| (now - t).as_secs_f64()).max(1e-9);
+        let rate = (self.done - self.done_at_start) as f64 / elapsed;
+        let remaining = (self.total - self.done.min(self.total)) as f64 / rate.max(1e-9);
+        eprintln!(
+            "acidscape: {:5.1}% ({}/{} cells), {:.3e} cells/s, about {:.0} s left",
+            100.0 * self.done as f64 / self.total as f64,
+            self.done,
+            self.total,
+            rate,
+            remaining
+        );
+    }
+    fn step_finished(&mut self, steps_done: usize, steps_total: usize) {
+        if steps_total > 1 {
+            eprintln!("acidscape: time step {steps_done}/{steps_total} written");
+        }
+    }
+}

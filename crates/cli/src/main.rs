@@ -1,0 +1,57 @@
+//! The `acidscape` command: a thin layer of clap options over the library crates.
+//! Each subcommand module exposes its clap `...Args` and `run(&Args) -> Result<(), Box<dyn std::error::Error>>`.
+
+mod compute;
+mod describe;
+mod run_options;
+mod samples;
+
+use clap::{Parser, Subcommand};
+use std::process::ExitCode;
+
+/// Cautions printed with `--help`; the README carries the same text.
+const CAUTIONS: &str = "\
+Cautions: indicators computed from model output are model-derived estimates, not \
+measurements. Every set of equilibrium constants has a published validity range \
+(temperature, salinity, pressure); values outside it are still computed but flagged. \
+Local decisions (aquaculture siting, monitoring, regulation) should rest on local \
+observations, the applicable codes and licensed professional practice.";
+
+#[derive(Parser)]
+#[command(
+    name = "acidscape",
+    version,
+    about = "Ocean-acidification indicators (pH, pCO2, carbonate ion, aragonite and calcite saturation) from ocean-model output",
+    after_help = CAUTIONS,
+    after_long_help = CAUTIONS
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Compute indicators for a table of water samples (CSV in, CSV out)
+    Samples(samples::SamplesArgs),
+    /// Explain what acidscape understands of a model run, before any long job
+    Describe(describe::DescribeArgs),
+    /// Compute indicator fields for a whole model run and write CF NetCDF
+    Compute(compute::ComputeArgs),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let outcome = match cli.command {
+        Command::Samples(args) => samples::run(&args),
+        Command::Describe(args) => describe::run(&args),
+        Command::Compute(args) => compute::run(&args),
+    };
+    match outcome {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(error) => {
+            eprintln!("acidscape: error: {error}");
+            ExitCode::FAILURE
+        }
+    }
+}

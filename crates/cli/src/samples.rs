@@ -1,0 +1,565 @@
+//! `samples`: the chemistry for a table of water samples (bottle data, mooring records, what-if cases).
+//! A bad row is reported in its own status column and never stops the others.
+
+use crate::run_options::ConstantOptions;
+use acidscape_chem::{solve, ChemError, ConstantChoice, Conditions, InputPair, Solution};
+use acidscape_gridio::seawater;
+use acidscape_gridio::units;
+use clap::{Args, ValueEnum};
+use std::collections::BTreeMap;
+use std::error::Error;
+use std::fs;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+#[derive(Args, Debug)]
+pub struct SamplesArgs {
+    /// CSV table of samples, one row each, with a header row
+    #[arg(value_name = "TABLE")]
+    pub input: PathBuf,
+
+    /// Where to write the results (CSV); refused if it exists unless --overwrite
+    #[arg(short, long, value_name = "FILE")]
+    pub output: PathBuf,
+
+    /// Which two carbonate quantities fix the system (default: alkalinity and DIC when both
+    /// columns exist, else the only complete pair)
+    #[arg(long, value_enum)]
+    pub pair: Option<PairChoice>,
+
+    /// Read a role from a differently named column, e.g. --column dic=TCO2 (roles: alkalinity,
+    /// dic, ph, pco2, temperature, salinity, pressure, depth, latitude, phosphate, silicate)
+    #[arg(long = "column", value_name = "ROLE=HEADER")]
+    pub columns: Vec<String>,
+
+    /// Units of a role's column when the header does not state them in brackets,
+    /// e.g. --units dic=mol/m3 (defaults: umol/kg, degC, dbar, m, practical salinity, uatm)
+    #[arg(long = "units", value_name = "ROLE=UNITS")]
+    pub units: Vec<String>,
+
+    /// Latitude [degrees north] for turning depth into pressure when the table has no latitude column
+    #[arg(long, value_name = "DEG")]
+    pub latitude: Option<f64>,
+
+    /// Replace the output file if it exists
+    #[arg(long)]
+    pub overwrite: bool,
+
+    #[command(flatten)]
+    pub constants: ConstantOptions,
+}
+
+/// Input pairs offered on the command line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum PairChoice {
+    AlkalinityDic,
+    AlkalinityPh,
+    DicPh,
+    AlkalinityPco2,
+    DicPco2,
+}
+
+impl PairChoice {
+    fn roles(self) -> [Role; 2] {
+        match self {
+            Self::AlkalinityDic => [Role::Alkalinity, Role::Dic],
+            Self::AlkalinityPh => [Role::Alkalinity, Role::Ph],
+            Self::DicPh => [Role::Dic, Role::Ph],
+            Self::AlkalinityPco2 => [Role::Alkalinity, Role::Pco2],
+            Self::DicPco2 => [Role::Dic, Role::Pco2],
+        }
+    }
+}
+
+/// What a column means to the chemistry.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
+enum Role {
+    Alkalinity,
+    Dic,
+    Ph,
+    Pco2,
+    Temperature,
+    Salinity,
+    Pressure,
+    Depth,
+    Latitude,
+    Phosphate,
+    Silicate,
+}
+
+impl Role {
+    const ALL: [Role; 11] = [
+        Role::Alkalinity,
+        Role::Dic,
+        Role::Ph,
+        Role::Pco2,
+        Role::Temperature,
+        Role::Salinity,
+        Role::Pressure,
+        Role::Depth,
+        Role::Latitude,
+        Role::Phosphate,
+        Role::Silicate,
+    ];
+
+    /// The role's key on the command line, then the header names recognised without a mapping.
+    fn names(self) -> &'static [&'static str] {
+        match self {
+            Role::Alkalinity => &["alkalinity", "ta", "talk", "total_alkalinity"],
+            Role::Dic => &["dic", "dissic", "tco2"],
+            Role::Ph => &["ph", "ph_total"],
+            Role::Pco2 => &["pco2"],
+            Role::Temperature => &["temperature", "temp", "t"],
+            Role::Salinity => &["salinity", "sal", "s", "so", "practical_salinity"],
+            Role::Pressure => &["pressure", "pres", "p"],
+            Role::Depth => &["depth"],
+            Role::Latitude => &["latitude", "lat"],
+            Role::Phosphate => &["phosphate", "po4"],
+            Role::Silicate => &["silicate", "si", "sio4"],
+        }
+    }
+
+    fn key(self) -> &'static str {
+        self.names()[0]
+    }
+
+    fn from_key(key: &str) -> Result<Role, String> {
+        let key = key.trim().to_ascii_lowercase();
+        Role::ALL
+            .into_iter()
+            .find(|role| role.key() == key)
+            .ok_or_else(|| {
+                let keys: Vec<&str> = Role::ALL.iter().map(|r| r.key()).collect();
+                format!("unknown role '{key}'; expected one of {}", keys.join(", "))
+            })
+    }
+
+    fn default_units(self) -> &'static str {
+        match self {
+            Role::Alkalinity | Role::Dic | Role::Phosphate | Role::Silicate => "umol/kg",
+            Role::Temperature => "degC",
+            Role::Salinity | Role::Ph | Role::Latitude => "1",
+            Role::Pressure => "dbar",
+            Role::Depth => "m",
+            Role::Pco2 => "uatm",
+        }
+    }
+}
+
+/// How to turn one column's text into the chemistry's units.
+#[derive(Clone, Copy, Debug)]
+enum Conversion {
+    Concentration(units::Concentration),
+    Temperature(units::TemperatureUnits),
+    Salinity(units::SalinityUnits),
+    Scale(f64),
+}
+
+/// A role found in the header: its column index and how to convert it.
+#[derive(Clone, Copy, Debug)]
+struct Column {
+    index: usize,
+    conversion: Conversion,
+}
+
+/// Splits `name [units]` or `name (units)` into its parts.
+fn split_header(header: &str) -> (String, Option<String>) {
+    let header = header.trim();
+    for (open, close) in [('[', ']'), ('(', ')')] {
+        if let (Some(start), true) = (header.find(open), header.ends_with(close)) {
+            let name = header[..start].trim().to_ascii_lowercase();
+            let unit = header[start + 1..header.len() - 1].trim().to_string();
+            return (name, Some(unit));
+        }
+    }
+    (header.to_ascii_lowercase(), None)
+}
+
+fn parse_pco2_units(text: &str) -> Result<f64, String> {
+    match text.trim().to_ascii_lowercase().as_str() {
+        "uatm" | "µatm" | "μatm" | "microatm" | "micro-atm" => Ok(1.0),
+        "atm" => Ok(1.0e6),
+        other => Err(format!(
+            "units '{other}' for pCO2 not understood; expected uatm (µatm) or atm"
+        )),
+    }
+}
+
+fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
+    let describe = |e: units::UnitsError| e.to_string();
+    Ok(match role {
+        Role::Alkalinity | Role::Dic | Role::Phosphate | Role::Silicate => {
+            Conversion::Concentration(units::parse_concentration(unit_text).map_err(describe)?)
+        }
+        Role::Temperature => {
+            Conversion::Temperature(units::parse_temperature(unit_text).map_err(describe)?)
+        }
+        Role::Salinity => Conversion::Salinity(units::parse_salinity(unit_text).map_err(describe)?),
+        Role::Pressure => Conversion::Scale(units::parse_pressure(unit_text).map_err(describe)?.to_dbar),
+        Role::Depth => Conversion::Scale(units::parse_length(unit_text).map_err(describe)?.to_m),
+        Role::Pco2 => Conversion::Scale(parse_pco2_units(unit_text)?),
+        Role::Ph | Role::Latitude => match unit_text.trim() {
+            "" | "1" => Conversion::Scale(1.0),
+            other => return Err(format!("{} takes no units, got '{other}'", role.key())),
+        },
+    })
+}
+
+/// Parses `ROLE=VALUE` options into a map.
+fn role_options(options: &[String], flag: &str) -> Result<BTreeMap<Role, String>, String> {
+    let mut map = BTreeMap::new();
+    for option in options {
+        let (role, value) = option
+            .split_once('=')
+            .ok_or_else(|| format!("{flag} expects ROLE=VALUE, got '{option}'"))?;
+        map.insert(Role::from_key(role)?, value.trim().to_string());
+    }
+    Ok(map)
+}
+
+/// Finds each role's column from the header, the mapping and the units options.
+fn locate_columns(
+    header: &csv::StringRecord,
+    args: &SamplesArgs,
+) -> Result<BTreeMap<Role, Column>, String> {
+    let renames = role_options(&args.columns, "--column")?;
+    let unit_overrides = role_options(&args.units, "--units")?;
+    let parsed: Vec<(String, Option<String>)> = header.iter().map(split_header).collect();
+    let mut found = BTreeMap::new();
+    for role in Role::ALL {
+        let wanted: Vec<String> = match renames.get(&role) {
+            Some(name) => vec![split_header(name).0],
+            None => role.names().iter().map(|n| n.to_string()).collect(),
+        };
+        let Some(index) = parsed.iter().position(|(name, _)| wanted.contains(name)) else {
+            if let Some(name) = renames.get(&role) {
+                return Err(format!(
+                    "--column {}={name}: the table has no column '{name}'",
+                    role.key()
+                ));
+            }
+            continue;
+        };
+        let unit_text = unit_overrides
+            .get(&role)
+            .cloned()
+            .or_else(|| parsed[index].1.clone())
+            .unwrap_or_else(|| role.default_units().to_string());
+        let conversion = conversion_for(role, &unit_text)
+            .map_err(|e| format!("column '{}': {e}", &header[index]))?;
+        found.insert(role, Column { index, conversion });
+    }
+    Ok(found)
+}
+
+fn choose_pair(args: &SamplesArgs, columns: &BTreeMap<Role, Column>) -> Result<PairChoice, String> {
+    let has = |choice: PairChoice| choice.roles().iter().all(|r| columns.contains_key(r));
+    if let Some(choice) = args.pair {
+        return if has(choice) {
+            Ok(choice)
+        } else {
+            let [a, b] = choice.roles();
+            Err(format!(
+                "--pair needs columns for '{}' and '{}'",
+                a.key(),
+                b.key()
+            ))
+        };
+    }
+    PairChoice::value_variants()
+        .iter()
+        .copied()
+        .find(|&c| has(c))
+        .ok_or_else(|| {
+            "the table has no complete input pair: it needs two of alkalinity, dic, ph, pco2 \
+             (with alkalinity or dic among them); name columns with --column ROLE=HEADER"
+                .to_string()
+        })
+}
+
+/// One row's physical state and pair, in the chemistry's units, or why the row cannot be used.
+struct RowInputs {
+    pair: InputPair,
+    conditions: Conditions,
+}
+
+/// Reads a role's raw value from a row; empty cells are `None`.
+fn raw_value(record: &csv::StringRecord, column: &Column, role: Role) -> Result<Option<f64>, String> {
+    let text = record.get(column.index).unwrap_or("").trim();
+    if text.is_empty() || text.eq_ignore_ascii_case("nan") || text.eq_ignore_ascii_case("na") {
+        return Ok(None);
+    }
+    text.parse::<f64>()
+        .map(Some)
+        .map_err(|_| format!("{} is '{text}', not a number", role.key()))
+}
+
+fn row_inputs(
+    record: &csv::StringRecord,
+    columns: &BTreeMap<Role, Column>,
+    pair_choice: PairChoice,
+    latitude_option: Option<f64>,
+) -> Result<RowInputs, String> {
+    let value = |role: Role| -> Result<Option<f64>, String> {
+        match columns.get(&role) {
+            Some(column) => raw_value(record, column, role),
+            None => Ok(None),
+        }
+    };
+    let required = |role: Role| -> Result<f64, String> {
+        value(role)?.ok_or_else(|| format!("{} is missing", role.key()))
+    };
+    let scale = |role: Role, raw: f64| match columns[&role].conversion {
+        Conversion::Scale(factor) => raw * factor,
+        _ => raw,
+    };
+
+    let temperature = match columns.get(&Role::Temperature).map(|c| c.conversion) {
+        Some(Conversion::Temperature(u)) => u.to_celsius(required(Role::Temperature)?),
+        _ => return Err("temperature is missing".into()),
+    };
+    let salinity = match columns.get(&Role::Salinity).map(|c| c.conversion) {
+        Some(Conversion::Salinity(units::SalinityUnits::Practical)) => required(Role::Salinity)?,
+        Some(Conversion::Salinity(units::SalinityUnits::Absolute { to_g_per_kg })) => {
+            seawater::practical_from_absolute(required(Role::Salinity)? * to_g_per_kg)
+        }
+        _ => return Err("salinity is missing".into()),
+    };
+    let pressure = match value(Role::Pressure)? {
+        Some(p) => scale(Role::Pressure, p),
+        None => {
+            let depth = value(Role::Depth)?.map(|d| scale(Role::Depth, d)).ok_or(
+                "neither pressure nor depth is given (surface samples: pressure 0)",
+            )?;
+            let latitude = value(Role::Latitude)?.or(latitude_option).ok_or(
+                "depth needs a latitude (a latitude column or --latitude) to become pressure",
+            )?;
+            seawater::sea_pressure_from_depth(depth, latitude).map_err(|e| e.to_string())?
+        }
+    };
+    // Per-volume concentrations need the sample's own density (in-situ, TEOS-10).
+    let density = || {
+        seawater::in_situ_density(salinity, temperature, pressure).map_err(|e| e.to_string())
+    };
+    let concentration = |role: Role, raw: f64| -> Result<f64, String> {
+        match columns[&role].conversion {
+            Conversion::Concentration(c) => Ok(match c.basis {
+                units::ConcentrationBasis::PerMass => c.to_umol_per_kg(raw, f64::NAN),
+                units::ConcentrationBasis::PerVolume => c.to_umol_per_kg(raw, density()?),
+            }),
+            _ => Ok(raw),
+        }
+    };
+    let nutrient = |role: Role| -> Result<f64, String> {
+        match value(role)? {
+            Some(raw) => concentration(role, raw),
+            None => Ok(0.0),
+        }
+    };
+    let member = |role: Role| -> Result<f64, String> {
+        let raw = required(role)?;
+        match role {
+            Role::Alkalinity | Role::Dic => concentration(role, raw),
+            _ => Ok(scale(role, raw)),
+        }
+    };
+    let [first, second] = pair_choice.roles();
+    let (a, b) = (member(first)?, member(second)?);
+    let pair = match pair_choice {
+        PairChoice::AlkalinityDic => InputPair::AlkalinityDic { alkalinity: a, dic: b },
+        PairChoice::AlkalinityPh => InputPair::AlkalinityPh { alkalinity: a, ph_total: b },
+        PairChoice::DicPh => InputPair::DicPh { dic: a, ph_total: b },
+        PairChoice::AlkalinityPco2 => InputPair::AlkalinityPco2 { alkalinity: a, pco2_uatm: b },
+        PairChoice::DicPco2 => InputPair::DicPco2 { dic: a, pco2_uatm: b },
+    };
+    Ok(RowInputs {
+        pair,
+        conditions: Conditions {
+            temperature_c: temperature,
+            salinity,
+            pressure_dbar: pressure,
+            phosphate: nutrient(Role::Phosphate)?,
+            silicate: nutrient(Role::Silicate)?,
+        },
+    })
+}
+
+/// The computed columns, in output order: header and how to read it from a solution.
+const RESULT_COLUMNS: &[(&str, fn(&Solution) -> f64)] = &[
+    ("ph_total", |s| s.ph_total),
+    ("ph_seawater", |s| s.ph_seawater),
+    ("ph_free", |s| s.ph_free),
+    ("dic_result [umol/kg]", |s| s.dic),
+    ("alkalinity_result [umol/kg]", |s| s.alkalinity),
+    ("co2 [umol/kg]", |s| s.co2),
+    ("bicarbonate [umol/kg]", |s| s.bicarbonate),
+    ("carbonate [umol/kg]", |s| s.carbonate),
+    ("pco2 [uatm]", |s| s.pco2_uatm),
+    ("fco2 [uatm]", |s| s.fco2_uatm),
+    ("omega_aragonite", |s| s.omega_aragonite),
+    ("omega_calcite", |s| s.omega_calcite),
+    ("revelle_factor", |s| s.revelle_factor),
+    ("borate_alkalinity [umol/kg]", |s| s.alk_borate),
+    ("hydroxide_alkalinity [umol/kg]", |s| s.alk_hydroxide),
+    ("phosphate_alkalinity [umol/kg]", |s| s.alk_phosphate),
+    ("silicate_alkalinity [umol/kg]", |s| s.alk_silicate),
+    ("hydrogen_sulfate_alkalinity [umol/kg]", |s| s.alk_hydrogen_sulfate),
+    ("hydrogen_fluoride_alkalinity [umol/kg]", |s| s.alk_hydrogen_fluoride),
+    ("free_hydrogen_alkalinity [umol/kg]", |s| s.alk_free_hydrogen),
+];
+
+/// Row outcome labels written in the `status` column.
+fn status_of(outcome: &Result<(RowInputs, Solution), RowFailure>) -> (&'static str, String) {
+    match outcome {
+        Ok((_, solution)) if solution.validity.is_within() => ("ok", String::new()),
+        Ok((_, solution)) => ("outside-validity-range", solution.validity.describe()),
+        Err(RowFailure::BadInput(why)) => ("bad-input", why.clone()),
+        Err(RowFailure::Chemistry(ChemError::NoSolution { .. }, why)) => {
+            ("no-solution", why.clone())
+        }
+        Err(RowFailure::Chemistry(_, why)) => ("bad-input", why.clone()),
+    }
+}
+
+enum RowFailure {
+    BadInput(String),
+    Chemistry(ChemError, String),
+}
+
+fn compute_row(
+    record: &csv::StringRecord,
+    columns: &BTreeMap<Role, Column>,
+    pair: PairChoice,
+    latitude: Option<f64>,
+    choice: &ConstantChoice,
+) -> Result<(RowInputs, Solution), RowFailure> {
+    let inputs = row_inputs(record, columns, pair, latitude).map_err(RowFailure::BadInput)?;
+    match solve(inputs.pair, &inputs.conditions, choice) {
+        Ok(solution) => Ok((inputs, solution)),
+        Err(error) => {
+            let why = error.to_string();
+            Err(RowFailure::Chemistry(error, why))
+        }
+    }
+}
+
+/// Counts of each status, for the closing summary.
+type StatusCounts = BTreeMap<&'static str, usize>;
+
+fn write_table(
+    args: &SamplesArgs,
+    destination: &Path,
+    choice: &ConstantChoice,
+) -> Result<StatusCounts, Box<dyn Error>> {
+    let mut reader = csv::ReaderBuilder::new()
+        .flexible(true)
+        .from_path(&args.input)
+        .map_err(|e| format!("{}: cannot read the table: {e}", args.input.display()))?;
+    let header = reader
+        .headers()
+        .map_err(|e| format!("{}: cannot read the header row: {e}", args.input.display()))?
+        .clone();
+    let columns = locate_columns(&header, args).map_err(|e| format!("{}: {e}", args.input.display()))?;
+    let pair = choose_pair(args, &columns).map_err(|e| format!("{}: {e}", args.input.display()))?;
+
+    let mut writer = csv::Writer::from_path(destination)
+        .map_err(|e| format!("{}: cannot write: {e}", destination.display()))?;
+    let mut out_header: Vec<String> = header.iter().map(str::to_string).collect();
+    out_header.extend(["status", "status_detail", "pressure_used [dbar]"].map(String::from));
+    out_header.extend(RESULT_COLUMNS.iter().map(|(name, _)| name.to_string()));
+    out_header.push("solver_iterations".into());
+    writer.write_record(&out_header)?;
+
+    let mut counts = StatusCounts::new();
+    for record in reader.records() {
+        // An unreadable row (e.g. invalid UTF-8) becomes an empty bad-input row; the rest go on.
+        let (record, outcome) = match record {
+            Ok(record) => {
+                let outcome = compute_row(&record, &columns, pair, args.latitude, choice);
+                (record, outcome)
+            }
+            Err(e) => (
+                csv::StringRecord::from(vec![""; header.len()]),
+                Err(RowFailure::BadInput(format!("row cannot be read: {e}"))),
+            ),
+        };
+        let (status, detail) = status_of(&outcome);
+        *counts.entry(status).or_default() += 1;
+        let mut row: Vec<String> = record.iter().map(str::to_string).collect();
+        row.push(status.to_string());
+        row.push(detail);
+        match &outcome {
+            Ok((inputs, solution)) => {
+                row.push(format!("{:.3}", inputs.conditions.pressure_dbar));
+                row.extend(RESULT_COLUMNS.iter().map(|(_, get)| format!("{:.6}", get(solution))));
+                row.push(solution.iterations.to_string());
+            }
+            Err(_) => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
+        }
+        writer.write_record(&row)?;
+    }
+    writer.flush()?;
+    let file = writer
+        .into_inner()
+        .map_err(|e| format!("{}: cannot finish writing: {e}", destination.display()))?;
+    file.sync_all()?;
+    Ok(counts)
+}
+
+/// A sibling path to write into before the final rename, so no half-written table looks complete.
+fn partial_path(output: &Path) -> PathBuf {
+    let name = output
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "samples.csv".into());
+    output.with_file_name(format!(".{name}.partial"))
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (fs::canonicalize(a), fs::canonicalize(b)) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    }
+}
+
+pub fn run(args: &SamplesArgs) -> Result<(), Box<dyn Error>> {
+    let choice = args.constants.choice()?;
+    if !args.input.is_file() {
+        return Err(format!("{}: no such table", args.input.display()).into());
+    }
+    if same_file(&args.input, &args.output) {
+        return Err(format!(
+            "{}: the output would overwrite the input table; choose another -o",
+            args.output.display()
+        )
+        .into());
+    }
+    if args.output.exists() && !args.overwrite {
+        return Err(format!(
+            "{}: exists; pass --overwrite to replace it",
+            args.output.display()
+        )
+        .into());
+    }
+    let partial = partial_path(&args.output);
+    let counts = match write_table(args, &partial, &choice) {
+        Ok(counts) => counts,
+        Err(error) => {
+            let _ = fs::remove_file(&partial);
+            return Err(error);
+        }
+    };
+    fs::rename(&partial, &args.output).map_err(|e| {
+        let _ = fs::remove_file(&partial);
+        format!("{}: cannot put the results in place: {e}", args.output.display())
+    })?;
+
+    let total: usize = counts.values().sum();
+    let mut stdout = std::io::stdout().lock();
+    writeln!(stdout, "{total} samples -> {}", args.output.display())?;
+    for (status, count) in &counts {
+        writeln!(stdout, "  {status:<24}{count}")?;
+    }
+    writeln!(stdout, "constants: {}", choice.describe())?;
+    Ok(())
+}

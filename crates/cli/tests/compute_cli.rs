@@ -1,0 +1,195 @@
+//! The `compute` subcommand as a user runs it: on a SYNTHETIC cmip-style run written by
+//! the project's generator (scripts/make_sample_grids.py, needs python3 with numpy,
+//! netCDF4, cftime: scripts/ensure-deps.sh installs them), compared with ncdump
+//! (netcdf-bin) at full float precision.
+
+use std::io::{BufRead, BufReader};
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
+
+const BIN: &str = env!("CARGO_BIN_EXE_acidscape");
+const VARIABLES: &str = "ph,co3,pco2,omega_aragonite,omega_calcite,quality_flag";
+
+fn repository() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
+}
+
+/// Writes a cmip-style run (one pathway used) and returns its input files.
+fn sample_run(dir: &Path, size: [&str; 3], steps: &str) -> Vec<PathBuf> {
+    let status = Command::new("python3")
+        .arg(repository().join("scripts/make_sample_grids.py"))
+        .args(["--out"])
+        .arg(dir)
+        .args(["--runs", "cmip-style", "--size", size[0], size[1], size[2]])
+        .args(["--steps", steps, "--quiet"])
+        .stdout(Stdio::null())
+        .status()
+        .expect("python3 must be installed (scripts/ensure-deps.sh)");
+    assert!(status.success(), "scripts/make_sample_grids.py failed");
+    let folder = dir.join("cmip-style/pathway-moderate");
+    let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "nc"))
+        .collect();
+    files.sort();
+    files
+}
+
+fn compute(inputs: &[PathBuf], output: &Path, extra: &[&str], env: &[(&str, &str)]) -> Output {
+    let mut command = Command::new(BIN);
+    command.arg("compute").args(inputs).arg("-o").arg(output).args(extra);
+    for (key, value) in env {
+        command.env(key, value);
+    }
+    command.output().unwrap()
+}
+
+/// The data section of the chosen variables at full precision (ncdump -p 9,17).
+fn data_section(path: &Path) -> String {
+    let out = Command::new("ncdump")
+        .args(["-p", "9,17", "-v", VARIABLES])
+        .arg(path)
+        .output()
+        .expect("ncdump (netcdf-bin) must be installed");
+    assert!(out.status.success(), "ncdump {}", path.display());
+    let text = String::from_utf8_lossy(&out.stdout).into_owned();
+    let start = text.find("\ndata:").expect("ncdump output has a data section");
+    text[start..].to_string()
+}
+
+fn partial(output: &Path) -> PathBuf {
+    let name = output.file_name().unwrap().to_string_lossy();
+    output.with_file_name(format!(".{name}.partial"))
+}
+
+#[test]
+fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
+    let dir = tempfile::tempdir().unwrap();
+    let inputs = sample_run(dir.path(), ["8", "6", "4"], "4");
+    let whole = dir.path().join("whole.nc");
+    let out = compute(&inputs, &whole, &[], &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("quality flags"));
+
+    let pieces = dir.path().join("pieces.nc");
+    let out = compute(&inputs, &pieces, &[], &[("ACIDSCAPE_STOP_AFTER_STEPS", "2")]);
+    assert!(!out.status.success());
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(stderr.contains("--resume"), "{stderr}");
+    assert!(!pieces.exists(), "a stopped run must not leave a complete-looking output");
+    assert!(partial(&pieces).exists());
+
+    let out = compute(&inputs, &pieces, &["--resume"], &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(!partial(&pieces).exists());
+    assert_eq!(data_section(&whole), data_section(&pieces));
+}
+
+#[test]
+fn killed_run_resumes_to_identical_values() {
+    let dir = tempfile::tempdir().unwrap();
+    let inputs = sample_run(dir.path(), ["40", "30", "15"], "24");
+    let whole = dir.path().join("whole.nc");
+    let out = compute(&inputs, &whole, &[], &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+
+    // SIGKILL as soon as the first time step is reported durable.
+    let killed = dir.path().join("killed.nc");
+    let mut child = Command::new(BIN)
+        .arg("compute")
+        .args(&inputs)
+        .arg("-o")
+        .arg(&killed)
+        .stdout(Stdio::null())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let stderr = child.stderr.take().unwrap();
+    let mut finished_early = true;
+    for line in BufReader::new(stderr).lines() {
+        if line.unwrap().contains("time step 1/24 written") {
+            child.kill().unwrap();
+            finished_early = false;
+            break;
+        }
+    }
+    let status = child.wait().unwrap();
+    assert!(!finished_early, "the run never reported a finished step");
+    if status.success() {
+        // The whole run finished before the kill landed: nothing left to test here.
+        assert!(killed.exists());
+        return;
+    }
+    assert!(!killed.exists(), "a killed run must not leave a complete-looking output");
+    let out = compute(&inputs, &killed, &["--resume"], &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert_eq!(data_section(&whole), data_section(&killed));
+}
+
+#[test]
+fn bad_inputs_and_options_fail_before_any_output() {
+    let dir = tempfile::tempdir().unwrap();
+    let inputs = sample_run(dir.path(), ["8", "6", "4"], "1");
+    let output = dir.path().join("out.nc");
+    let check_nothing_written = |out: &Output, expect: &str| {
+        assert!(!out.status.success());
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(stderr.contains(expect), "expected '{expect}' in: {stderr}");
+        assert!(!output.exists() && !partial(&output).exists(), "{stderr}");
+    };
+
+    let missing = vec![dir.path().join("no-such-file.nc")];
+    check_nothing_written(&compute(&missing, &output, &[], &[]), "no-such-file.nc");
+
+    // Only temperature files: no DIC in the run.
+    let temperature_only: Vec<PathBuf> = inputs
+        .iter()
+        .filter(|p| p.file_name().unwrap().to_string_lossy().starts_with("thetao"))
+        .cloned()
+        .collect();
+    check_nothing_written(&compute(&temperature_only, &output, &[], &[]), "dic");
+
+    check_nothing_written(
+        &compute(&inputs, &output, &["--indicators", "ph,omega"], &[]),
+        "omega-aragonite",
+    );
+    check_nothing_written(
+        &compute(&inputs, &output, &["--memory-budget", "lots"], &[]),
+        "--memory-budget",
+    );
+
+    // An output directory that cannot exist (its parent is a file) fails before compute.
+    let blocker = dir.path().join("a-file");
+    std::fs::write(&blocker, b"").unwrap();
+    let out = compute(&inputs, &blocker.join("out.nc"), &[], &[]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("a-file"));
+    assert!(String::from_utf8_lossy(&out.stdout).is_empty());
+}
+
+#[test]
+fn never_replaces_an_input_or_an_existing_output() {
+    let dir = tempfile::tempdir().unwrap();
+    let inputs = sample_run(dir.path(), ["8", "6", "4"], "1");
+    let before = std::fs::read(&inputs[0]).unwrap();
+    let out = compute(&inputs, &inputs[0], &["--overwrite"], &[]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("is an input"));
+    assert_eq!(std::fs::read(&inputs[0]).unwrap(), before);
+
+    let output = dir.path().join("out.nc");
+    std::fs::write(&output, b"precious").unwrap();
+    let out = compute(&inputs, &output, &[], &[]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--overwrite"));
+    assert_eq!(std::fs::read(&output).unwrap(), b"precious");
+    let out = compute(&inputs, &output, &["--overwrite"], &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(netcdf_magic(&output));
+}
+
+/// NetCDF-4 files are HDF5 files: they start with the HDF5 signature.
+fn netcdf_magic(path: &Path) -> bool {
+    std::fs::read(path).is_ok_and(|bytes| bytes.starts_with(b"\x89HDF\r\n\x1a\n"))
+}

@@ -1,0 +1,241 @@
+//! Opening the run's files and reading their metadata (attributes, dimensions).
+
+use crate::error::{GridError, Result};
+use netcdf::AttributeValue;
+use std::collections::BTreeSet;
+use std::path::{Path, PathBuf};
+
+/// One opened input file.
+pub(crate) struct InputFile {
+    pub path: PathBuf,
+    pub nc: netcdf::File,
+}
+
+/// Expands paths and glob patterns (in the order given, each pattern's matches sorted),
+/// dropping duplicates, and opens every file.
+pub(crate) fn open_inputs(inputs: &[String]) -> Result<Vec<InputFile>> {
+    let mut paths: Vec<PathBuf> = Vec::new();
+    let mut seen = BTreeSet::new();
+    if inputs.is_empty() {
+        return Err(GridError::NoMatch {
+            pattern: "(no input given)".to_string(),
+        });
+    }
+    for input in inputs {
+        let is_pattern = input.contains(['*', '?', '[']);
+        let matches: Vec<PathBuf> = if is_pattern {
+            let mut found: Vec<PathBuf> = glob::glob(input)
+                .map_err(|e| GridError::BadPattern {
+                    pattern: input.clone(),
+                    message: e.to_string(),
+                })?
+                .filter_map(|entry| entry.ok())
+                .filter(|p| p.is_file())
+                .collect();
+            found.sort();
+            if found.is_empty() {
+                return Err(GridError::NoMatch {
+                    pattern: input.clone(),
+                });
+            }
+            found
+        } else {
+            let path = PathBuf::from(input);
+            if !path.exists() {
+                return Err(GridError::FileNotFound { path });
+            }
+            vec![path]
+        };
+        for path in matches {
+            let key = std::fs::canonicalize(&path).unwrap_or_else(|_| path.clone());
+            if seen.insert(key) {
+                paths.push(path);
+            }
+        }
+    }
+    paths
+        .into_iter()
+        .map(|path| {
+            let nc = netcdf::open(&path).map_err(|e| GridError::Unreadable {
+                path: path.clone(),
+                message: e.to_string(),
+            })?;
+            Ok(InputFile { path, nc })
+        })
+        .collect()
+}
+
+/// A text attribute of a variable, trimmed; None when absent or not text.
+pub(crate) fn attr_text(var: &netcdf::Variable, name: &str) -> Option<String> {
+    match var.attribute_value(name)? {
+        Ok(AttributeValue::Str(s)) => Some(s.trim().to_string()),
+        Ok(AttributeValue::Strs(v)) => Some(v.join(" ").trim().to_string()),
+        _ => None,
+    }
+}
+
+/// Numeric attribute values of a variable as f64 (empty when absent or text).
+pub(crate) fn attr_numbers(var: &netcdf::Variable, name: &str) -> Vec<f64> {
+    match var.attribute_value(name) {
+        Some(Ok(value)) => attribute_numbers(&value),
+        _ => Vec::new(),
+    }
+}
+
+/// Numeric content of an attribute value as f64.
+pub(crate) fn attribute_numbers(value: &AttributeValue) -> Vec<f64> {
+    use AttributeValue as A;
+    match value {
+        A::Uchar(x) => vec![f64::from(*x)],
+        A::Schar(x) => vec![f64::from(*x)],
+        A::Ushort(x) => vec![f64::from(*x)],
+        A::Short(x) => vec![f64::from(*x)],
+        A::Uint(x) => vec![f64::from(*x)],
+        A::Int(x) => vec![f64::from(*x)],
+        A::Ulonglong(x) => vec![*x as f64],
+        A::Longlong(x) => vec![*x as f64],
+        A::Float(x) => vec![f64::from(*x)],
+        A::Double(x) => vec![*x],
+        A::Uchars(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Schars(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Ushorts(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Shorts(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Uints(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Ints(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Ulonglongs(v) => v.iter().map(|x| *x as f64).collect(),
+        A::Longlongs(v) => v.iter().map(|x| *x as f64).collect(),
+        A::Floats(v) => v.iter().map(|x| f64::from(*x)).collect(),
+        A::Doubles(v) => v.clone(),
+        A::Str(_) | A::Strs(_) => Vec::new(),
+    }
+}
+
+/// Dimension names of a variable, in file order.
+pub(crate) fn dim_names(var: &netcdf::Variable) -> Vec<String> {
+    var.dimensions().iter().map(|d| d.name()).collect()
+}
+
+/// Dimension lengths of a variable, in file order.
+pub(crate) fn dim_lens(var: &netcdf::Variable) -> Vec<usize> {
+    var.dimensions().iter().map(|d| d.len()).collect()
+}
+
+/// Reads a whole (small) variable as f64: coordinates, bounds, parameters.
+pub(crate) fn read_all(path: &Path, var: &netcdf::Variable) -> Result<Vec<f64>> {
+    var.get_values::<f64, _>(..).map_err(|e| GridError::Read {
+        file: path.to_path_buf(),
+        variable: var.name(),
+        message: e.to_string(),
+    })
+}
+
+/// A variable that must exist in a file, with a clear error when it does not.
+pub(crate) fn require_var<'f>(
+    file: &'f InputFile,
+    name: &str,
+    what: &str,
+) -> Result<netcdf::Variable<'f>> {
+    file.nc.variable(name).ok_or_else(|| GridError::Metadata {
+        file: file.path.clone(),
+        variable: name.to_string(),
+        message: format!("{what} names this variable, but the file has no variable of that name"),
+    })
+}
+
+/// Reading mask and packing rules of one variable in one file (CF section 2.5.1, 8.1).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub(crate) struct MaskRule {
+    /// `_FillValue`, `missing_value` and the netCDF default fill when no `_FillValue` is set.
+    pub missing: Vec<f64>,
+    pub valid_min: Option<f64>,
+    pub valid_max: Option<f64>,
+    pub scale_factor: f64,
+    pub add_offset: f64,
+}
+
+/// Default fill values of netCDF-C (netcdf.h: NC_FILL_FLOAT, NC_FILL_DOUBLE, NC_FILL_INT, NC_FILL_SHORT, NC_FILL_BYTE).
+fn default_fill(var: &netcdf::Variable) -> Option<f64> {
+    use netcdf::types::{FloatType, IntType, NcVariableType};
+    match var.vartype() {
+        NcVariableType::Float(FloatType::F32) => Some(f64::from(9.969_21e36_f32)),
+        NcVariableType::Float(FloatType::F64) => Some(9.969_209_968_386_869e36),
+        NcVariableType::Int(IntType::I32) => Some(-2_147_483_647.0),
+        NcVariableType::Int(IntType::I16) => Some(-32767.0),
+        NcVariableType::Int(IntType::I8) => Some(-127.0),
+        _ => None,
+    }
+}
+
+impl MaskRule {
+    /// Reads the mask and packing attributes of a variable.
+    pub fn of(var: &netcdf::Variable) -> MaskRule {
+        let mut missing = attr_numbers(var, "_FillValue");
+        if missing.is_empty() {
+            missing.extend(default_fill(var));
+        }
+        missing.extend(attr_numbers(var, "missing_value"));
+        let range = attr_numbers(var, "valid_range");
+        let (mut valid_min, mut valid_max) = if range.len() == 2 {
+            (Some(range[0]), Some(range[1]))
+        } else {
+            (None, None)
+        };
+        if let Some(v) = attr_numbers(var, "valid_min").first() {
+            valid_min = Some(*v);
+        }
+        if let Some(v) = attr_numbers(var, "valid_max").first() {
+            valid_max = Some(*v);
+        }
+        MaskRule {
+            missing,
+            valid_min,
+            valid_max,
+            scale_factor: attr_numbers(var, "scale_factor").first().copied().unwrap_or(1.0),
+            add_offset: attr_numbers(var, "add_offset").first().copied().unwrap_or(0.0),
+        }
+    }
+
+    /// Masks (to NaN) and unpacks raw values in place.
+    pub fn apply(&self, values: &mut [f64]) {
+        let packed = self.scale_factor != 1.0 || self.add_offset != 0.0;
+        for v in values.iter_mut() {
+            let raw = *v;
+            let is_missing = !raw.is_finite()
+                || self.missing.iter().any(|m| same_value(raw, *m))
+                || self.valid_min.is_some_and(|lo| raw < lo)
+                || self.valid_max.is_some_and(|hi| raw > hi);
+            *v = if is_missing {
+                f64::NAN
+            } else if packed {
+                raw * self.scale_factor + self.add_offset
+            } else {
+                raw
+            };
+        }
+    }
+}
+
+/// Equality tolerant of a float32 fill value stored in a float64 attribute (or the reverse).
+fn same_value(a: f64, b: f64) -> bool {
+    a == b || (a - b).abs() <= 1e-6 * b.abs().max(f64::MIN_POSITIVE)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn mask_fill_missing_range_and_packing() {
+        let rule = MaskRule {
+            missing: vec![f64::from(1e20_f32), -999.0],
+            valid_min: Some(0.0),
+            valid_max: Some(50.0),
+            scale_factor: 2.0,
+            add_offset: 1.0,
+        };
+        let mut v = vec![1e20, -999.0, -1.0, 51.0, 10.0, f64::NAN];
+        rule.apply(&mut v);
+        assert!(v[..4].iter().all(|x| x.is_nan()) && v[5].is_nan());
+        assert_eq!(v[4], 21.0);
+    }
+}

@@ -1,0 +1,253 @@
+//! Builders for small NetCDF runs written inside the tests. All data here are
+//! synthetic (invented numbers shaped like ocean values), not model output.
+#![allow(dead_code)]
+
+use netcdf::AttributeValue;
+use std::path::{Path, PathBuf};
+
+/// A variable to write: name, dimension names, attributes, values in file order.
+pub struct Var {
+    pub name: String,
+    pub dims: Vec<String>,
+    pub attrs: Vec<(String, AttributeValue)>,
+    pub values: Vec<f64>,
+    pub float32: bool,
+}
+
+impl Var {
+    pub fn new(name: &str, dims: &[&str], values: Vec<f64>) -> Var {
+        Var {
+            name: name.to_string(),
+            dims: dims.iter().map(|d| d.to_string()).collect(),
+            attrs: Vec::new(),
+            values,
+            float32: false,
+        }
+    }
+    pub fn attr(mut self, key: &str, value: impl Into<AttributeValue>) -> Var {
+        self.attrs.push((key.to_string(), value.into()));
+        self
+    }
+    pub fn f32(mut self) -> Var {
+        self.float32 = true;
+        self
+    }
+}
+
+/// Writes a NetCDF-4 file with the given dimensions and variables.
+pub fn write_nc(path: &Path, dims: &[(&str, usize)], vars: &[Var]) {
+    let mut f = netcdf::create(path).unwrap();
+    for (name, len) in dims {
+        f.add_dimension(name, *len).unwrap();
+    }
+    for v in vars {
+        let dims: Vec<&str> = v.dims.iter().map(String::as_str).collect();
+        if v.float32 {
+            f.add_variable::<f32>(&v.name, &dims).unwrap();
+        } else {
+            f.add_variable::<f64>(&v.name, &dims).unwrap();
+        }
+        let mut var = f.variable_mut(&v.name).unwrap();
+        for (k, value) in &v.attrs {
+            var.put_attribute(k, value.clone()).unwrap();
+        }
+        if v.values.is_empty() {
+            continue;
+        }
+        if v.float32 {
+            let values: Vec<f32> = v.values.iter().map(|x| *x as f32).collect();
+            if dims.is_empty() {
+                var.put_value(values[0], ()).unwrap();
+            } else {
+                var.put_values(&values, ..).unwrap();
+            }
+        } else if dims.is_empty() {
+            var.put_value(v.values[0], ()).unwrap();
+        } else {
+            var.put_values(&v.values, ..).unwrap();
+        }
+    }
+    f.close().unwrap();
+}
+
+/// Grid of the synthetic runs.
+#[derive(Clone, Copy)]
+pub struct Grid {
+    pub levels: usize,
+    pub rows: usize,
+    pub cols: usize,
+}
+
+pub const GRID: Grid = Grid {
+    levels: 3,
+    rows: 4,
+    cols: 5,
+};
+
+pub fn lat(j: usize) -> f64 {
+    -30.0 + 10.0 * j as f64
+}
+pub fn lon(i: usize) -> f64 {
+    100.0 + 2.0 * i as f64
+}
+pub fn level_depth(k: usize) -> f64 {
+    [5.0, 100.0, 1000.0][k]
+}
+
+/// Synthetic values of each input at (time, level, row, col).
+pub fn value(name: &str, t: usize, k: usize, j: usize, i: usize) -> f64 {
+    let (t, k, j, i) = (t as f64, k as f64, j as f64, i as f64);
+    match name {
+        "temperature" => 20.0 - 7.0 * k + 0.1 * j + 0.01 * i + 0.5 * t,
+        "salinity" => 34.0 + 0.3 * k + 0.01 * i,
+        "dic" => 2.05 + 0.05 * k + 0.001 * t + 0.0001 * j,
+        "alkalinity" => 2.30 + 0.02 * k + 0.0002 * i,
+        "phosphate" => 0.0005 + 0.0005 * k,
+        "silicate" => 0.005 + 0.02 * k,
+        other => panic!("no synthetic field {other}"),
+    }
+}
+
+/// Axis letters used to order a data variable's dimensions: t, z, y, x.
+pub fn field_values(name: &str, order: &str, steps: std::ops::Range<usize>, g: Grid) -> Vec<f64> {
+    let len = |c: char| match c {
+        't' => steps.len(),
+        'z' => g.levels,
+        'y' => g.rows,
+        'x' => g.cols,
+        _ => unreachable!(),
+    };
+    let axes: Vec<char> = order.chars().collect();
+    let sizes: Vec<usize> = axes.iter().map(|c| len(*c)).collect();
+    let total: usize = sizes.iter().product();
+    let mut out = Vec::with_capacity(total);
+    for flat in 0..total {
+        let mut rest = flat;
+        let mut idx = [0usize; 4];
+        for d in (0..axes.len()).rev() {
+            let pos = rest % sizes[d];
+            rest /= sizes[d];
+            let slot = "tzyx".find(axes[d]).unwrap();
+            idx[slot] = pos;
+        }
+        out.push(value(name, steps.start + idx[0], idx[1], idx[2], idx[3]));
+    }
+    out
+}
+
+/// Dimension names for an axis-letter order.
+pub fn dims_of(order: &str) -> Vec<&'static str> {
+    order
+        .chars()
+        .map(|c| match c {
+            't' => "time",
+            'z' => "lev",
+            'y' => "lat",
+            'x' => "lon",
+            _ => unreachable!(),
+        })
+        .collect()
+}
+
+/// Coordinate variables of a rectilinear z-level grid with a time axis.
+pub fn coordinates(g: Grid, times: &[f64], time_units: &str, calendar: &str) -> Vec<Var> {
+    vec![
+        Var::new("time", &["time"], times.to_vec())
+            .attr("units", time_units)
+            .attr("calendar", calendar)
+            .attr("standard_name", "time")
+            .attr("axis", "T"),
+        Var::new("lev", &["lev"], (0..g.levels).map(level_depth).collect())
+            .attr("units", "m")
+            .attr("positive", "down")
+            .attr("axis", "Z")
+            .attr("standard_name", "depth"),
+        Var::new("lat", &["lat"], (0..g.rows).map(lat).collect())
+            .attr("units", "degrees_north")
+            .attr("standard_name", "latitude"),
+        Var::new("lon", &["lon"], (0..g.cols).map(lon).collect())
+            .attr("units", "degrees_east")
+            .attr("standard_name", "longitude"),
+    ]
+}
+
+/// A data variable of the synthetic run in the given dimension order.
+pub fn data_var(
+    var_name: &str,
+    field: &str,
+    standard_name: &str,
+    units: &str,
+    order: &str,
+    steps: std::ops::Range<usize>,
+    g: Grid,
+) -> Var {
+    let mut v = Var::new(var_name, &dims_of(order), field_values(field, order, steps, g))
+        .attr("units", units)
+        .attr("_FillValue", 1e20_f32)
+        .f32();
+    if !standard_name.is_empty() {
+        v = v.attr("standard_name", standard_name);
+    }
+    v
+}
+
+pub fn dims(g: Grid, steps: usize) -> Vec<(&'static str, usize)> {
+    vec![
+        ("time", steps),
+        ("lev", g.levels),
+        ("lat", g.rows),
+        ("lon", g.cols),
+    ]
+}
+
+/// One file per variable, CMIP style (`<var>_<tag>.nc`), for steps `steps`.
+pub fn cmip_file(dir: &Path, var: &str, tag: &str, steps: std::ops::Range<usize>, times: &[f64], calendar: &str) -> PathBuf {
+    let (field, standard, units) = match var {
+        "dissic" => ("dic", "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water", "mol m-3"),
+        "talk" => ("alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3"),
+        "thetao" => ("temperature", "sea_water_potential_temperature", "degC"),
+        "so" => ("salinity", "sea_water_salinity", "0.001"),
+        "po4" => ("phosphate", "mole_concentration_of_phosphate_in_sea_water", "mol m-3"),
+        "si" => ("silicate", "mole_concentration_of_silicate_in_sea_water", "mol m-3"),
+        other => panic!("unknown CMIP var {other}"),
+    };
+    let path = dir.join(format!("{var}_{tag}.nc"));
+    let mut vars = coordinates(GRID, times, "days since 2015-01-01", calendar);
+    vars.push(data_var(var, field, standard, units, "tzyx", steps.clone(), GRID));
+    write_nc(&path, &dims(GRID, steps.len()), &vars);
+    path
+}
+
+/// Monthly mid-points of the noleap calendar, days since 2015-01-01, for `n` months.
+pub fn noleap_months(n: usize) -> Vec<f64> {
+    const LENGTHS: [f64; 12] = [31., 28., 31., 30., 31., 30., 31., 31., 30., 31., 30., 31.];
+    let mut start = 0.0;
+    (0..n)
+        .map(|m| {
+            let len = LENGTHS[m % 12];
+            let mid = start + len / 2.0;
+            start += len;
+            mid
+        })
+        .collect()
+}
+
+pub fn spec(inputs: Vec<String>) -> acidscape_gridio::RunSpec {
+    acidscape_gridio::RunSpec {
+        inputs,
+        mapping: Default::default(),
+        density: acidscape_gridio::DensityChoice::Reference(1025.0),
+    }
+}
+
+/// Writes the four required CMIP variables over `n` steps into two files each.
+pub fn cmip_run(dir: &Path, n: usize, calendar: &str) -> Vec<PathBuf> {
+    let times = noleap_months(n);
+    let half = n / 2;
+    let mut out = Vec::new();
+    for var in ["dissic", "talk", "thetao", "so"] {
+        out.push(cmip_file(dir, var, "a", 0..half, &times[..half], calendar));
+        out.push(cmip_file(dir, var, "b", half..n, &times[half..], calendar));
+    }
+    out
+}

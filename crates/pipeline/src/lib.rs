@@ -1,0 +1,24 @@
+//! Streams a model run through the carbonate solver in memory-bounded slabs and writes
+//! the indicators as CF NetCDF-4.
+//!
+//! A job reads one slab (one time step × all levels × a block of rows) on a reader thread,
+//! solves every cell on the rayon pool, and writes on the calling thread, the three
+//! overlapping through bounded channels; NetCDF calls are serialised by the `netcdf` crate,
+//! so only reading and writing wait on each other. See [`plan`] for the memory model.
+
+pub mod cells;
+mod error;
+pub mod indicators;
+pub mod job;
+pub mod memory;
+pub mod output;
+pub mod plan;
+pub mod resume;
+
+pub use cells::{CellFlag, FlagCounts, FLAG_FILL, FLAG_MEANINGS, FLAG_VALUES, VALUE_FILL};
+pub use error::PipelineError;
+pub use indicators::{parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale};
+pub use job::{plan_job, run_job, JobOptions, JobSummary, NoProgress, Progress};
+pub use memory::{format_bytes, parse_memory_size};
+pub use output::{partial_path, progress_path, FLAG_VARIABLE};
+pub use plan::{plan_slabs, SlabPlan};

@@ -1,0 +1,256 @@
+//! How a run is split into slabs (one time step × all levels × a block of rows) so that
+//! the memory held at once stays under a budget, whatever the number of time steps.
+//!
+//! Memory model (bytes), the sum of what is alive at the busiest moment:
+//! - inputs: a slab of inputs holds 9 f64 arrays (temperature, salinity, pressure, DIC,
+//!   alkalinity, phosphate, silicate, density, depth) = 72 B per cell, plus an allowance
+//!   of 72 B per cell for the reader's own scratch while it converts units; up to
+//!   [`INPUT_SLABS_IN_FLIGHT`] slabs exist at once (one being read, one queued, one being solved);
+//! - outputs: 4 B per cell per indicator (f32) + 1 B quality flag; up to
+//!   [`OUTPUT_SLABS_IN_FLIGHT`] at once (one being filled, one queued, one being written);
+//! - a fixed [`FIXED_OVERHEAD_BYTES`] for the libraries, HDF5 chunk caches and threads.
+
+use crate::memory::format_bytes;
+use crate::PipelineError;
+use std::fmt;
+use std::ops::Range;
+
+/// Bytes per cell of one slab of converted inputs (9 f64 arrays).
+pub const INPUT_BYTES_PER_CELL: u64 = 9 * 8;
+/// Allowance per cell for the reader's scratch while it reads and converts.
+pub const READ_SCRATCH_BYTES_PER_CELL: u64 = 9 * 8;
+/// Slabs of inputs alive at once: being read, queued, being solved.
+pub const INPUT_SLABS_IN_FLIGHT: u64 = 3;
+/// Slabs of outputs alive at once: being filled, queued, being written.
+pub const OUTPUT_SLABS_IN_FLIGHT: u64 = 3;
+/// Libraries, HDF5 chunk caches, thread stacks: a fixed allowance.
+pub const FIXED_OVERHEAD_BYTES: u64 = 128 * 1024 * 1024;
+/// Target size of one output chunk of one variable (f32), so readers of the output can
+/// fetch small regions without decompressing whole time steps.
+pub const CHUNK_TARGET_BYTES: u64 = 4 * 1024 * 1024;
+
+/// The split of a run into slabs, and the chunk shape of the output variables.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct SlabPlan {
+    /// Grid shape [levels, rows, cols].
+    pub shape: [usize; 3],
+    /// Time steps in the run.
+    pub steps: usize,
+    /// Rows of the grid in one slab (the last slab of a step may hold fewer).
+    pub rows_per_slab: usize,
+    /// Output chunk shape [levels, rows, cols] for one time step.
+    pub chunk: [usize; 3],
+    /// Output variables (indicators) per cell, not counting the quality flag.
+    pub output_fields: usize,
+    /// The budget the plan was made for, in bytes.
+    pub budget_bytes: u64,
+}
+
+impl SlabPlan {
+    /// Slabs in one time step.
+    pub fn slabs_per_step(&self) -> usize {
+        self.shape[1].div_ceil(self.rows_per_slab)
+    }
+
+    /// Cells in one grid row (all levels × all columns).
+    pub fn cells_per_row(&self) -> u64 {
+        (self.shape[0] * self.shape[2]) as u64
+    }
+
+    /// Cells in one time step.
+    pub fn cells_per_step(&self) -> u64 {
+        self.cells_per_row() * self.shape[1] as u64
+    }
+
+    /// Bytes per cell of a slab across everything in flight (see the module notes).
+    pub fn bytes_per_cell(&self) -> u64 {
+        bytes_per_cell(self.output_fields)
+    }
+
+    /// Estimated peak memory of a compute job with this plan.
+    pub fn estimated_peak_bytes(&self) -> u64 {
+        FIXED_OVERHEAD_BYTES + self.rows_per_slab as u64 * self.cells_per_row() * self.bytes_per_cell()
+    }
+
+    /// Makes slabs at most `limit` rows (at least one), with chunks no taller than a slab.
+    pub fn limit_rows_per_slab(&mut self, limit: usize) {
+        self.rows_per_slab = self.rows_per_slab.min(limit.max(1));
+        self.chunk[1] = self.chunk[1].min(self.rows_per_slab);
+        self.rows_per_slab -= self.rows_per_slab % self.chunk[1];
+    }
+
+    /// Every slab from `first_step` on, in order: (time step, rows).
+    pub fn slabs(&self, first_step: usize) -> impl Iterator<Item = (usize, Range<usize>)> + '_ {
+        let rows = self.shape[1];
+        let per = self.rows_per_slab;
+        (first_step..self.steps).flat_map(move |step| {
+            (0..rows)
+                .step_by(per)
+                .map(move |start| (step, start..(start + per).min(rows)))
+        })
+    }
+}
+
+impl fmt::Display for SlabPlan {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let [levels, rows, cols] = self.shape;
+        writeln!(
+            f,
+            "Grid {levels} levels x {rows} rows x {cols} columns, {} time step(s).",
+            self.steps
+        )?;
+        writeln!(
+            f,
+            "Under a memory budget of {}: slabs of 1 time step x {levels} levels x {} rows x {cols} columns ({} cells),",
+            format_bytes(self.budget_bytes),
+            self.rows_per_slab,
+            self.rows_per_slab as u64 * self.cells_per_row()
+        )?;
+        writeln!(
+            f,
+            "{} slab(s) per time step, {} in all; estimated peak memory {} ({} B per cell in flight for {} indicator(s), plus {} fixed).",
+            self.slabs_per_step(),
+            self.slabs_per_step() * self.steps,
+            format_bytes(self.estimated_peak_bytes()),
+            self.bytes_per_cell(),
+            self.output_fields,
+            format_bytes(FIXED_OVERHEAD_BYTES)
+        )?;
+        write!(
+            f,
+            "Output chunks: 1 time step x {} levels x {} rows x {} columns.",
+            self.chunk[0], self.chunk[1], self.chunk[2]
+        )
+    }
+}
+
+fn bytes_per_cell(output_fields: usize) -> u64 {
+    INPUT_SLABS_IN_FLIGHT * (INPUT_BYTES_PER_CELL + READ_SCRATCH_BYTES_PER_CELL)
+        + OUTPUT_SLABS_IN_FLIGHT * (4 * output_fields as u64 + 1)
+}
+
+/// Splits a run of `shape` = [levels, rows, cols] and `steps` time steps into slabs that
+/// fit `budget_bytes`, for `output_fields` indicators. Fails when even one row does not fit.
+pub fn plan_slabs(
+    shape: [usize; 3],
+    steps: usize,
+    output_fields: usize,
+    budget_bytes: u64,
+) -> Result<SlabPlan, PipelineError> {
+    let [levels, rows, cols] = shape;
+    if levels == 0 || rows == 0 || cols == 0 || steps == 0 {
+        return Err(PipelineError::Option {
+            option: "run".into(),
+            message: format!(
+                "the grid has no cells ({levels} levels x {rows} rows x {cols} columns, {steps} steps)"
+            ),
+        });
+    }
+    let row_bytes = (levels * cols) as u64 * bytes_per_cell(output_fields);
+    let minimum = FIXED_OVERHEAD_BYTES + row_bytes;
+    if budget_bytes < minimum {
+        return Err(PipelineError::Option {
+            option: "--memory-budget".into(),
+            message: format!(
+                "{} is too small for this grid: one row of slab ({} levels x {cols} columns) needs {} plus {} fixed; give at least {}",
+                format_bytes(budget_bytes),
+                levels,
+                format_bytes(row_bytes),
+                format_bytes(FIXED_OVERHEAD_BYTES),
+                format_bytes(minimum)
+            ),
+        });
+    }
+    let fitting_rows = ((budget_bytes - FIXED_OVERHEAD_BYTES) / row_bytes).min(rows as u64) as usize;
+
+    // Chunks: whole rows of all levels when a row is small, else one row split by levels.
+    let chunk_row_bytes = (levels * cols * 4) as u64;
+    let chunk = if chunk_row_bytes > CHUNK_TARGET_BYTES {
+        let levels_fit = (CHUNK_TARGET_BYTES / (cols as u64 * 4)).max(1) as usize;
+        [levels_fit.min(levels), 1, cols]
+    } else {
+        // Even chunks: rows split into as few pieces as the target allows.
+        let rows_fit = ((CHUNK_TARGET_BYTES / chunk_row_bytes) as usize).min(fitting_rows).max(1);
+        let pieces = rows.div_ceil(rows_fit);
+        [levels, rows.div_ceil(pieces), cols]
+    };
+    // Slab boundaries fall on chunk boundaries, so no chunk is written twice.
+    let rows_per_slab = if fitting_rows >= rows {
+        rows
+    } else {
+        ((fitting_rows / chunk[1]) * chunk[1]).max(chunk[1])
+    };
+    Ok(SlabPlan {
+        shape,
+        steps,
+        rows_per_slab,
+        chunk,
+        output_fields,
+        budget_bytes,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GIB: u64 = 1024 * 1024 * 1024;
+    const MIB: u64 = 1024 * 1024;
+
+    #[test]
+    fn respects_the_budget_and_covers_every_row_once() {
+        // 1/4° global-like grid: 75 levels x 720 rows x 1440 columns (synthetic sizes).
+        for budget in [256 * MIB, 512 * MIB, GIB, 2 * GIB, 16 * GIB] {
+            let plan = plan_slabs([75, 720, 1440], 3, 5, budget).unwrap();
+            assert!(plan.estimated_peak_bytes() <= budget, "{plan}");
+            assert!(plan.rows_per_slab >= 1);
+            assert_eq!(plan.rows_per_slab % plan.chunk[1], 0);
+            let mut seen = vec![0u32; 720 * 3];
+            for (step, rows) in plan.slabs(0) {
+                assert!(rows.len() <= plan.rows_per_slab);
+                for row in rows {
+                    seen[step * 720 + row] += 1;
+                }
+            }
+            assert!(seen.iter().all(|&n| n == 1));
+        }
+    }
+
+    #[test]
+    fn a_larger_budget_gives_larger_slabs_until_one_step_fits() {
+        let small = plan_slabs([50, 180, 360], 12, 5, 256 * MIB).unwrap();
+        let large = plan_slabs([50, 180, 360], 12, 5, 8 * GIB).unwrap();
+        assert!(small.rows_per_slab < large.rows_per_slab);
+        assert_eq!(large.rows_per_slab, 180);
+        assert_eq!(large.slabs_per_step(), 1);
+    }
+
+    #[test]
+    fn peak_does_not_depend_on_time_steps() {
+        let few = plan_slabs([50, 180, 360], 12, 5, GIB).unwrap();
+        let many = plan_slabs([50, 180, 360], 1200, 5, GIB).unwrap();
+        assert_eq!(few.estimated_peak_bytes(), many.estimated_peak_bytes());
+    }
+
+    #[test]
+    fn refuses_a_budget_below_one_row() {
+        let err = plan_slabs([75, 720, 1440], 1, 5, 130 * MIB).unwrap_err().to_string();
+        assert!(err.contains("too small"), "{err}");
+        assert!(err.contains("at least"), "{err}");
+    }
+
+    #[test]
+    fn chunks_stay_near_the_target_for_wide_rows() {
+        // 100 levels x 40000 columns x 4 B = 16 MB per row: chunks split levels.
+        let plan = plan_slabs([100, 10, 40000], 1, 1, 64 * GIB).unwrap();
+        assert_eq!(plan.chunk[1], 1);
+        assert!((plan.chunk[0] * plan.chunk[2] * 4) as u64 <= CHUNK_TARGET_BYTES);
+    }
+
+    #[test]
+    fn resumes_from_a_later_step() {
+        let plan = plan_slabs([2, 10, 4], 3, 1, GIB).unwrap();
+        let slabs: Vec<_> = plan.slabs(2).collect();
+        assert_eq!(slabs, vec![(2, 0..10)]);
+    }
+}

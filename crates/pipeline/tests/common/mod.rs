@@ -1,0 +1,159 @@
+//! A small CMIP-style run written by the tests themselves (SYNTHETIC data, invented
+//! values; layout and attributes follow the CF conventions and CMIP/OMIP variable names).
+
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+
+pub const LEVELS: usize = 3;
+pub const ROWS: usize = 4;
+pub const COLS: usize = 5;
+pub const FILL: f32 = 1.0e20;
+/// Density used to write per-mass values as mol m-3 (synthetic choice).
+pub const DENSITY: f32 = 1025.0;
+
+/// Cells pushed out of range on purpose: (level, row, col).
+pub const LAND_COLUMN: (usize, usize) = (0, 0);
+pub const HOT_CELL: (usize, usize, usize) = (0, 1, 1); // 40 °C
+pub const SALTY_CELL: (usize, usize, usize) = (0, 1, 2); // S = 50
+pub const NEGATIVE_ALKALINITY_CELL: (usize, usize, usize) = (1, 2, 1);
+pub const MISSING_DIC_CELL: (usize, usize, usize) = (1, 2, 2);
+
+pub fn index(level: usize, row: usize, col: usize) -> usize {
+    (level * ROWS + row) * COLS + col
+}
+
+/// Writes the run as `files` files split along time (SYNTHETIC data), returns their paths.
+pub fn write_cmip_style_run(dir: &Path, steps: usize, files: usize) -> Vec<PathBuf> {
+    let per_file = steps.div_ceil(files);
+    let mut paths = Vec::new();
+    for (part, first) in (0..steps).step_by(per_file).enumerate() {
+        let last = (first + per_file).min(steps);
+        let path = dir.join(format!("synthetic_run_part{part}.nc"));
+        write_file(&path, first..last);
+        paths.push(path);
+    }
+    paths
+}
+
+fn write_file(path: &Path, steps: std::ops::Range<usize>) {
+    let mut file = netcdf::create(path).unwrap();
+    file.add_attribute("Conventions", "CF-1.10").unwrap();
+    file.add_attribute("comment", "SYNTHETIC test data (invented values)").unwrap();
+    file.add_unlimited_dimension("time").unwrap();
+    file.add_dimension("lev", LEVELS).unwrap();
+    file.add_dimension("lat", ROWS).unwrap();
+    file.add_dimension("lon", COLS).unwrap();
+    file.add_dimension("bnds", 2).unwrap();
+
+    let times: Vec<f64> = steps.clone().map(|s| 15.5 + 30.0 * s as f64).collect();
+    let bounds: Vec<f64> = steps
+        .clone()
+        .flat_map(|s| [30.0 * s as f64, 30.0 * (s + 1) as f64])
+        .collect();
+    {
+        let mut v = file.add_variable::<f64>("time", &["time"]).unwrap();
+        v.put_attribute("standard_name", "time").unwrap();
+        v.put_attribute("axis", "T").unwrap();
+        v.put_attribute("units", "days since 2015-01-01 00:00:00").unwrap();
+        v.put_attribute("calendar", "360_day").unwrap();
+        v.put_attribute("bounds", "time_bnds").unwrap();
+        v.put_values(&times, 0..times.len()).unwrap();
+    }
+    {
+        let mut v = file.add_variable::<f64>("time_bnds", &["time", "bnds"]).unwrap();
+        v.put_values(&bounds, (0..times.len(), 0..2)).unwrap();
+    }
+    let depths = [5.0, 100.0, 1000.0];
+    let depth_bounds = [0.0, 10.0, 10.0, 200.0, 200.0, 2000.0];
+    {
+        let mut v = file.add_variable::<f64>("lev", &["lev"]).unwrap();
+        v.put_attribute("standard_name", "depth").unwrap();
+        v.put_attribute("units", "m").unwrap();
+        v.put_attribute("positive", "down").unwrap();
+        v.put_attribute("axis", "Z").unwrap();
+        v.put_attribute("bounds", "lev_bnds").unwrap();
+        v.put_values(&depths, 0..LEVELS).unwrap();
+        let mut b = file.add_variable::<f64>("lev_bnds", &["lev", "bnds"]).unwrap();
+        b.put_values(&depth_bounds, (0..LEVELS, 0..2)).unwrap();
+    }
+    for (name, axis, units, standard, centres) in [
+        ("lat", "Y", "degrees_north", "latitude", vec![-30.0, -10.0, 10.0, 30.0]),
+        ("lon", "X", "degrees_east", "longitude", vec![10.0, 30.0, 50.0, 70.0, 90.0]),
+    ] {
+        let bounds: Vec<f64> = centres.iter().flat_map(|c| [c - 10.0, c + 10.0]).collect();
+        let n = centres.len();
+        let mut v = file.add_variable::<f64>(name, &[name]).unwrap();
+        v.put_attribute("standard_name", standard).unwrap();
+        v.put_attribute("units", units).unwrap();
+        v.put_attribute("axis", axis).unwrap();
+        v.put_attribute("bounds", format!("{name}_bnds")).unwrap();
+        v.put_values(&centres, 0..n).unwrap();
+        let mut b = file.add_variable::<f64>(&format!("{name}_bnds"), &[name, "bnds"]).unwrap();
+        b.put_values(&bounds, (0..n, 0..2)).unwrap();
+    }
+
+    let variables = [
+        ("thetao", "sea_water_potential_temperature", "degC"),
+        ("so", "sea_water_salinity", "0.001"),
+        ("dissic", "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water", "mol m-3"),
+        ("talk", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3"),
+    ];
+    for (name, standard, units) in variables {
+        let mut v = file
+            .add_variable::<f32>(name, &["time", "lev", "lat", "lon"])
+            .unwrap();
+        v.set_fill_value(FILL).unwrap();
+        v.put_attribute("standard_name", standard).unwrap();
+        v.put_attribute("units", units).unwrap();
+        v.put_attribute("missing_value", FILL).unwrap();
+        v.put_attribute("cell_methods", "area: mean where sea time: mean").unwrap();
+        for (local, step) in steps.clone().enumerate() {
+            let values: Vec<f32> = (0..LEVELS * ROWS * COLS)
+                .map(|cell| value(name, step, cell))
+                .collect();
+            v.put_values(
+                &values,
+                (local..local + 1, 0..LEVELS, 0..ROWS, 0..COLS),
+            )
+            .unwrap();
+        }
+    }
+}
+
+/// The synthetic value of `name` at `step` and flat cell index (level, row, col order).
+pub fn value(name: &str, step: usize, cell: usize) -> f32 {
+    let level = cell / (ROWS * COLS);
+    let row = (cell / COLS) % ROWS;
+    let col = cell % COLS;
+    if (row, col) == LAND_COLUMN {
+        return FILL;
+    }
+    let trend = step as f32;
+    let position = (row * COLS + col) as f32;
+    let per_volume = |micromol_per_kg: f32| micromol_per_kg * 1e-6 * DENSITY;
+    match name {
+        "thetao" if (level, row, col) == HOT_CELL => 40.0,
+        "thetao" => [24.0, 12.0, 3.0][level] - 0.3 * position,
+        "so" if (level, row, col) == SALTY_CELL => 50.0,
+        "so" => 34.5 + 0.05 * position,
+        "dissic" if (level, row, col) == MISSING_DIC_CELL => FILL,
+        "dissic" => per_volume([1950.0, 2100.0, 2250.0][level] + 2.0 * trend + position),
+        "talk" if (level, row, col) == NEGATIVE_ALKALINITY_CELL => -0.5,
+        "talk" => per_volume([2300.0, 2330.0, 2360.0][level] + 0.5 * position),
+        _ => panic!("no synthetic variable {name}"),
+    }
+}
+
+/// Reads a whole variable of an output file.
+pub fn read_f32(path: &Path, name: &str) -> Vec<f32> {
+    let file = netcdf::open(path).unwrap();
+    let var = file.variable(name).unwrap_or_else(|| panic!("no variable {name}"));
+    var.get_values::<f32, _>(..).unwrap()
+}
+
+pub fn read_i8(path: &Path, name: &str) -> Vec<i8> {
+    let file = netcdf::open(path).unwrap();
+    let var = file.variable(name).unwrap_or_else(|| panic!("no variable {name}"));
+    var.get_values::<i8, _>(..).unwrap()
+}
