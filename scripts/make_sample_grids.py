@@ -18,7 +18,8 @@ Usage (from the repository root):
         --runs cmip-style,curvilinear --size 40 30 15 --steps 4
 
     # benchmark preset: 360 x 180 x 50 levels, 12 monthly steps, cmip-style
-    # only, written to the directory given (never commit it: ~GBs)
+    # only, lossless, written to the directory given (~200 MB per pathway;
+    # never commit it)
     python3 scripts/make_sample_grids.py --large /scratch/acidscape-bench
 
 Runs:
@@ -300,10 +301,7 @@ def open_dataset(path, title, pathway, run, history, extra=None):
 def add_var(ds, name, dims, attrs, data, dtype="f4", digits=None, fill=True, chunks=None):
     """Create a deflated variable, set its attributes and write data (NaN becomes _FillValue)."""
     kwargs = {"zlib": True, "complevel": 6, "shuffle": True}
-    if fill:
-        kwargs["fill_value"] = FILL
-    else:
-        kwargs["fill_value"] = False
+    kwargs["fill_value"] = FILL if fill else False
     if digits is not None:
         kwargs["least_significant_digit"] = digits
     if chunks is not None:
@@ -324,7 +322,7 @@ def write(var, data, index=slice(None)):
     var[index] = arr
 
 
-def add_time(ds, axis, cell_methods_note=None):
+def add_time(ds, axis):
     ds.createDimension("time", None)
     if "bnds" not in ds.dimensions:
         ds.createDimension("bnds", 2)

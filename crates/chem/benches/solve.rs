@@ -4,26 +4,10 @@ use acidscape_chem::{equilibrium_constants, solve, Conditions, ConstantChoice, I
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::hint::black_box;
 
-/// Synthetic cells spanning the ocean: surface to 6000 dbar, -1 to 30 °C, S 32-37.
+mod common;
+
 fn synthetic_cells(count: usize) -> Vec<(Conditions, InputPair)> {
-    (0..count)
-        .map(|i| {
-            let f = i as f64 / count as f64;
-            let depth_fraction = (i % 37) as f64 / 36.0;
-            let conditions = Conditions {
-                temperature_c: 30.0 - 31.0 * depth_fraction.sqrt() + f,
-                salinity: 32.0 + 5.0 * ((i * 7919) % 101) as f64 / 100.0,
-                pressure_dbar: 6000.0 * depth_fraction,
-                phosphate: 0.2 + 2.5 * depth_fraction,
-                silicate: 2.0 + 140.0 * depth_fraction,
-            };
-            let pair = InputPair::AlkalinityDic {
-                alkalinity: 2280.0 + 100.0 * depth_fraction + 20.0 * f,
-                dic: 1950.0 + 330.0 * depth_fraction + 10.0 * f,
-            };
-            (conditions, pair)
-        })
-        .collect()
+    (0..count).map(common::synthetic_cell).collect()
 }
 
 fn bench_solve(c: &mut Criterion) {

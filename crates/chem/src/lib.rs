@@ -4,6 +4,25 @@
 //!
 //! Units at the interface: concentrations µmol kg-1, in-situ temperature °C, practical salinity,
 //! sea pressure dbar (0 at the surface), pH on the total scale, pCO2 and fCO2 in µatm.
+//!
+//! # Methods
+//! - K0 and the CO2 fugacity coefficient: Weiss 1974 (fugacity at 1 atm, (1 - xCO2)² ≈ 1).
+//! - K1, K2: Lueker et al. 2000 (total scale, default); Millero 2010 and Waters, Millero & Woosley
+//!   2014 (seawater scale; coefficients from memory, checked against the verified Millero et al.
+//!   2006 fit of the same data).
+//! - KB: Dickson 1990 (total); KS: Dickson 1990 (free); KW, K1P, K2P, K3P, KSi: Millero 1995 as
+//!   given on the total scale by Dickson, Sabine & Christian 2007; KF: Perez & Fraga 1987 (total,
+//!   default) or Dickson & Riley 1979 (free).
+//! - Totals from salinity: boron Uppström 1974 (default) or Lee et al. 2010; sulfate Morris & Riley
+//!   1966; fluoride Riley 1965; calcium Riley & Tongudai 1967.
+//! - Ksp of calcite and aragonite: Mucci 1983.
+//! - Pressure: Millero 1995 for every constant (KSi takes the KB coefficients; KB a2 = -2.608e-3,
+//!   the Millero 1979 sign). KS and KF are corrected on the free scale first; the acid constants are
+//!   corrected on the seawater scale and converted to the total scale with the in-situ KS and KF.
+//! - Alkalinity-pH equation (Dickson 1981 definition, with borate, water, phosphate, silicate,
+//!   HSO4- and HF) solved by Newton steps inside the always-valid bracket of Munhoven 2013, with
+//!   bisection fallback; DIC+pH, TA+pH and DIC+pCO2 in closed form.
+//! - Revelle factor: analytical ∂ln pCO2/∂ln DIC at constant alkalinity.
 
 mod choice;
 pub mod constants;
@@ -22,15 +41,15 @@ pub use validity::Validity;
 /// salinity; sea pressure dbar (0 at surface).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Conditions {
-    /// In-situ temperature [°C].
+    /// In-situ temperature \[°C\].
     pub temperature_c: f64,
-    /// Practical salinity [-].
+    /// Practical salinity \[-\].
     pub salinity: f64,
-    /// Sea (gauge) pressure [dbar], 0 at the surface.
+    /// Sea (gauge) pressure \[dbar\], 0 at the surface.
     pub pressure_dbar: f64,
-    /// Total phosphate [µmol kg-1].
+    /// Total phosphate \[µmol kg-1\].
     pub phosphate: f64,
-    /// Total silicate [µmol kg-1].
+    /// Total silicate \[µmol kg-1\].
     pub silicate: f64,
 }
 
@@ -38,15 +57,15 @@ pub struct Conditions {
 /// scale, µatm.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum InputPair {
-    /// Total alkalinity and dissolved inorganic carbon [µmol kg-1].
+    /// Total alkalinity and dissolved inorganic carbon \[µmol kg-1\].
     AlkalinityDic { alkalinity: f64, dic: f64 },
-    /// Total alkalinity [µmol kg-1] and pH (total scale).
+    /// Total alkalinity \[µmol kg-1\] and pH (total scale).
     AlkalinityPh { alkalinity: f64, ph_total: f64 },
-    /// Dissolved inorganic carbon [µmol kg-1] and pH (total scale).
+    /// Dissolved inorganic carbon \[µmol kg-1\] and pH (total scale).
     DicPh { dic: f64, ph_total: f64 },
-    /// Total alkalinity [µmol kg-1] and pCO2 [µatm] at in-situ temperature and 1 atm.
+    /// Total alkalinity \[µmol kg-1\] and pCO2 \[µatm\] at in-situ temperature and 1 atm.
     AlkalinityPco2 { alkalinity: f64, pco2_uatm: f64 },
-    /// Dissolved inorganic carbon [µmol kg-1] and pCO2 [µatm] at in-situ temperature and 1 atm.
+    /// Dissolved inorganic carbon \[µmol kg-1\] and pCO2 \[µatm\] at in-situ temperature and 1 atm.
     DicPco2 { dic: f64, pco2_uatm: f64 },
 }
 
@@ -57,7 +76,7 @@ pub enum InputPair {
 /// in-situ pCO2); every other quantity is at in-situ pressure.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Solution {
-    /// [H+] on the total scale [mol kg-1].
+    /// \[H+\] on the total scale \[mol kg-1\].
     pub h_total: f64,
     /// pH, total scale.
     pub ph_total: f64,
@@ -65,39 +84,39 @@ pub struct Solution {
     pub ph_seawater: f64,
     /// pH, free scale.
     pub ph_free: f64,
-    /// Dissolved inorganic carbon [µmol kg-1].
+    /// Dissolved inorganic carbon \[µmol kg-1\].
     pub dic: f64,
-    /// Total alkalinity [µmol kg-1].
+    /// Total alkalinity \[µmol kg-1\].
     pub alkalinity: f64,
-    /// CO2* (dissolved CO2 + H2CO3) [µmol kg-1].
+    /// CO2* (dissolved CO2 + H2CO3) \[µmol kg-1\].
     pub co2: f64,
-    /// HCO3- [µmol kg-1].
+    /// HCO3- \[µmol kg-1\].
     pub bicarbonate: f64,
-    /// CO3-- [µmol kg-1].
+    /// CO3-- \[µmol kg-1\].
     pub carbonate: f64,
-    /// CO2 partial pressure [µatm].
+    /// CO2 partial pressure \[µatm\].
     pub pco2_uatm: f64,
-    /// CO2 fugacity [µatm].
+    /// CO2 fugacity \[µatm\].
     pub fco2_uatm: f64,
-    /// Saturation state of aragonite, [Ca][CO3]/Ksp*.
+    /// Saturation state of aragonite, \[Ca\]\[CO3\]/Ksp*.
     pub omega_aragonite: f64,
-    /// Saturation state of calcite, [Ca][CO3]/Ksp*.
+    /// Saturation state of calcite, \[Ca\]\[CO3\]/Ksp*.
     pub omega_calcite: f64,
     /// Revelle factor (∂ln pCO2/∂ln DIC at constant alkalinity), evaluated analytically.
     pub revelle_factor: f64,
-    /// Borate alkalinity [B(OH)4-] [µmol kg-1], positive.
+    /// Borate alkalinity \[B(OH)4-\] \[µmol kg-1\], positive.
     pub alk_borate: f64,
-    /// Hydroxide alkalinity [OH-] [µmol kg-1], positive.
+    /// Hydroxide alkalinity \[OH-\] \[µmol kg-1\], positive.
     pub alk_hydroxide: f64,
-    /// Phosphate alkalinity [HPO4--] + 2[PO4---] - [H3PO4] [µmol kg-1].
+    /// Phosphate alkalinity \[HPO4--\] + 2\[PO4---\] - \[H3PO4\] \[µmol kg-1\].
     pub alk_phosphate: f64,
-    /// Silicate alkalinity [SiO(OH)3-] [µmol kg-1], positive.
+    /// Silicate alkalinity \[SiO(OH)3-\] \[µmol kg-1\], positive.
     pub alk_silicate: f64,
-    /// -[HSO4-] [µmol kg-1]: negative, as it enters alkalinity.
+    /// -\[HSO4-\] \[µmol kg-1\]: negative, as it enters alkalinity.
     pub alk_hydrogen_sulfate: f64,
-    /// -[HF] [µmol kg-1]: negative, as it enters alkalinity.
+    /// -\[HF\] \[µmol kg-1\]: negative, as it enters alkalinity.
     pub alk_hydrogen_fluoride: f64,
-    /// -[H+]free [µmol kg-1]: negative, as it enters alkalinity.
+    /// -\[H+\]free \[µmol kg-1\]: negative, as it enters alkalinity.
     pub alk_free_hydrogen: f64,
     /// Iterations of the alkalinity-pH solver (0 for pairs solved in closed form).
     pub iterations: u32,

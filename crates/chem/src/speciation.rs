@@ -2,18 +2,24 @@
 
 use crate::constants::{constants_unchecked, validate_conditions, EquilibriumConstants};
 use crate::error::{check_range, ChemError};
-use crate::solver::{carbonate_from_dic, solve_alkalinity, CarbonFixed, NonCarbonate};
+use crate::solver::{solve_alkalinity, CarbonFixed, NonCarbonate};
 use crate::{Conditions, ConstantChoice, InputPair, Solution};
 
 /// µmol kg-1 per mol kg-1.
 const MICRO: f64 = 1e6;
-/// Highest concentration accepted [µmol kg-1] (50 mmol kg-1, far beyond any seawater).
+/// Highest concentration accepted \[µmol kg-1\] (50 mmol kg-1, far beyond any seawater).
 const MAX_CONCENTRATION: f64 = 50_000.0;
 /// pH (total scale) range accepted as input and as a solution; outside it the pair describes no seawater.
 const PH_RANGE: (f64, f64) = (3.0, 12.0);
 
 fn check_alkalinity(value: f64) -> Result<f64, ChemError> {
-    check_range("alkalinity", value, 0.0, MAX_CONCENTRATION, "total alkalinity between 0 and 50000 µmol kg-1")
+    check_range(
+        "alkalinity",
+        value,
+        0.0,
+        MAX_CONCENTRATION,
+        "total alkalinity between 0 and 50000 µmol kg-1",
+    )
 }
 
 fn check_dic(value: f64) -> Result<f64, ChemError> {
@@ -27,11 +33,23 @@ fn check_dic(value: f64) -> Result<f64, ChemError> {
 }
 
 fn check_ph(value: f64) -> Result<f64, ChemError> {
-    check_range("ph_total", value, PH_RANGE.0, PH_RANGE.1, "pH (total scale) between 3 and 12")
+    check_range(
+        "ph_total",
+        value,
+        PH_RANGE.0,
+        PH_RANGE.1,
+        "pH (total scale) between 3 and 12",
+    )
 }
 
 fn check_pco2(value: f64) -> Result<f64, ChemError> {
-    check_range("pco2_uatm", value, 1e-6, 1e6, "pCO2 above 0 and at most 1000000 µatm")
+    check_range(
+        "pco2_uatm",
+        value,
+        1e-6,
+        1e6,
+        "pCO2 above 0 and at most 1000000 µatm",
+    )
 }
 
 /// Solves the carbonate system of one sample from any input pair with the chosen constants.
@@ -45,10 +63,18 @@ fn check_pco2(value: f64) -> Result<f64, ChemError> {
 /// assert!(s.ph_total > 7.95 && s.ph_total < 8.15);
 /// assert!(s.omega_aragonite > 2.5 && s.omega_aragonite < 4.5);
 /// ```
-pub fn solve(pair: InputPair, conditions: &Conditions, choice: &ConstantChoice) -> Result<Solution, ChemError> {
+pub fn solve(
+    pair: InputPair,
+    conditions: &Conditions,
+    choice: &ConstantChoice,
+) -> Result<Solution, ChemError> {
     validate_conditions(conditions)?;
     let k = constants_unchecked(conditions, choice);
-    let others = NonCarbonate::new(&k, conditions.phosphate / MICRO, conditions.silicate / MICRO);
+    let others = NonCarbonate::new(
+        &k,
+        conditions.phosphate / MICRO,
+        conditions.silicate / MICRO,
+    );
     let (h, dic, iterations) = match pair {
         InputPair::AlkalinityDic { alkalinity, dic } => {
             let alkalinity = check_alkalinity(alkalinity)? / MICRO;
@@ -60,12 +86,22 @@ pub fn solve(pair: InputPair, conditions: &Conditions, choice: &ConstantChoice) 
             let dic = check_dic(dic)? / MICRO;
             (h_from_ph(check_ph(ph_total)?), dic, 0)
         }
-        InputPair::AlkalinityPh { alkalinity, ph_total } => {
+        InputPair::AlkalinityPh {
+            alkalinity,
+            ph_total,
+        } => {
             let alkalinity = check_alkalinity(alkalinity)? / MICRO;
             let h = h_from_ph(check_ph(ph_total)?);
-            (h, dic_from_alkalinity_ph(alkalinity, h, ph_total, &k, &others)?, 0)
+            (
+                h,
+                dic_from_alkalinity_ph(alkalinity, h, ph_total, &k, &others)?,
+                0,
+            )
         }
-        InputPair::AlkalinityPco2 { alkalinity, pco2_uatm } => {
+        InputPair::AlkalinityPco2 {
+            alkalinity,
+            pco2_uatm,
+        } => {
             let alkalinity = check_alkalinity(alkalinity)? / MICRO;
             let co2 = co2_from_pco2(check_pco2(pco2_uatm)?, &k);
             let root = solve_alkalinity(alkalinity, CarbonFixed::Co2(co2), k.k1, k.k2, &others)?;
@@ -85,12 +121,12 @@ fn h_from_ph(ph: f64) -> f64 {
     10f64.powf(-ph)
 }
 
-/// CO2* [mol kg-1] = K0 · fCO2, with fCO2 = pCO2 · fugacity factor (Weiss 1974).
+/// CO2* \[mol kg-1\] = K0 · fCO2, with fCO2 = pCO2 · fugacity factor (Weiss 1974).
 fn co2_from_pco2(pco2_uatm: f64, k: &EquilibriumConstants) -> f64 {
     k.k0 * pco2_uatm * k.fugacity_factor / MICRO
 }
 
-/// DIC from alkalinity and pH: what alkalinity the non-carbonate systems leave, over [HCO3-] + 2[CO3--] per unit DIC.
+/// DIC from alkalinity and pH: what alkalinity the non-carbonate systems leave, over \[HCO3-\] + 2\[CO3--\] per unit DIC.
 fn dic_from_alkalinity_ph(
     alkalinity: f64,
     h: f64,
@@ -98,8 +134,8 @@ fn dic_from_alkalinity_ph(
     k: &EquilibriumConstants,
     others: &NonCarbonate,
 ) -> Result<f64, ChemError> {
-    let (noncarbonate, _) = others.value_and_slope(h);
-    let (per_unit_dic, _) = carbonate_from_dic(1.0, k.k1, k.k2, h);
+    let at_h = others.evaluate(h, CarbonFixed::Dic(1.0), k.k1, k.k2);
+    let (noncarbonate, per_unit_dic) = (at_h.others.sum(), at_h.carbonate);
     let carbonate_alkalinity = alkalinity - noncarbonate;
     if carbonate_alkalinity <= 0.0 {
         return Err(ChemError::NoSolution {
@@ -113,8 +149,13 @@ fn dic_from_alkalinity_ph(
     Ok(carbonate_alkalinity / per_unit_dic)
 }
 
-/// [H+] from DIC and CO2*: DIC/CO2* - 1 = K1/h + K1K2/h², solved as a quadratic in 1/h.
-fn h_from_dic_co2(dic: f64, co2: f64, pco2_uatm: f64, k: &EquilibriumConstants) -> Result<f64, ChemError> {
+/// \[H+\] from DIC and CO2*: DIC/CO2* - 1 = K1/h + K1K2/h², solved as a quadratic in 1/h.
+fn h_from_dic_co2(
+    dic: f64,
+    co2: f64,
+    pco2_uatm: f64,
+    k: &EquilibriumConstants,
+) -> Result<f64, ChemError> {
     let excess = dic / co2 - 1.0;
     if excess <= 0.0 {
         return Err(ChemError::NoSolution {
@@ -128,7 +169,7 @@ fn h_from_dic_co2(dic: f64, co2: f64, pco2_uatm: f64, k: &EquilibriumConstants) 
     Ok((k.k1 + (k.k1 * k.k1 + 4.0 * k.k1 * k.k2 * excess).sqrt()) / (2.0 * excess))
 }
 
-/// Full speciation at total-scale [H+] = h and DIC [mol kg-1].
+/// Full speciation at total-scale \[H+\] = h and DIC \[mol kg-1\].
 fn speciate(
     h: f64,
     dic: f64,
@@ -150,16 +191,15 @@ fn speciate(
     let co2 = dic_over_denominator * h * h;
     let bicarbonate = dic_over_denominator * k.k1 * h;
     let carbonate = dic_over_denominator * k12;
-    let parts = others.contributions(h);
-    let alkalinity = bicarbonate + 2.0 * carbonate + parts.sum();
+    let at_h = others.evaluate(h, CarbonFixed::Dic(dic), k.k1, k.k2);
+    let parts = at_h.others;
+    let alkalinity = at_h.total();
     let fco2_uatm = co2 / k.k0 * MICRO;
 
     // Revelle factor, analytically: d ln CO2*/d ln DIC at constant TA, with dh/dDIC from the
     // alkalinity equation (dTA = 0).
-    let (_, carbonate_slope) = carbonate_from_dic(dic, k.k1, k.k2, h);
-    let (_, others_slope) = others.value_and_slope(h);
-    let alkalinity_per_dic = (bicarbonate + 2.0 * carbonate) / dic;
-    let dh_ddic = -alkalinity_per_dic / (carbonate_slope + others_slope);
+    let alkalinity_per_dic = at_h.carbonate / dic;
+    let dh_ddic = -alkalinity_per_dic / at_h.slope;
     let dln_co2_fraction_dh = 2.0 / h - (2.0 * h + k.k1) / denominator;
     let revelle_factor = 1.0 + dic * dln_co2_fraction_dh * dh_ddic;
 
@@ -188,13 +228,22 @@ fn speciate(
         iterations,
         validity: k.validity,
     };
-    if all_finite(&solution) {
-        Ok(solution)
-    } else {
-        Err(ChemError::NoSolution {
-            reason: "the speciation overflowed (non-finite result): inputs far outside seawater".to_string(),
-        })
+    if !all_finite(&solution) {
+        return Err(ChemError::NoSolution {
+            reason: "the speciation overflowed (non-finite result): inputs far outside seawater"
+                .to_string(),
+        });
     }
+    // A derived DIC or alkalinity beyond what any input may be is no seawater either.
+    if solution.dic > MAX_CONCENTRATION || solution.alkalinity.abs() > MAX_CONCENTRATION {
+        return Err(ChemError::NoSolution {
+            reason: format!(
+                "the inputs imply DIC {:.0} and alkalinity {:.0} µmol kg-1, beyond the 50000 µmol kg-1 of any seawater: check the pH or pCO2",
+                solution.dic, solution.alkalinity
+            ),
+        });
+    }
+    Ok(solution)
 }
 
 fn all_finite(s: &Solution) -> bool {

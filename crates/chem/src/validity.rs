@@ -36,23 +36,142 @@ struct Range {
 // Ranges as the papers state them (all `from memory`, except Lueker et al. 2000 which
 // check-values.md quotes as T 2-35 °C, S 19-43).
 const RANGES: &[Range] = &[
-    Range { bit: Validity::LUEKER2000_TEMPERATURE, quantity: Quantity::Temperature, min: 2.0, max: 35.0, unit: " °C", source: "Lueker et al. 2000" },
-    Range { bit: Validity::LUEKER2000_SALINITY, quantity: Quantity::Salinity, min: 19.0, max: 43.0, unit: "", source: "Lueker et al. 2000" },
-    Range { bit: Validity::MILLERO2010_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 50.0, unit: " °C", source: "Millero 2010" },
-    Range { bit: Validity::MILLERO2010_SALINITY, quantity: Quantity::Salinity, min: 1.0, max: 50.0, unit: "", source: "Millero 2010" },
-    Range { bit: Validity::WATERS2014_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 50.0, unit: " °C", source: "Waters, Millero & Woosley 2014" },
-    Range { bit: Validity::WATERS2014_SALINITY, quantity: Quantity::Salinity, min: 1.0, max: 50.0, unit: "", source: "Waters, Millero & Woosley 2014" },
-    Range { bit: Validity::PEREZ_FRAGA1987_TEMPERATURE, quantity: Quantity::Temperature, min: 9.0, max: 33.0, unit: " °C", source: "Perez & Fraga 1987" },
-    Range { bit: Validity::PEREZ_FRAGA1987_SALINITY, quantity: Quantity::Salinity, min: 10.0, max: 40.0, unit: "", source: "Perez & Fraga 1987" },
-    Range { bit: Validity::DICKSON_RILEY1979_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 45.0, unit: " °C", source: "Dickson & Riley 1979" },
-    Range { bit: Validity::DICKSON_RILEY1979_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 45.0, unit: "", source: "Dickson & Riley 1979" },
-    Range { bit: Validity::WEISS1974_TEMPERATURE, quantity: Quantity::Temperature, min: -1.0, max: 40.0, unit: " °C", source: "Weiss 1974 (K0)" },
-    Range { bit: Validity::WEISS1974_SALINITY, quantity: Quantity::Salinity, min: 0.0, max: 40.0, unit: "", source: "Weiss 1974 (K0)" },
-    Range { bit: Validity::MINOR_ACIDS_TEMPERATURE, quantity: Quantity::Temperature, min: 0.0, max: 45.0, unit: " °C", source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)" },
-    Range { bit: Validity::MINOR_ACIDS_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 45.0, unit: "", source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)" },
-    Range { bit: Validity::MUCCI1983_TEMPERATURE, quantity: Quantity::Temperature, min: 5.0, max: 40.0, unit: " °C", source: "Mucci 1983 (Ksp)" },
-    Range { bit: Validity::MUCCI1983_SALINITY, quantity: Quantity::Salinity, min: 5.0, max: 44.0, unit: "", source: "Mucci 1983 (Ksp)" },
-    Range { bit: Validity::PRESSURE, quantity: Quantity::Pressure, min: 0.0, max: 10_000.0, unit: " dbar", source: "Millero 1995 pressure corrections" },
+    Range {
+        bit: Validity::LUEKER2000_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 2.0,
+        max: 35.0,
+        unit: " °C",
+        source: "Lueker et al. 2000",
+    },
+    Range {
+        bit: Validity::LUEKER2000_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 19.0,
+        max: 43.0,
+        unit: "",
+        source: "Lueker et al. 2000",
+    },
+    Range {
+        bit: Validity::MILLERO2010_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 0.0,
+        max: 50.0,
+        unit: " °C",
+        source: "Millero 2010",
+    },
+    Range {
+        bit: Validity::MILLERO2010_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 1.0,
+        max: 50.0,
+        unit: "",
+        source: "Millero 2010",
+    },
+    Range {
+        bit: Validity::WATERS2014_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 0.0,
+        max: 50.0,
+        unit: " °C",
+        source: "Waters, Millero & Woosley 2014",
+    },
+    Range {
+        bit: Validity::WATERS2014_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 1.0,
+        max: 50.0,
+        unit: "",
+        source: "Waters, Millero & Woosley 2014",
+    },
+    Range {
+        bit: Validity::PEREZ_FRAGA1987_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 9.0,
+        max: 33.0,
+        unit: " °C",
+        source: "Perez & Fraga 1987",
+    },
+    Range {
+        bit: Validity::PEREZ_FRAGA1987_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 10.0,
+        max: 40.0,
+        unit: "",
+        source: "Perez & Fraga 1987",
+    },
+    Range {
+        bit: Validity::DICKSON_RILEY1979_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 0.0,
+        max: 45.0,
+        unit: " °C",
+        source: "Dickson & Riley 1979",
+    },
+    Range {
+        bit: Validity::DICKSON_RILEY1979_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 5.0,
+        max: 45.0,
+        unit: "",
+        source: "Dickson & Riley 1979",
+    },
+    Range {
+        bit: Validity::WEISS1974_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: -1.0,
+        max: 40.0,
+        unit: " °C",
+        source: "Weiss 1974 (K0)",
+    },
+    Range {
+        bit: Validity::WEISS1974_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 0.0,
+        max: 40.0,
+        unit: "",
+        source: "Weiss 1974 (K0)",
+    },
+    Range {
+        bit: Validity::MINOR_ACIDS_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 0.0,
+        max: 45.0,
+        unit: " °C",
+        source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)",
+    },
+    Range {
+        bit: Validity::MINOR_ACIDS_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 5.0,
+        max: 45.0,
+        unit: "",
+        source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)",
+    },
+    Range {
+        bit: Validity::MUCCI1983_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 5.0,
+        max: 40.0,
+        unit: " °C",
+        source: "Mucci 1983 (Ksp)",
+    },
+    Range {
+        bit: Validity::MUCCI1983_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 5.0,
+        max: 44.0,
+        unit: "",
+        source: "Mucci 1983 (Ksp)",
+    },
+    Range {
+        bit: Validity::PRESSURE,
+        quantity: Quantity::Pressure,
+        min: 0.0,
+        max: 10_000.0,
+        unit: " dbar",
+        source: "Millero 1995 pressure corrections",
+    },
 ];
 
 impl Validity {
@@ -91,9 +210,23 @@ impl Validity {
     /// Pressure corrections used beyond 10000 dbar (1000 bar).
     pub const PRESSURE: u32 = 1 << 16;
 
+    /// Breaches that can move a reported indicator: all but KF's. HF enters alkalinity as
+    /// TF·[H+]free/KF, below 0.01 µmol kg-1 at seawater pH, so an extrapolated KF cannot
+    /// change the results at the precision they are reported (Dickson 1981 alkalinity terms).
+    pub const MATERIAL: u32 = !(Self::PEREZ_FRAGA1987_TEMPERATURE
+        | Self::PEREZ_FRAGA1987_SALINITY
+        | Self::DICKSON_RILEY1979_TEMPERATURE
+        | Self::DICKSON_RILEY1979_SALINITY);
+
     /// True when no constant was used outside its published range.
     pub fn is_within(self) -> bool {
         self.0 == 0
+    }
+
+    /// True when some constant that matters for the indicators was used outside its range
+    /// (see [`Validity::MATERIAL`]); the per-cell quality flag of grids follows this.
+    pub fn is_material(self) -> bool {
+        self.0 & Self::MATERIAL != 0
     }
 
     /// The raw bits (for per-cell flag variables).
@@ -112,9 +245,15 @@ impl Validity {
             .iter()
             .filter(|range| self.contains(range.bit))
             .map(|range| {
+                // "2-35" reads well; "-1-40" does not, so negative minima get "to".
+                let separator = if range.min < 0.0 { " to " } else { "-" };
                 format!(
-                    "{} outside {}-{}{} for {}",
-                    range.quantity.name(), range.min, range.max, range.unit, range.source
+                    "{} outside {}{separator}{}{} for {}",
+                    range.quantity.name(),
+                    range.min,
+                    range.max,
+                    range.unit,
+                    range.source
                 )
             })
             .collect::<Vec<_>>()
@@ -122,7 +261,12 @@ impl Validity {
     }
 
     /// Checks a sample's temperature (°C), salinity and pressure (dbar) against the ranges of the chosen sets.
-    pub fn assess(temperature_c: f64, salinity: f64, pressure_dbar: f64, choice: &ConstantChoice) -> Self {
+    pub fn assess(
+        temperature_c: f64,
+        salinity: f64,
+        pressure_dbar: f64,
+        choice: &ConstantChoice,
+    ) -> Self {
         let (carbonic_t, carbonic_s) = match choice.carbonic {
             CarbonicSet::Lueker2000 => (Self::LUEKER2000_TEMPERATURE, Self::LUEKER2000_SALINITY),
             CarbonicSet::Millero2010 => (Self::MILLERO2010_TEMPERATURE, Self::MILLERO2010_SALINITY),
@@ -131,9 +275,10 @@ impl Validity {
             }
         };
         let (fluoride_t, fluoride_s) = match choice.fluoride {
-            FluorideSet::PerezFraga1987 => {
-                (Self::PEREZ_FRAGA1987_TEMPERATURE, Self::PEREZ_FRAGA1987_SALINITY)
-            }
+            FluorideSet::PerezFraga1987 => (
+                Self::PEREZ_FRAGA1987_TEMPERATURE,
+                Self::PEREZ_FRAGA1987_SALINITY,
+            ),
             FluorideSet::DicksonRiley1979 => (
                 Self::DICKSON_RILEY1979_TEMPERATURE,
                 Self::DICKSON_RILEY1979_SALINITY,
@@ -150,17 +295,16 @@ impl Validity {
             | Self::MUCCI1983_TEMPERATURE
             | Self::MUCCI1983_SALINITY
             | Self::PRESSURE;
-        let mut bits = 0;
-        for range in RANGES.iter().filter(|range| relevant & range.bit != 0) {
+        // Every range is checked without branching, then the ones of unused sets are masked off.
+        let outside = RANGES.iter().fold(0, |bits, range| {
             let value = match range.quantity {
                 Quantity::Temperature => temperature_c,
                 Quantity::Salinity => salinity,
                 Quantity::Pressure => pressure_dbar,
             };
-            if !(range.min..=range.max).contains(&value) {
-                bits |= range.bit;
-            }
-        }
-        Validity(bits)
+            let within = value >= range.min && value <= range.max;
+            bits | (u32::from(!within) * range.bit)
+        });
+        Validity(outside & relevant)
     }
 }

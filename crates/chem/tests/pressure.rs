@@ -4,7 +4,13 @@ use acidscape_chem::constants::pressure::{self, ln_pressure_factor};
 use acidscape_chem::{equilibrium_constants, solve, Conditions, ConstantChoice, InputPair};
 
 fn at(temperature_c: f64, pressure_dbar: f64) -> Conditions {
-    Conditions { temperature_c, salinity: 35.0, pressure_dbar, phosphate: 0.0, silicate: 0.0 }
+    Conditions {
+        temperature_c,
+        salinity: 35.0,
+        pressure_dbar,
+        phosphate: 0.0,
+        silicate: 0.0,
+    }
 }
 
 #[test]
@@ -49,7 +55,10 @@ fn acid_constants_carry_the_correction_plus_a_small_scale_shift() {
         ("KW", deep.kw / surface.kw, pressure::KW),
     ] {
         let shift = ratio.ln() - ln_pressure_factor(&coefficients, 2.0, 400.0);
-        assert!(shift.abs() < 0.01 && shift != 0.0, "{name}: scale shift {shift}");
+        assert!(
+            shift.abs() < 0.01 && shift != 0.0,
+            "{name}: scale shift {shift}"
+        );
     }
     // Pressure favours dissociation (ΔV < 0): every constant grows with depth (Millero 1995).
     assert!(deep.k1 > surface.k1 && deep.k2 > surface.k2 && deep.kb > surface.kb);
@@ -59,10 +68,18 @@ fn acid_constants_carry_the_correction_plus_a_small_scale_shift() {
 #[test]
 fn omega_falls_with_pressure_at_fixed_chemistry() {
     // Physics (Millero 1995): CaCO3 solubility rises with pressure faster than [CO3--] does.
-    let pair = InputPair::AlkalinityDic { alkalinity: 2350.0, dic: 2200.0 };
+    let pair = InputPair::AlkalinityDic {
+        alkalinity: 2350.0,
+        dic: 2200.0,
+    };
     let mut previous = f64::INFINITY;
     for step in 0..=12 {
-        let s = solve(pair, &at(2.0, 500.0 * step as f64), &ConstantChoice::default()).unwrap();
+        let s = solve(
+            pair,
+            &at(2.0, 500.0 * step as f64),
+            &ConstantChoice::default(),
+        )
+        .unwrap();
         assert!(s.omega_aragonite < previous, "Ω at {} dbar", 500 * step);
         assert!(s.omega_calcite > s.omega_aragonite);
         previous = s.omega_aragonite;

@@ -3,13 +3,13 @@
 use crate::run_options::{ConstantOptions, RunOptions};
 use acidscape_gridio::Run;
 use acidscape_pipeline::{
-    format_bytes, parse_list, parse_memory_size, run_job, IndicatorChoice, JobOptions,
-    JobSummary, Progress,
+    format_bytes, parse_list, parse_memory_size, run_job, IndicatorChoice, JobOptions, JobSummary,
+    Progress,
 };
 use clap::Args;
 use indicatif::{ProgressBar, ProgressStyle};
 use std::error::Error;
-use std::io::IsTerminal;
+use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
@@ -31,7 +31,11 @@ pub struct ComputeArgs {
 
     /// Indicators to compute, comma-separated, from: ph, co3, hco3, co2 (CO2*), pco2, fco2,
     /// omega-aragonite, omega-calcite, revelle
-    #[arg(long, value_name = "LIST", default_value = "ph,co3,pco2,omega-aragonite,omega-calcite")]
+    #[arg(
+        long,
+        value_name = "LIST",
+        default_value = "ph,co3,pco2,omega-aragonite,omega-calcite"
+    )]
     pub indicators: String,
 
     /// pH scales to write when ph is chosen, comma-separated: total, seawater, free
@@ -47,7 +51,7 @@ pub struct ComputeArgs {
     pub memory_budget: String,
 
     /// Deflate level of the output variables, 0 (none) to 9
-    #[arg(long, value_name = "LEVEL", default_value_t = 4)]
+    #[arg(long, value_name = "LEVEL", default_value_t = 1)]
     pub deflate_level: i32,
 
     /// Solver threads (default: all cores)
@@ -108,7 +112,8 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         Box::new(LogProgress::default())
     };
     let summary = run_job(&run, &options, progress.as_mut())?;
-    println!("{}", summary_text(&summary));
+    // The output is complete; a closed stdout (e.g. piped into head) is not an error.
+    let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary));
     Ok(())
 }
 
@@ -164,6 +169,9 @@ fn summary_text(summary: &JobSummary) -> String {
     )
 }
 
+const BAR_TEMPLATE: &str =
+    "{elapsed_precise} [{bar:40}] {percent:>3}% {human_pos}/{human_len} cells, {per_sec}, ETA {eta}";
+
 /// An indicatif bar for terminals.
 #[derive(Default)]
 struct BarProgress {
@@ -173,10 +181,8 @@ struct BarProgress {
 impl Progress for BarProgress {
     fn begin(&mut self, total_cells: u64, done_cells: u64) {
         let bar = ProgressBar::new(total_cells);
-        let style = ProgressStyle::with_template(
-            "{elapsed_precise} [{bar:40}] {percent:>3}% {human_pos}/{human_len} cells, {per_sec}, ETA {eta}",
-        )
-        .unwrap_or_else(|_| ProgressStyle::default_bar());
+        let style = ProgressStyle::with_template(BAR_TEMPLATE)
+            .unwrap_or_else(|_| ProgressStyle::default_bar());
         bar.set_style(style.progress_chars("=> "));
         bar.set_position(done_cells);
         bar.reset_eta();
@@ -194,7 +200,8 @@ impl Progress for BarProgress {
     }
 }
 
-/// Plain log lines for batch jobs: every 10 s or every 5 % of the work, whichever first.
+/// Plain log lines for batch jobs: every 10 s or every 5 % of the work, whichever comes
+/// first, and once after the first time step is durable.
 #[derive(Default)]
 struct LogProgress {
     total: u64,
@@ -203,9 +210,41 @@ struct LogProgress {
     started: Option<Instant>,
     last_line: Option<Instant>,
     last_percent_step: u64,
+    steps: Option<(usize, usize)>,
+    first_step_reported: bool,
 }
 
 const LOG_INTERVAL: Duration = Duration::from_secs(10);
+
+impl LogProgress {
+    fn line(&mut self, now: Instant) {
+        self.last_line = Some(now);
+        self.last_percent_step = self.done * 20 / self.total;
+        let elapsed = self
+            .started
+            .map_or(0.0, |t| (now - t).as_secs_f64())
+            .max(1e-9);
+        let rate = (self.done - self.done_at_start) as f64 / elapsed;
+        let remaining = (self.total - self.done.min(self.total)) as f64 / rate.max(1e-9);
+        let steps = self
+            .steps
+            .map(|(done, total)| format!("; {done}/{total} time steps written"))
+            .unwrap_or_default();
+        eprintln!(
+            "acidscape: {:5.1}% ({}/{} cells), {:.3e} cells/s, about {:.0} s left{steps}",
+            100.0 * self.done as f64 / self.total as f64,
+            self.done,
+            self.total,
+            rate,
+            remaining
+        );
+    }
+
+    fn due(&self, now: Instant) -> bool {
+        self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL)
+            || self.done * 20 / self.total > self.last_percent_step
+    }
+}
 
 impl Progress for LogProgress {
     fn begin(&mut self, total_cells: u64, done_cells: u64) {
@@ -215,36 +254,51 @@ impl Progress for LogProgress {
         self.started = Some(Instant::now());
         self.last_line = self.started;
         self.last_percent_step = done_cells * 20 / self.total;
-        eprintln!(
-            "acidscape: computing {total_cells} cells ({} already done)",
-            done_cells
-        );
+        eprintln!("acidscape: computing {total_cells} cells ({done_cells} already done)");
     }
     fn advance(&mut self, cells: u64) {
         self.done += cells;
-        let percent_step = self.done * 20 / self.total;
         let now = Instant::now();
-        let due = self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL);
-        if !(due || percent_step > self.last_percent_step) {
-            return;
+        // Mid-step lines only on the clock; percentage lines wait for the step's end.
+        if self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL) {
+            self.line(now);
         }
-        self.last_percent_step = percent_step;
-        self.last_line = Some(now);
-        let elapsed = self.started.map_or(0.0, |t| (now - t).as_secs_f64()).max(1e-9);
-        let rate = (self.done - self.done_at_start) as f64 / elapsed;
-        let remaining = (self.total - self.done.min(self.total)) as f64 / rate.max(1e-9);
-        eprintln!(
-            "acidscape: {:5.1}% ({}/{} cells), {:.3e} cells/s, about {:.0} s left",
-            100.0 * self.done as f64 / self.total as f64,
-            self.done,
-            self.total,
-            rate,
-            remaining
-        );
     }
     fn step_finished(&mut self, steps_done: usize, steps_total: usize) {
-        if steps_total > 1 {
-            eprintln!("acidscape: time step {steps_done}/{steps_total} written");
+        self.steps = Some((steps_done, steps_total));
+        let now = Instant::now();
+        if !self.first_step_reported || self.due(now) {
+            self.first_step_reported = true;
+            self.line(now);
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_bar_template_is_valid() {
+        assert!(ProgressStyle::with_template(BAR_TEMPLATE).is_ok());
+    }
+
+    #[test]
+    fn log_lines_come_every_five_percent_and_after_the_first_step() {
+        let mut log = LogProgress::default();
+        log.begin(100, 0);
+        log.advance(3);
+        log.step_finished(1, 100);
+        assert!(log.first_step_reported);
+        let after_first = log.last_percent_step;
+        log.advance(1);
+        log.step_finished(2, 100);
+        assert_eq!(
+            log.last_percent_step, after_first,
+            "4 % is not yet a 5 % step"
+        );
+        log.advance(2);
+        log.step_finished(3, 100);
+        assert_eq!(log.last_percent_step, 1, "6 % crosses the first 5 % step");
     }
 }

@@ -2,7 +2,7 @@
 //! A bad row is reported in its own status column and never stops the others.
 
 use crate::run_options::ConstantOptions;
-use acidscape_chem::{solve, ChemError, ConstantChoice, Conditions, InputPair, Solution};
+use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution};
 use acidscape_gridio::seawater;
 use acidscape_gridio::units;
 use clap::{Args, ValueEnum};
@@ -195,7 +195,9 @@ fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
             Conversion::Temperature(units::parse_temperature(unit_text).map_err(describe)?)
         }
         Role::Salinity => Conversion::Salinity(units::parse_salinity(unit_text).map_err(describe)?),
-        Role::Pressure => Conversion::Scale(units::parse_pressure(unit_text).map_err(describe)?.to_dbar),
+        Role::Pressure => {
+            Conversion::Scale(units::parse_pressure(unit_text).map_err(describe)?.to_dbar)
+        }
         Role::Depth => Conversion::Scale(units::parse_length(unit_text).map_err(describe)?.to_m),
         Role::Pco2 => Conversion::Scale(parse_pco2_units(unit_text)?),
         Role::Ph | Role::Latitude => match unit_text.trim() {
@@ -284,7 +286,11 @@ struct RowInputs {
 }
 
 /// Reads a role's raw value from a row; empty cells are `None`.
-fn raw_value(record: &csv::StringRecord, column: &Column, role: Role) -> Result<Option<f64>, String> {
+fn raw_value(
+    record: &csv::StringRecord,
+    column: &Column,
+    role: Role,
+) -> Result<Option<f64>, String> {
     let text = record.get(column.index).unwrap_or("").trim();
     if text.is_empty() || text.eq_ignore_ascii_case("nan") || text.eq_ignore_ascii_case("na") {
         return Ok(None);
@@ -328,9 +334,9 @@ fn row_inputs(
     let pressure = match value(Role::Pressure)? {
         Some(p) => scale(Role::Pressure, p),
         None => {
-            let depth = value(Role::Depth)?.map(|d| scale(Role::Depth, d)).ok_or(
-                "neither pressure nor depth is given (surface samples: pressure 0)",
-            )?;
+            let depth = value(Role::Depth)?
+                .map(|d| scale(Role::Depth, d))
+                .ok_or("neither pressure nor depth is given (surface samples: pressure 0)")?;
             let latitude = value(Role::Latitude)?.or(latitude_option).ok_or(
                 "depth needs a latitude (a latitude column or --latitude) to become pressure",
             )?;
@@ -338,9 +344,8 @@ fn row_inputs(
         }
     };
     // Per-volume concentrations need the sample's own density (in-situ, TEOS-10).
-    let density = || {
-        seawater::in_situ_density(salinity, temperature, pressure).map_err(|e| e.to_string())
-    };
+    let density =
+        || seawater::in_situ_density(salinity, temperature, pressure).map_err(|e| e.to_string());
     let concentration = |role: Role, raw: f64| -> Result<f64, String> {
         match columns[&role].conversion {
             Conversion::Concentration(c) => Ok(match c.basis {
@@ -366,11 +371,26 @@ fn row_inputs(
     let [first, second] = pair_choice.roles();
     let (a, b) = (member(first)?, member(second)?);
     let pair = match pair_choice {
-        PairChoice::AlkalinityDic => InputPair::AlkalinityDic { alkalinity: a, dic: b },
-        PairChoice::AlkalinityPh => InputPair::AlkalinityPh { alkalinity: a, ph_total: b },
-        PairChoice::DicPh => InputPair::DicPh { dic: a, ph_total: b },
-        PairChoice::AlkalinityPco2 => InputPair::AlkalinityPco2 { alkalinity: a, pco2_uatm: b },
-        PairChoice::DicPco2 => InputPair::DicPco2 { dic: a, pco2_uatm: b },
+        PairChoice::AlkalinityDic => InputPair::AlkalinityDic {
+            alkalinity: a,
+            dic: b,
+        },
+        PairChoice::AlkalinityPh => InputPair::AlkalinityPh {
+            alkalinity: a,
+            ph_total: b,
+        },
+        PairChoice::DicPh => InputPair::DicPh {
+            dic: a,
+            ph_total: b,
+        },
+        PairChoice::AlkalinityPco2 => InputPair::AlkalinityPco2 {
+            alkalinity: a,
+            pco2_uatm: b,
+        },
+        PairChoice::DicPco2 => InputPair::DicPco2 {
+            dic: a,
+            pco2_uatm: b,
+        },
     };
     Ok(RowInputs {
         pair,
@@ -384,8 +404,11 @@ fn row_inputs(
     })
 }
 
+/// Reads one computed quantity from a solution.
+type Field = fn(&Solution) -> f64;
+
 /// The computed columns, in output order: header and how to read it from a solution.
-const RESULT_COLUMNS: &[(&str, fn(&Solution) -> f64)] = &[
+const RESULT_COLUMNS: &[(&str, Field)] = &[
     ("ph_total", |s| s.ph_total),
     ("ph_seawater", |s| s.ph_seawater),
     ("ph_free", |s| s.ph_free),
@@ -403,16 +426,25 @@ const RESULT_COLUMNS: &[(&str, fn(&Solution) -> f64)] = &[
     ("hydroxide_alkalinity [umol/kg]", |s| s.alk_hydroxide),
     ("phosphate_alkalinity [umol/kg]", |s| s.alk_phosphate),
     ("silicate_alkalinity [umol/kg]", |s| s.alk_silicate),
-    ("hydrogen_sulfate_alkalinity [umol/kg]", |s| s.alk_hydrogen_sulfate),
-    ("hydrogen_fluoride_alkalinity [umol/kg]", |s| s.alk_hydrogen_fluoride),
-    ("free_hydrogen_alkalinity [umol/kg]", |s| s.alk_free_hydrogen),
+    ("hydrogen_sulfate_alkalinity [umol/kg]", |s| {
+        s.alk_hydrogen_sulfate
+    }),
+    ("hydrogen_fluoride_alkalinity [umol/kg]", |s| {
+        s.alk_hydrogen_fluoride
+    }),
+    ("free_hydrogen_alkalinity [umol/kg]", |s| {
+        s.alk_free_hydrogen
+    }),
 ];
 
 /// Row outcome labels written in the `status` column.
 fn status_of(outcome: &Result<(RowInputs, Solution), RowFailure>) -> (&'static str, String) {
     match outcome {
-        Ok((_, solution)) if solution.validity.is_within() => ("ok", String::new()),
-        Ok((_, solution)) => ("outside-validity-range", solution.validity.describe()),
+        Ok((_, solution)) if solution.validity.is_material() => {
+            ("outside-validity-range", solution.validity.describe())
+        }
+        // Breaches that cannot move the results are still reported, as a note.
+        Ok((_, solution)) => ("ok", solution.validity.describe()),
         Err(RowFailure::BadInput(why)) => ("bad-input", why.clone()),
         Err(RowFailure::Chemistry(ChemError::NoSolution { .. }, why)) => {
             ("no-solution", why.clone())
@@ -459,7 +491,8 @@ fn write_table(
         .headers()
         .map_err(|e| format!("{}: cannot read the header row: {e}", args.input.display()))?
         .clone();
-    let columns = locate_columns(&header, args).map_err(|e| format!("{}: {e}", args.input.display()))?;
+    let columns =
+        locate_columns(&header, args).map_err(|e| format!("{}: {e}", args.input.display()))?;
     let pair = choose_pair(args, &columns).map_err(|e| format!("{}: {e}", args.input.display()))?;
 
     let mut writer = csv::Writer::from_path(destination)
@@ -491,7 +524,11 @@ fn write_table(
         match &outcome {
             Ok((inputs, solution)) => {
                 row.push(format!("{:.3}", inputs.conditions.pressure_dbar));
-                row.extend(RESULT_COLUMNS.iter().map(|(_, get)| format!("{:.6}", get(solution))));
+                row.extend(
+                    RESULT_COLUMNS
+                        .iter()
+                        .map(|(_, get)| format!("{:.6}", get(solution))),
+                );
                 row.push(solution.iterations.to_string());
             }
             Err(_) => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
@@ -551,7 +588,10 @@ pub fn run(args: &SamplesArgs) -> Result<(), Box<dyn Error>> {
     };
     fs::rename(&partial, &args.output).map_err(|e| {
         let _ = fs::remove_file(&partial);
-        format!("{}: cannot put the results in place: {e}", args.output.display())
+        format!(
+            "{}: cannot put the results in place: {e}",
+            args.output.display()
+        )
     })?;
 
     let total: usize = counts.values().sum();

@@ -34,7 +34,12 @@ fn every_row_gets_a_status_and_bad_rows_do_not_stop_the_others() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("results.csv");
     let status = acidscape()
-        .args(["samples", bundled_table().to_str().unwrap(), "-o", out.to_str().unwrap()])
+        .args([
+            "samples",
+            bundled_table().to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+        ])
         .status()
         .unwrap();
     assert!(status.success());
@@ -90,14 +95,24 @@ fn per_volume_units_use_the_samples_density() {
     for input in [&mass, &volume] {
         let out = input.with_extension("out.csv");
         let ok = acidscape()
-            .args(["samples", input.to_str().unwrap(), "-o", out.to_str().unwrap()])
+            .args([
+                "samples",
+                input.to_str().unwrap(),
+                "-o",
+                out.to_str().unwrap(),
+            ])
             .status()
             .unwrap()
             .success();
         assert!(ok);
         let (header, rows) = read_table(&out);
-        let dic: f64 = rows[0][column(&header, "dic_result [umol/kg]")].parse().unwrap();
-        assert!((dic - 2100.0).abs() < 0.05, "DIC {dic} after density conversion");
+        let dic: f64 = rows[0][column(&header, "dic_result [umol/kg]")]
+            .parse()
+            .unwrap();
+        assert!(
+            (dic - 2100.0).abs() < 0.05,
+            "DIC {dic} after density conversion"
+        );
         ph.push(rows[0][column(&header, "ph_total")].parse::<f64>().unwrap());
     }
     // Orr et al. 2015 tolerance class: 0.0002 in pH.
@@ -111,7 +126,13 @@ fn refuses_to_overwrite_the_input_or_an_existing_output() {
     std::fs::copy(bundled_table(), &table).unwrap();
     let original = std::fs::read(&table).unwrap();
     let over_input = acidscape()
-        .args(["samples", table.to_str().unwrap(), "-o", table.to_str().unwrap(), "--overwrite"])
+        .args([
+            "samples",
+            table.to_str().unwrap(),
+            "-o",
+            table.to_str().unwrap(),
+            "--overwrite",
+        ])
         .output()
         .unwrap();
     assert!(!over_input.status.success());
@@ -121,7 +142,12 @@ fn refuses_to_overwrite_the_input_or_an_existing_output() {
     let existing = dir.path().join("old.csv");
     std::fs::write(&existing, "keep me").unwrap();
     let refused = acidscape()
-        .args(["samples", table.to_str().unwrap(), "-o", existing.to_str().unwrap()])
+        .args([
+            "samples",
+            table.to_str().unwrap(),
+            "-o",
+            existing.to_str().unwrap(),
+        ])
         .output()
         .unwrap();
     assert!(!refused.status.success());
@@ -133,14 +159,26 @@ fn refuses_to_overwrite_the_input_or_an_existing_output() {
 fn a_table_without_an_input_pair_is_a_clear_error() {
     let dir = tempfile::tempdir().unwrap();
     let table = dir.path().join("t.csv");
-    std::fs::write(&table, "temperature,salinity,pressure,alkalinity\n10,35,0,2300\n").unwrap();
+    std::fs::write(
+        &table,
+        "temperature,salinity,pressure,alkalinity\n10,35,0,2300\n",
+    )
+    .unwrap();
     let out = acidscape()
-        .args(["samples", table.to_str().unwrap(), "-o", dir.path().join("o.csv").to_str().unwrap()])
+        .args([
+            "samples",
+            table.to_str().unwrap(),
+            "-o",
+            dir.path().join("o.csv").to_str().unwrap(),
+        ])
         .output()
         .unwrap();
     assert!(!out.status.success());
     let message = String::from_utf8_lossy(&out.stderr);
-    assert!(message.contains("t.csv") && message.contains("input pair"), "{message}");
+    assert!(
+        message.contains("t.csv") && message.contains("input pair"),
+        "{message}"
+    );
     assert!(!dir.path().join("o.csv").exists());
 }
 
@@ -152,7 +190,12 @@ fn other_pairs_and_renamed_columns_reproduce_the_alkalinity_dic_result() {
     std::fs::write(&first, "T,S,P,TA,DIC\n4,34.7,1000,2340,2240\n").unwrap();
     let first_out = dir.path().join("first.out.csv");
     assert!(acidscape()
-        .args(["samples", first.to_str().unwrap(), "-o", first_out.to_str().unwrap()])
+        .args([
+            "samples",
+            first.to_str().unwrap(),
+            "-o",
+            first_out.to_str().unwrap()
+        ])
         .status()
         .unwrap()
         .success());
@@ -160,7 +203,11 @@ fn other_pairs_and_renamed_columns_reproduce_the_alkalinity_dic_result() {
     let ph = &rows[0][column(&header, "ph_total")];
 
     let second = dir.path().join("second.csv");
-    std::fs::write(&second, format!("temp_c,sal,depth_dbar,carbon,acidity\n4,34.7,1000,2240,{ph}\n")).unwrap();
+    std::fs::write(
+        &second,
+        format!("temp_c,sal,depth_dbar,carbon,acidity\n4,34.7,1000,2240,{ph}\n"),
+    )
+    .unwrap();
     let second_out = dir.path().join("second.out.csv");
     let ok = acidscape()
         .args([
@@ -183,9 +230,15 @@ fn other_pairs_and_renamed_columns_reproduce_the_alkalinity_dic_result() {
         ])
         .output()
         .unwrap();
-    assert!(ok.status.success(), "{}", String::from_utf8_lossy(&ok.stderr));
+    assert!(
+        ok.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
     let (header, rows) = read_table(&second_out);
-    let ta: f64 = rows[0][column(&header, "alkalinity_result [umol/kg]")].parse().unwrap();
+    let ta: f64 = rows[0][column(&header, "alkalinity_result [umol/kg]")]
+        .parse()
+        .unwrap();
     // pH printed to 6 decimals: 1e-6 in pH moves TA by well under 0.01 µmol kg-1.
     assert!((ta - 2340.0).abs() < 0.02, "alkalinity {ta}");
 }

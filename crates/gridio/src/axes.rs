@@ -39,9 +39,23 @@ const VERTICAL_STANDARD_NAMES: [&str; 8] = [
 fn is_degrees(units: &str, north: bool) -> bool {
     let u = units.to_ascii_lowercase().replace(' ', "_");
     let list: &[&str] = if north {
-        &["degrees_north", "degree_north", "degree_n", "degrees_n", "degreen", "degreesn"]
+        &[
+            "degrees_north",
+            "degree_north",
+            "degree_n",
+            "degrees_n",
+            "degreen",
+            "degreesn",
+        ]
     } else {
-        &["degrees_east", "degree_east", "degree_e", "degrees_e", "degreee", "degreese"]
+        &[
+            "degrees_east",
+            "degree_east",
+            "degree_e",
+            "degrees_e",
+            "degreee",
+            "degreese",
+        ]
     };
     list.contains(&u.as_str())
 }
@@ -94,8 +108,20 @@ fn axis_from_name(name: &str) -> Option<Axis> {
     const Z: [&str; 11] = [
         "lev", "olevel", "depth", "deptht", "z", "s_rho", "level", "levels", "nz", "zt", "sigma",
     ];
-    const Y: [&str; 9] = ["y", "j", "nj", "lat", "latitude", "eta_rho", "nlat", "rlat", "ny"];
-    const X: [&str; 9] = ["x", "i", "ni", "lon", "longitude", "xi_rho", "nlon", "rlon", "nx"];
+    const Y: [&str; 9] = [
+        "y", "j", "nj", "lat", "latitude", "eta_rho", "nlat", "rlat", "ny",
+    ];
+    const X: [&str; 9] = [
+        "x",
+        "i",
+        "ni",
+        "lon",
+        "longitude",
+        "xi_rho",
+        "nlon",
+        "rlon",
+        "nx",
+    ];
     if T.contains(&n.as_str()) {
         Some(Axis::T)
     } else if Z.contains(&n.as_str()) {

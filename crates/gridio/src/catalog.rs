@@ -5,6 +5,35 @@ use netcdf::AttributeValue;
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 
+/// Turns off HDF5's automatic error printing on the calling thread.
+///
+/// libnetcdf 4.9.0 (Debian 12) looks up optional quantization attributes on every
+/// NetCDF-4 variable it reads; on variables with many attributes HDF5 prints a
+/// harmless "HDF5-DIAG ... can't locate attribute" trace to stderr for each lookup.
+/// The errors are handled by libnetcdf; only the printing is suppressed. HDF5 keeps
+/// this setting per thread, so every public entry point calls this.
+pub fn silence_hdf5_diagnostics() {
+    thread_local! {
+        static DONE: std::cell::Cell<bool> = const { std::cell::Cell::new(false) };
+    }
+    if DONE.with(|d| d.replace(true)) {
+        return;
+    }
+    type SetAuto = unsafe extern "C" fn(i64, *const libc::c_void, *mut libc::c_void) -> i32;
+    // SAFETY: dlsym with RTLD_DEFAULT and a NUL-terminated name only looks a symbol up.
+    let symbol = unsafe { libc::dlsym(libc::RTLD_DEFAULT, c"H5Eset_auto2".as_ptr()) };
+    if symbol.is_null() {
+        return;
+    }
+    // SAFETY: H5Eset_auto2(hid_t estack_id, H5E_auto2_t func, void *client_data) from
+    // H5Epublic.h (hid_t is int64_t since HDF5 1.10); H5E_DEFAULT is 0 and a null
+    // function disables printing.
+    unsafe {
+        let set_auto: SetAuto = std::mem::transmute::<*mut libc::c_void, SetAuto>(symbol);
+        set_auto(0, std::ptr::null(), std::ptr::null_mut());
+    }
+}
+
 /// One opened input file.
 pub(crate) struct InputFile {
     pub path: PathBuf,
@@ -190,8 +219,14 @@ impl MaskRule {
             missing,
             valid_min,
             valid_max,
-            scale_factor: attr_numbers(var, "scale_factor").first().copied().unwrap_or(1.0),
-            add_offset: attr_numbers(var, "add_offset").first().copied().unwrap_or(0.0),
+            scale_factor: attr_numbers(var, "scale_factor")
+                .first()
+                .copied()
+                .unwrap_or(1.0),
+            add_offset: attr_numbers(var, "add_offset")
+                .first()
+                .copied()
+                .unwrap_or(0.0),
         }
     }
 

@@ -22,6 +22,7 @@ mod source;
 mod timeline;
 mod vertical;
 
+pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;

@@ -107,8 +107,8 @@ impl VariableMapping {
             source_name: source_name.to_string(),
             message,
         };
-        let mut table: toml::Table = toml::from_str(text)
-            .map_err(|e| bad(format!("not valid TOML: {}", e.message())))?;
+        let mut table: toml::Table =
+            toml::from_str(text).map_err(|e| bad(format!("not valid TOML: {}", e.message())))?;
         let table = match table.remove("variables") {
             Some(toml::Value::Table(inner)) => inner,
             Some(_) => return Err(bad("`variables` must be a table".to_string())),
@@ -223,9 +223,19 @@ impl VariableMapping {
                 ))
             })?;
         }
-        for role in ["phosphate", "silicate", "dic", "alkalinity", "pressure", "cell_area", "sea_floor_depth"] {
+        for role in [
+            "phosphate",
+            "silicate",
+            "dic",
+            "alkalinity",
+            "pressure",
+            "cell_area",
+            "sea_floor_depth",
+        ] {
             if self.get(role).is_some_and(|m| m.kind.is_some()) {
-                return Err(bad(format!("`kind` applies only to temperature and salinity, not {role}")));
+                return Err(bad(format!(
+                    "`kind` applies only to temperature and salinity, not {role}"
+                )));
             }
         }
         Ok(())
@@ -293,14 +303,20 @@ mod tests {
         )
         .unwrap();
         assert_eq!(m.dic.as_ref().unwrap().name, "DIC");
-        assert_eq!(m.temperature.as_ref().unwrap().kind.as_deref(), Some("potential"));
+        assert_eq!(
+            m.temperature.as_ref().unwrap().kind.as_deref(),
+            Some("potential")
+        );
         assert!(m.alkalinity.is_none());
     }
 
     #[test]
     fn unknown_role_and_kind_are_errors() {
         let e = VariableMapping::from_toml_str("dicc = \"DIC\"", "m.toml").unwrap_err();
-        assert!(e.to_string().contains("m.toml") && e.to_string().contains("dicc"), "{e}");
+        assert!(
+            e.to_string().contains("m.toml") && e.to_string().contains("dicc"),
+            "{e}"
+        );
         let e = VariableMapping::from_toml_str(
             "salinity = { name = \"s\", kind = \"relative\" }",
             "m.toml",
@@ -314,7 +330,10 @@ mod tests {
         let mut m = VariableMapping::default();
         m.set("alkalinity", "ALK").unwrap();
         m.set("alkalinity.units", "mmol m-3").unwrap();
-        assert_eq!(m.alkalinity.as_ref().unwrap().units.as_deref(), Some("mmol m-3"));
+        assert_eq!(
+            m.alkalinity.as_ref().unwrap().units.as_deref(),
+            Some("mmol m-3")
+        );
         assert!(m.set("ph", "x").is_err());
         assert!(m.set("dic.units", "mol m-3").is_err());
     }

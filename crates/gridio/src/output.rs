@@ -32,7 +32,13 @@ fn ensure_dim(out: &mut netcdf::FileMut, name: &str, len: usize) -> Result<()> {
     }
 }
 
-const FILL_FAMILY: [&str; 5] = ["_FillValue", "missing_value", "valid_min", "valid_max", "valid_range"];
+const FILL_FAMILY: [&str; 5] = [
+    "_FillValue",
+    "missing_value",
+    "valid_min",
+    "valid_max",
+    "valid_range",
+];
 
 /// Converts a numeric attribute to double (for variables written as f64).
 fn as_double(value: AttributeValue) -> AttributeValue {
@@ -106,9 +112,11 @@ fn copy_static(file: &InputFile, name: &str, out: &mut netcdf::FileMut) -> Resul
             message: "variable vanished after definition".to_string(),
         })?;
         if dims.is_empty() {
-            v.put_value(values[0], ()).map_err(|e| write_error(name, e))?;
+            v.put_value(values[0], ())
+                .map_err(|e| write_error(name, e))?;
         } else {
-            v.put_values(&values, ..).map_err(|e| write_error(name, e))?;
+            v.put_values(&values, ..)
+                .map_err(|e| write_error(name, e))?;
         }
     }
     Ok(())
@@ -177,7 +185,8 @@ pub(crate) fn write_coordinates(
             if let Some(bvar) = src_file.nc.variable(bname) {
                 let bdims = dim_names(&bvar);
                 let blens = dim_lens(&bvar);
-                if bdims.len() == 2 {
+                // CF bounds: (time, 2), values already joined in that layout.
+                if bdims.len() == 2 && bdims[0] == time.dim_name && blens[1] == 2 {
                     ensure_dim(out, &bdims[1], blens[1])?;
                     out.add_variable::<f64>(bname, &[&time.dim_name, &bdims[1]])
                         .map_err(|e| write_error(bname, e))?;
@@ -277,7 +286,11 @@ fn copy_free_surface(
         .and_then(|piece| piece.mask.missing.first().copied())
         .unwrap_or(9.969_209_968_386_869e36);
     let rows = 0..run.shape.rows;
-    let frames: Vec<usize> = if has_time { steps.clone().collect() } else { vec![0] };
+    let frames: Vec<usize> = if has_time {
+        steps.clone().collect()
+    } else {
+        vec![0]
+    };
     for (i, step) in frames.into_iter().enumerate() {
         let values: Vec<f64> = p
             .eta

@@ -70,7 +70,11 @@ pub(crate) fn report(run: &Run) -> String {
         shape.levels,
         shape.rows,
         shape.cols,
-        if h.curvilinear { "curvilinear" } else { "rectilinear" },
+        if h.curvilinear {
+            "curvilinear"
+        } else {
+            "rectilinear"
+        },
         h.y_dim,
         h.x_dim,
         h.lat_name
@@ -111,9 +115,13 @@ pub(crate) fn report(run: &Run) -> String {
             let _ = writeln!(out, "Time: none (one step)");
         }
     }
-    let _ = writeln!(out, "Density for per-volume concentrations: {}", match run.density {
-        crate::DensityChoice::InSitu => "in-situ (TEOS-10)".to_string(),
-        crate::DensityChoice::Reference(r) => format!("reference {r} kg m-3"),
-    });
+    let _ = writeln!(
+        out,
+        "Density for per-volume concentrations: {}",
+        match run.density {
+            crate::DensityChoice::InSitu => "in-situ (TEOS-10)".to_string(),
+            crate::DensityChoice::Reference(r) => format!("reference {r} kg m-3"),
+        }
+    );
     out
 }

@@ -81,10 +81,12 @@ impl Role {
                 "sea_water_absolute_salinity",
             ],
             Role::Phosphate => &[
+                "mole_concentration_of_dissolved_inorganic_phosphorus_in_sea_water",
                 "mole_concentration_of_phosphate_in_sea_water",
                 "moles_of_phosphate_per_unit_mass_in_sea_water",
             ],
             Role::Silicate => &[
+                "mole_concentration_of_dissolved_inorganic_silicon_in_sea_water",
                 "mole_concentration_of_silicate_in_sea_water",
                 "moles_of_silicate_per_unit_mass_in_sea_water",
             ],

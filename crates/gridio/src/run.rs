@@ -13,6 +13,7 @@ use crate::timeline::{file_time, join_variable, FileTime, TimeSpan};
 use crate::units::{self, Concentration, SalinityUnits, TemperatureUnits};
 use crate::vertical::{vertical_from, Vertical};
 use crate::{DensityChoice, GridShape, OutputAxes, RunSpec, SlabInputs};
+use rayon::prelude::*;
 use std::ops::Range;
 use std::path::PathBuf;
 
@@ -119,7 +120,11 @@ fn find_role(
     catalog: &[(String, Option<String>, usize)],
 ) -> Result<Option<(String, &'static str, Vec<usize>)>> {
     let holders = |name: &str| -> Vec<usize> {
-        let mut files: Vec<usize> = catalog.iter().filter(|(n, _, _)| n == name).map(|(_, _, f)| *f).collect();
+        let mut files: Vec<usize> = catalog
+            .iter()
+            .filter(|(n, _, _)| n == name)
+            .map(|(_, _, f)| *f)
+            .collect();
         files.dedup();
         files
     };
@@ -135,7 +140,10 @@ fn find_role(
         return Ok(Some((mapped.name.clone(), "user mapping", found)));
     }
     for standard in role.standard_names() {
-        if let Some((name, _, _)) = catalog.iter().find(|(_, s, _)| s.as_deref() == Some(*standard)) {
+        if let Some((name, _, _)) = catalog
+            .iter()
+            .find(|(_, s, _)| s.as_deref() == Some(*standard))
+        {
             return Ok(Some((name.clone(), "CF standard_name", holders(name))));
         }
     }
@@ -194,13 +202,16 @@ fn conversion_for(
             let kind = match kind_override.and_then(SalinityKind::parse) {
                 Some(kind) => kind,
                 None => match (standard_name, parsed) {
-                    (Some("sea_water_absolute_salinity"), _) | (_, SalinityUnits::Absolute { .. }) => SalinityKind::Absolute,
+                    (Some("sea_water_absolute_salinity"), _)
+                    | (_, SalinityUnits::Absolute { .. }) => SalinityKind::Absolute,
                     _ => SalinityKind::Practical,
                 },
             };
             let parsed = match (kind, parsed) {
                 // Absolute salinity labelled "1"/"psu"-like: take the numbers as g kg-1.
-                (SalinityKind::Absolute, SalinityUnits::Practical) => SalinityUnits::Absolute { to_g_per_kg: 1.0 },
+                (SalinityKind::Absolute, SalinityUnits::Practical) => {
+                    SalinityUnits::Absolute { to_g_per_kg: 1.0 }
+                }
                 (_, p) => p,
             };
             Conversion::Salinity(kind, parsed)
@@ -208,11 +219,17 @@ fn conversion_for(
         Role::Pressure => {
             let p = units::parse_pressure(units_text).map_err(err)?;
             // `sea_water_pressure` includes the atmosphere: subtract one standard atmosphere, 10.1325 dbar (common practice).
-            let atmosphere = if standard_name == Some("sea_water_pressure") { 10.1325 } else { 0.0 };
+            let atmosphere = if standard_name == Some("sea_water_pressure") {
+                10.1325
+            } else {
+                0.0
+            };
             Conversion::Pressure(p.to_dbar, atmosphere)
         }
         Role::CellArea => Conversion::Area(units::parse_area(units_text).map_err(err)?.to_m2),
-        Role::SeaFloorDepth => Conversion::Length(units::parse_length(units_text).map_err(err)?.to_m),
+        Role::SeaFloorDepth => {
+            Conversion::Length(units::parse_length(units_text).map_err(err)?.to_m)
+        }
     })
 }
 
@@ -266,6 +283,7 @@ fn close(a: f64, b: f64) -> bool {
 impl Run {
     /// Opens and validates a run: finds every input, checks units, grids and time.
     pub fn open(spec: &RunSpec) -> Result<Run> {
+        crate::catalog::silence_hdf5_diagnostics();
         if let DensityChoice::Reference(rho) = spec.density {
             if !(rho.is_finite() && rho > 0.0) {
                 return Err(GridError::Mapping {
@@ -306,7 +324,12 @@ impl Run {
         let ref_var = crate::catalog::require_var(&files[grid_file], ref_name, "the run")?;
         let ref_axes = classify_dims(&files[grid_file], &ref_var)?;
         let ref_dims = crate::catalog::dim_names(&ref_var);
-        let dim_of = |axis: Axis| ref_axes.iter().position(|a| *a == axis).map(|i| ref_dims[i].clone());
+        let dim_of = |axis: Axis| {
+            ref_axes
+                .iter()
+                .position(|a| *a == axis)
+                .map(|i| ref_dims[i].clone())
+        };
         let (y_dim, x_dim) = match (dim_of(Axis::Y), dim_of(Axis::X)) {
             (Some(y), Some(x)) => (y, x),
             _ => {
@@ -367,7 +390,11 @@ impl Run {
                     }
                     Some(run_time) => {
                         let same = run_time.values.len() == joined.values.len()
-                            && run_time.values.iter().zip(&joined.values).all(|(a, b)| close(*a, *b));
+                            && run_time
+                                .values
+                                .iter()
+                                .zip(&joined.values)
+                                .all(|(a, b)| close(*a, *b));
                         if !same {
                             let span = |v: &[f64]| {
                                 let d = |x: Option<&f64>| {
@@ -445,7 +472,11 @@ impl Run {
                 let have = input.source.len_of(axis);
                 let ok = match (have, want) {
                     (Some(h), Some(w)) => h == w,
-                    (None, _) => axis != Axis::Y && axis != Axis::X && !(input.role.per_cell() && want.is_some_and(|w| w > 1)),
+                    (None, _) => {
+                        axis != Axis::Y
+                            && axis != Axis::X
+                            && !(input.role.per_cell() && want.is_some_and(|w| w > 1))
+                    }
                     (Some(h), None) => h == 1,
                 };
                 if ok {
@@ -486,7 +517,8 @@ impl Run {
                 return Err(GridError::Metadata {
                     file: files[grid_file].path.clone(),
                     variable: name.to_string(),
-                    message: "named in formula_terms, but no input file has this variable".to_string(),
+                    message: "named in formula_terms, but no input file has this variable"
+                        .to_string(),
                 });
             }
             let first = &files[holders[0]];
@@ -510,7 +542,9 @@ impl Run {
                 return Err(GridError::Mismatch {
                     file: first.path.clone(),
                     variable: name.to_string(),
-                    message: format!("expected a ({rows} rows × {cols} columns) field on the run's grid"),
+                    message: format!(
+                        "expected a ({rows} rows × {cols} columns) field on the run's grid"
+                    ),
                 });
             }
             Ok(source)
@@ -575,7 +609,7 @@ impl Run {
     /// Counts wet cells (all required inputs present) at the first time step, in blocks
     /// of rows, and decides the salinity scale from the typical salinity value.
     fn count_wet_cells(&mut self) -> Result<()> {
-        let block = (4_000_000 / (self.shape.levels * self.shape.cols).max(1)).max(1);
+        let block = (1_000_000 / (self.shape.levels * self.shape.cols).max(1)).max(1);
         let mut wet = 0u64;
         let mut salinity_sum = 0.0;
         let mut row = 0;
@@ -596,7 +630,9 @@ impl Run {
         }
         self.wet_cells = wet;
         if wet > 0 {
-            if let Conversion::Salinity(SalinityKind::Practical, _) = self.required(Role::Salinity).conversion {
+            if let Conversion::Salinity(SalinityKind::Practical, _) =
+                self.required(Role::Salinity).conversion
+            {
                 self.salinity_scale = units::practical_salinity_scale(salinity_sum / wet as f64);
             }
         }
@@ -625,6 +661,7 @@ impl Run {
 
     /// Reads and converts one slab: time step `step`, all levels, rows `rows`, all columns.
     pub fn read_slab(&self, step: usize, rows: Range<usize>) -> Result<SlabInputs> {
+        crate::catalog::silence_hdf5_diagnostics();
         if step >= self.time_steps() || rows.start >= rows.end || rows.end > self.shape.rows {
             return Err(GridError::OutOfRange {
                 message: format!(
@@ -653,32 +690,30 @@ impl Run {
         let silicate_raw = optional(Role::Silicate)?;
         let pressure_raw = optional(Role::Pressure)?;
 
-        // Depth and pressure per cell.
+        // Depth and pressure per cell (parallel: the cell-wise TEOS-10 work dominates).
         let (z, eta) = self.vertical.heights(&self.files, step, &rows, cols)?;
         let latitude = self.latitude_per_column(&rows)?;
-        let mut depth_m = vec![0.0; cells];
-        let mut pressure_dbar = vec![0.0; cells];
-        for c in 0..cells {
-            let column = c % columns;
-            let lat = latitude.as_ref().map_or(0.0, |l| l[column]);
-            let (depth, below_surface) = match &self.vertical {
-                Vertical::Pressures { dbar, .. } => {
+        let depth_and_pressure: Vec<(f64, f64)> = (0..cells)
+            .into_par_iter()
+            .map(|c| {
+                let column = c % columns;
+                let lat = latitude.as_ref().map_or(0.0, |l| l[column]);
+                if let Vertical::Pressures { dbar, .. } = &self.vertical {
                     let p = dbar[c / columns];
-                    pressure_dbar[c] = p;
-                    let d = seawater::depth_from_sea_pressure(p, lat);
-                    (d, d)
+                    return (seawater::depth_from_sea_pressure(p, lat), p);
                 }
-                _ => (-z[c], eta[column] - z[c]),
-            };
-            depth_m[c] = depth;
-            if !matches!(self.vertical, Vertical::Pressures { .. }) {
-                pressure_dbar[c] = if below_surface.is_finite() {
-                    seawater::sea_pressure_from_depth(below_surface.max(0.0), lat).unwrap_or(f64::NAN)
+                let below_surface = eta[column] - z[c];
+                let p = if below_surface.is_finite() {
+                    seawater::sea_pressure_from_depth(below_surface.max(0.0), lat)
+                        .unwrap_or(f64::NAN)
                 } else {
                     f64::NAN
                 };
-            }
-        }
+                (-z[c], p)
+            })
+            .collect();
+        let (depth_m, mut pressure_dbar): (Vec<f64>, Vec<f64>) =
+            depth_and_pressure.into_iter().unzip();
         if let (Some(raw), Some(input)) = (&pressure_raw, self.input(Role::Pressure)) {
             if let Conversion::Pressure(to_dbar, atmosphere) = input.conversion {
                 for (p, r) in pressure_dbar.iter_mut().zip(raw) {
@@ -701,54 +736,69 @@ impl Run {
             _ => None,
         };
         let (dic_units, alk_units) = (concentration(Role::Dic), concentration(Role::Alkalinity));
-        let (po4_units, si_units) = (concentration(Role::Phosphate), concentration(Role::Silicate));
-        let mut slab = SlabInputs {
+        let (po4_units, si_units) = (
+            concentration(Role::Phosphate),
+            concentration(Role::Silicate),
+        );
+        // Per cell: [salinity, temperature, density, dic, alkalinity, phosphate, silicate].
+        let converted: Vec<[f64; 7]> = (0..cells)
+            .into_par_iter()
+            .map(|c| {
+                let p = pressure_dbar[c];
+                let sp = match salinity_conversion {
+                    (SalinityKind::Practical, _) => salinity_raw[c] * self.salinity_scale,
+                    (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
+                        seawater::practical_from_absolute(salinity_raw[c] * to_g_per_kg)
+                    }
+                    (SalinityKind::Absolute, SalinityUnits::Practical) => {
+                        seawater::practical_from_absolute(salinity_raw[c])
+                    }
+                };
+                let t_file = t_scale.to_celsius(temperature_raw[c]);
+                let t = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
+                    seawater::in_situ_temperature(t_kind, t_file, sp, p).unwrap_or(f64::NAN)
+                } else {
+                    f64::NAN
+                };
+                let rho = match self.density {
+                    DensityChoice::Reference(rho) => rho,
+                    DensityChoice::InSitu if t.is_finite() => {
+                        seawater::in_situ_density(sp, t, p).unwrap_or(f64::NAN)
+                    }
+                    DensityChoice::InSitu => f64::NAN,
+                };
+                let convert = |units: Option<Concentration>, v: f64| {
+                    units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, rho))
+                };
+                let nutrient = |units, raw: &Option<Vec<f64>>| {
+                    raw.as_ref().map_or(0.0, |r| convert(units, r[c]))
+                };
+                [
+                    sp,
+                    t,
+                    rho,
+                    convert(dic_units, dic_raw[c]),
+                    convert(alk_units, alkalinity_raw[c]),
+                    nutrient(po4_units, &phosphate_raw),
+                    nutrient(si_units, &silicate_raw),
+                ]
+            })
+            .collect();
+        let column_of = |i: usize| converted.iter().map(|v| v[i]).collect::<Vec<f64>>();
+        let slab = SlabInputs {
             step,
             rows: rows.clone(),
             shape: [self.shape.levels, rows.len(), cols],
-            temperature_c: vec![f64::NAN; cells],
-            salinity: vec![f64::NAN; cells],
+            salinity: column_of(0),
+            temperature_c: column_of(1),
+            density_kg_m3: column_of(2),
+            dic: column_of(3),
+            alkalinity: column_of(4),
+            phosphate: column_of(5),
+            silicate: column_of(6),
             pressure_dbar,
-            dic: vec![f64::NAN; cells],
-            alkalinity: vec![f64::NAN; cells],
-            phosphate: vec![0.0; cells],
-            silicate: vec![0.0; cells],
-            density_kg_m3: vec![f64::NAN; cells],
             depth_m,
         };
-        for c in 0..cells {
-            let p = slab.pressure_dbar[c];
-            let sp = match salinity_conversion {
-                (SalinityKind::Practical, _) => salinity_raw[c] * self.salinity_scale,
-                (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
-                    seawater::practical_from_absolute(salinity_raw[c] * to_g_per_kg)
-                }
-                (SalinityKind::Absolute, SalinityUnits::Practical) => seawater::practical_from_absolute(salinity_raw[c]),
-            };
-            slab.salinity[c] = sp;
-            let t_file = t_scale.to_celsius(temperature_raw[c]);
-            let t = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
-                seawater::in_situ_temperature(t_kind, t_file, sp, p).unwrap_or(f64::NAN)
-            } else {
-                f64::NAN
-            };
-            slab.temperature_c[c] = t;
-            let rho = match self.density {
-                DensityChoice::Reference(rho) => rho,
-                DensityChoice::InSitu if t.is_finite() => seawater::in_situ_density(sp, t, p).unwrap_or(f64::NAN),
-                DensityChoice::InSitu => f64::NAN,
-            };
-            slab.density_kg_m3[c] = rho;
-            let convert = |units: Option<Concentration>, v: f64| units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, rho));
-            slab.dic[c] = convert(dic_units, dic_raw[c]);
-            slab.alkalinity[c] = convert(alk_units, alkalinity_raw[c]);
-            if let Some(raw) = &phosphate_raw {
-                slab.phosphate[c] = convert(po4_units, raw[c]);
-            }
-            if let Some(raw) = &silicate_raw {
-                slab.silicate[c] = convert(si_units, raw[c]);
-            }
-        }
         Ok(slab)
     }
 
@@ -762,7 +812,12 @@ impl Run {
             return Ok(Some(values));
         }
         let cols = self.shape.cols;
-        Ok(Some(values.iter().flat_map(|v| std::iter::repeat_n(*v, cols)).collect()))
+        Ok(Some(
+            values
+                .iter()
+                .flat_map(|v| std::iter::repeat_n(*v, cols))
+                .collect(),
+        ))
     }
 
     /// Time span as (first, last) dates, when the run has time.
@@ -805,7 +860,10 @@ impl Run {
         if self.salinity_scale != 1.0 {
             out.push((
                 "salinity_scale".to_string(),
-                format!("salinity values look like mass fractions; multiplied by {}", self.salinity_scale),
+                format!(
+                    "salinity values look like mass fractions; multiplied by {}",
+                    self.salinity_scale
+                ),
             ));
         }
         for (key, text) in seawater::PROVENANCE_NOTES {
@@ -820,23 +878,40 @@ impl Run {
     }
 
     /// Copies the run's coordinates into an output file (see [`crate::OutputAxes`]).
-    pub fn write_coordinates(&self, out: &mut netcdf::FileMut, steps: Range<usize>) -> Result<OutputAxes> {
+    pub fn write_coordinates(
+        &self,
+        out: &mut netcdf::FileMut,
+        steps: Range<usize>,
+    ) -> Result<OutputAxes> {
+        crate::catalog::silence_hdf5_diagnostics();
         crate::output::write_coordinates(self, out, steps)
     }
 }
 
 /// Horizontal grid of the reference file: rectilinear when the Y/X dimensions have 1-D
 /// latitude/longitude coordinate variables, curvilinear with 2-D ones in `coordinates`.
-fn horizontal_grid(files: &[InputFile], grid_file: usize, ref_name: &str, y_dim: &str, x_dim: &str) -> Result<Horizontal> {
+fn horizontal_grid(
+    files: &[InputFile],
+    grid_file: usize,
+    ref_name: &str,
+    y_dim: &str,
+    x_dim: &str,
+) -> Result<Horizontal> {
     let file = &files[grid_file];
     let var = crate::catalog::require_var(file, ref_name, "the run")?;
     let is_lat = |v: &netcdf::Variable| {
         let sn = attr_text(v, "standard_name").unwrap_or_default();
-        sn == "latitude" || (sn.is_empty() && axis_of_coordinate(v) == Some(Axis::Y) && attr_text(v, "units").is_some_and(|u| u.to_ascii_lowercase().contains("north")))
+        sn == "latitude"
+            || (sn.is_empty()
+                && axis_of_coordinate(v) == Some(Axis::Y)
+                && attr_text(v, "units").is_some_and(|u| u.to_ascii_lowercase().contains("north")))
     };
     let is_lon = |v: &netcdf::Variable| {
         let sn = attr_text(v, "standard_name").unwrap_or_default();
-        sn == "longitude" || (sn.is_empty() && axis_of_coordinate(v) == Some(Axis::X) && attr_text(v, "units").is_some_and(|u| u.to_ascii_lowercase().contains("east")))
+        sn == "longitude"
+            || (sn.is_empty()
+                && axis_of_coordinate(v) == Some(Axis::X)
+                && attr_text(v, "units").is_some_and(|u| u.to_ascii_lowercase().contains("east")))
     };
     let mut horizontal = Horizontal {
         curvilinear: false,
@@ -854,9 +929,13 @@ fn horizontal_grid(files: &[InputFile], grid_file: usize, ref_name: &str, y_dim:
         horizontal.lon_name = one_d_lon.map(|_| x_dim.to_string());
     } else {
         for aux in auxiliary_coordinates(file, &var) {
-            let Some(v) = file.nc.variable(&aux) else { continue };
+            let Some(v) = file.nc.variable(&aux) else {
+                continue;
+            };
             let dims = crate::catalog::dim_names(&v);
-            let on_grid = dims.len() == 2 && dims.contains(&y_dim.to_string()) && dims.contains(&x_dim.to_string());
+            let on_grid = dims.len() == 2
+                && dims.contains(&y_dim.to_string())
+                && dims.contains(&x_dim.to_string());
             if on_grid && is_lat(&v) {
                 horizontal.lat_name = Some(aux.clone());
                 horizontal.curvilinear = true;
@@ -889,8 +968,17 @@ fn horizontal_grid(files: &[InputFile], grid_file: usize, ref_name: &str, y_dim:
 }
 
 /// Every file holding an input must carry the same latitude/longitude values as the grid file.
-fn check_same_horizontal(files: &[InputFile], inputs: &[Input], grid_file: usize, horizontal: &Horizontal) -> Result<()> {
-    let names: Vec<&String> = horizontal.lat_name.iter().chain(horizontal.lon_name.iter()).collect();
+fn check_same_horizontal(
+    files: &[InputFile],
+    inputs: &[Input],
+    grid_file: usize,
+    horizontal: &Horizontal,
+) -> Result<()> {
+    let names: Vec<&String> = horizontal
+        .lat_name
+        .iter()
+        .chain(horizontal.lon_name.iter())
+        .collect();
     let mut reference = Vec::new();
     for name in &names {
         let var = crate::catalog::require_var(&files[grid_file], name, "the grid")?;
@@ -905,9 +993,15 @@ fn check_same_horizontal(files: &[InputFile], inputs: &[Input], grid_file: usize
             }
             let file = &files[piece.file];
             for (name, want) in names.iter().zip(&reference) {
-                let Some(var) = file.nc.variable(name) else { continue };
+                let Some(var) = file.nc.variable(name) else {
+                    continue;
+                };
                 let have = read_all(&file.path, &var)?;
-                let same = have.len() == want.len() && have.iter().zip(want).all(|(a, b)| close(*a, *b) || (a.is_nan() && b.is_nan()));
+                let same = have.len() == want.len()
+                    && have
+                        .iter()
+                        .zip(want)
+                        .all(|(a, b)| close(*a, *b) || (a.is_nan() && b.is_nan()));
                 if !same {
                     return Err(GridError::Mismatch {
                         file: file.path.clone(),

@@ -43,7 +43,11 @@ impl VarSource {
                 None => first = Some((axes, lens, span.file)),
                 Some((axes0, lens0, file0)) => {
                     let strip = |a: &[Axis], l: &[usize]| -> Vec<(Axis, usize)> {
-                        a.iter().zip(l).filter(|(a, _)| **a != Axis::T).map(|(a, l)| (*a, *l)).collect()
+                        a.iter()
+                            .zip(l)
+                            .filter(|(a, _)| **a != Axis::T)
+                            .map(|(a, l)| (*a, *l))
+                            .collect()
                     };
                     let mut want = strip(axes0, lens0);
                     let mut have = strip(&axes, &lens);
@@ -101,7 +105,10 @@ impl VarSource {
                 Some(p) if step < p.first_step + p.steps => p,
                 _ => {
                     return Err(GridError::OutOfRange {
-                        message: format!("time step {step} not in any file of variable {}", self.name),
+                        message: format!(
+                            "time step {step} not in any file of variable {}",
+                            self.name
+                        ),
                     })
                 }
             }

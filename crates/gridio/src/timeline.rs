@@ -22,7 +22,10 @@ pub(crate) struct FileTime {
 pub(crate) fn file_time(file: &InputFile) -> Result<Option<FileTime>> {
     for var in file.nc.variables() {
         let dims = var.dimensions();
-        if dims.len() != 1 || dims[0].name() != var.name() || axis_of_coordinate(&var) != Some(Axis::T) {
+        if dims.len() != 1
+            || dims[0].name() != var.name()
+            || axis_of_coordinate(&var) != Some(Axis::T)
+        {
             continue;
         }
         let name = var.name();
@@ -31,8 +34,12 @@ pub(crate) fn file_time(file: &InputFile) -> Result<Option<FileTime>> {
             variable: name.clone(),
             message,
         };
-        let units = attr_text(&var, "units")
-            .ok_or_else(|| fail("time coordinate has no `units` attribute; expected e.g. \"days since 1850-01-01\"".to_string()))?;
+        let units = attr_text(&var, "units").ok_or_else(|| {
+            fail(
+                "time coordinate has no `units` attribute; expected e.g. \"days since 1850-01-01\""
+                    .to_string(),
+            )
+        })?;
         let calendar = attr_text(&var, "calendar");
         let axis = TimeAxis::parse(&units, calendar.as_deref()).map_err(|e| fail(e.to_string()))?;
         let values = read_all(&file.path, &var)?;
@@ -93,7 +100,8 @@ pub(crate) fn join_variable(
             return Err(GridError::Metadata {
                 file: files[f].path.clone(),
                 variable: variable.to_string(),
-                message: "has a time dimension but the file has no time coordinate variable".to_string(),
+                message: "has a time dimension but the file has no time coordinate variable"
+                    .to_string(),
             });
         };
         let values = t

@@ -29,9 +29,17 @@ pub(crate) enum Formula {
     /// `ocean_sigma_coordinate`: sigma(k).
     Sigma { sigma: Vec<f64> },
     /// `ocean_s_coordinate_g1`: s(k), C(k), depth_c.
-    SG1 { s: Vec<f64>, c: Vec<f64>, depth_c: f64 },
+    SG1 {
+        s: Vec<f64>,
+        c: Vec<f64>,
+        depth_c: f64,
+    },
     /// `ocean_s_coordinate_g2`: s(k), C(k), depth_c.
-    SG2 { s: Vec<f64>, c: Vec<f64>, depth_c: f64 },
+    SG2 {
+        s: Vec<f64>,
+        c: Vec<f64>,
+        depth_c: f64,
+    },
 }
 
 #[derive(Clone, Debug)]
@@ -164,8 +172,12 @@ impl Vertical {
                         let (e, d) = (eta[c], depth[c]);
                         z.push(match &p.formula {
                             Formula::Sigma { sigma } => sigma_height(sigma[k], e, d),
-                            Formula::SG1 { s, c: cs, depth_c } => s_g1_height(s[k], cs[k], *depth_c, e, d),
-                            Formula::SG2 { s, c: cs, depth_c } => s_g2_height(s[k], cs[k], *depth_c, e, d),
+                            Formula::SG1 { s, c: cs, depth_c } => {
+                                s_g1_height(s[k], cs[k], *depth_c, e, d)
+                            }
+                            Formula::SG2 { s, c: cs, depth_c } => {
+                                s_g2_height(s[k], cs[k], *depth_c, e, d)
+                            }
                         });
                     }
                 }
@@ -233,11 +245,13 @@ pub(crate) fn vertical_from(
             let holder = &files[source.pieces[0].file];
             let v = require_var(holder, var_name, "formula_terms")?;
             let text = attr_text(&v, "units").unwrap_or_else(|| "m".to_string());
-            units::parse_length(&text).map(|u| u.to_m).map_err(|e| GridError::Units {
-                file: holder.path.clone(),
-                variable: var_name.to_string(),
-                message: e.to_string(),
-            })
+            units::parse_length(&text)
+                .map(|u| u.to_m)
+                .map_err(|e| GridError::Units {
+                    file: holder.path.clone(),
+                    variable: var_name.to_string(),
+                    message: e.to_string(),
+                })
         };
         let formula = match standard_name.as_str() {
             "ocean_sigma_coordinate" => Formula::Sigma {
@@ -312,10 +326,17 @@ pub(crate) fn vertical_from(
     if let Ok(pressure) = units::parse_pressure(&units_text) {
         if !units_text.is_empty() {
             // `sea_water_pressure` includes the atmosphere: subtract one standard atmosphere, 10.1325 dbar (common practice).
-            let atmosphere = if standard_name == "sea_water_pressure" { 10.1325 } else { 0.0 };
+            let atmosphere = if standard_name == "sea_water_pressure" {
+                10.1325
+            } else {
+                0.0
+            };
             return Ok(Vertical::Pressures {
                 name: name.to_string(),
-                dbar: values.iter().map(|v| v * pressure.to_dbar - atmosphere).collect(),
+                dbar: values
+                    .iter()
+                    .map(|v| v * pressure.to_dbar - atmosphere)
+                    .collect(),
             });
         }
     }

@@ -27,56 +27,70 @@ fn missing_required_variable_lists_what_was_found() {
     }
     let e = open_err(all(dir.path()));
     assert!(e.contains("no alkalinity variable"), "{e}");
-    assert!(e.contains("talk") && e.contains("sea_water_alkalinity_expressed_as_mole_equivalent"), "{e}");
-    assert!(e.contains("dissic (mole_concentration_of_dissolved_inorganic_carbon_in_sea_water)"), "{e}");
+    assert!(
+        e.contains("talk") && e.contains("sea_water_alkalinity_expressed_as_mole_equivalent"),
+        "{e}"
+    );
+    assert!(
+        e.contains("dissic (mole_concentration_of_dissolved_inorganic_carbon_in_sea_water)"),
+        "{e}"
+    );
     assert!(e.contains("--variable alkalinity=NAME"), "{e}");
 }
 
 #[test]
 fn unknown_units_name_file_and_variable() {
     let dir = tempdir().unwrap();
-    let times = noleap_months(1);
-    for var in ["dissic", "thetao", "so"] {
-        cmip_file(dir.path(), var, "a", 0..1, &times, "noleap");
-    }
+    let times = three_of_four(dir.path());
     let path = dir.path().join("talk_a.nc");
     let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
-    vars.push(data_var("talk", "alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "furlongs per fortnight", "tzyx", 0..1, GRID));
+    vars.push(data_var(
+        "talk",
+        "alkalinity",
+        "sea_water_alkalinity_expressed_as_mole_equivalent",
+        "furlongs per fortnight",
+        "tzyx",
+        0..1,
+        GRID,
+    ));
     write_nc(&path, &dims(GRID, 1), &vars);
     let e = open_err(all(dir.path()));
-    assert!(e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("furlongs per fortnight"), "{e}");
+    assert!(
+        e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("furlongs per fortnight"),
+        "{e}"
+    );
 }
 
 #[test]
 fn mismatched_grid_shape_names_file_and_variable() {
     let dir = tempdir().unwrap();
-    let times = noleap_months(1);
-    for var in ["dissic", "thetao", "so"] {
-        cmip_file(dir.path(), var, "a", 0..1, &times, "noleap");
-    }
+    let times = three_of_four(dir.path());
     let narrow = Grid { cols: 4, ..GRID };
     let path = dir.path().join("talk_a.nc");
     let mut vars = coordinates(narrow, &times, "days since 2015-01-01", "noleap");
-    vars.push(data_var("talk", "alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3", "tzyx", 0..1, narrow));
+    vars.push(cmip_var("talk", "tzyx", 0..1, narrow));
     write_nc(&path, &dims(narrow, 1), &vars);
     let e = open_err(all(dir.path()));
-    assert!(e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("X (columns) length is 4"), "{e}");
+    assert!(
+        e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("X (columns) length is 4"),
+        "{e}"
+    );
 }
 
 #[test]
 fn mismatched_coordinate_values_are_refused() {
     let dir = tempdir().unwrap();
-    let times = noleap_months(1);
-    for var in ["dissic", "thetao", "so"] {
-        cmip_file(dir.path(), var, "a", 0..1, &times, "noleap");
-    }
+    let times = three_of_four(dir.path());
     let path = dir.path().join("talk_a.nc");
     let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
     vars[2].values[0] += 0.5; // shifted latitude
-    vars.push(data_var("talk", "alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3", "tzyx", 0..1, GRID));
+    vars.push(cmip_var("talk", "tzyx", 0..1, GRID));
     write_nc(&path, &dims(GRID, 1), &vars);
     let e = open_err(all(dir.path()));
-    assert!(e.contains("talk_a.nc") && e.contains("'lat'") && e.contains("differ"), "{e}");
+    assert!(
+        e.contains("talk_a.nc") && e.contains("'lat'") && e.contains("differ"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -89,7 +103,10 @@ fn time_gap_between_files_names_both() {
         cmip_file(dir.path(), var, "c", 4..6, &times[4..6], "noleap");
     }
     let e = open_err(all(dir.path()));
-    assert!(e.contains("time gap") && e.contains("dissic_a.nc") && e.contains("dissic_c.nc"), "{e}");
+    assert!(
+        e.contains("time gap") && e.contains("dissic_a.nc") && e.contains("dissic_c.nc"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -101,7 +118,10 @@ fn time_overlap_between_files_names_both() {
         cmip_file(dir.path(), var, "b", 1..3, &times[1..3], "noleap");
     }
     let e = open_err(all(dir.path()));
-    assert!(e.contains("time overlap") && e.contains("dissic_a.nc") && e.contains("dissic_b.nc"), "{e}");
+    assert!(
+        e.contains("time overlap") && e.contains("dissic_a.nc") && e.contains("dissic_b.nc"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -113,7 +133,10 @@ fn different_time_axes_between_variables_are_refused() {
     }
     cmip_file(dir.path(), "talk", "a", 0..2, &times[..2], "noleap");
     let e = open_err(all(dir.path()));
-    assert!(e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("time axis"), "{e}");
+    assert!(
+        e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("time axis"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -124,7 +147,10 @@ fn truncated_file_is_unreadable_not_a_panic() {
     let bytes = std::fs::read(victim).unwrap();
     std::fs::write(victim, &bytes[..bytes.len() / 2]).unwrap();
     let e = open_err(all(dir.path()));
-    assert!(e.contains(&victim.display().to_string()) && e.contains("cannot be opened as NetCDF"), "{e}");
+    assert!(
+        e.contains(&victim.display().to_string()) && e.contains("cannot be opened as NetCDF"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -133,7 +159,10 @@ fn not_netcdf_at_all() {
     let path = dir.path().join("notes.nc");
     std::fs::write(&path, "this is text").unwrap();
     let e = open_err(vec![path.display().to_string()]);
-    assert!(e.contains("notes.nc") && e.contains("cannot be opened"), "{e}");
+    assert!(
+        e.contains("notes.nc") && e.contains("cannot be opened"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -142,18 +171,14 @@ fn non_monotonic_depth_is_refused() {
     let times = noleap_months(1);
     let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
     vars[1].values = vec![5.0, 1000.0, 100.0];
-    for (name, field, sn, units) in [
-        ("dissic", "dic", "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water", "mol m-3"),
-        ("talk", "alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3"),
-        ("thetao", "temperature", "sea_water_potential_temperature", "degC"),
-        ("so", "salinity", "sea_water_salinity", "0.001"),
-    ] {
-        vars.push(data_var(name, field, sn, units, "tzyx", 0..1, GRID));
-    }
+    vars.extend(required_vars("tzyx", 0..1, GRID));
     let path = dir.path().join("run.nc");
     write_nc(&path, &dims(GRID, 1), &vars);
     let e = open_err(vec![path.display().to_string()]);
-    assert!(e.contains("run.nc") && e.contains("'lev'") && e.contains("monotonic"), "{e}");
+    assert!(
+        e.contains("run.nc") && e.contains("'lev'") && e.contains("monotonic"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -161,7 +186,10 @@ fn file_not_found_and_empty_glob() {
     let dir = tempdir().unwrap();
     let missing = dir.path().join("nothing_here.nc");
     let e = open_err(vec![missing.display().to_string()]);
-    assert!(e.contains("nothing_here.nc") && e.contains("not found"), "{e}");
+    assert!(
+        e.contains("nothing_here.nc") && e.contains("not found"),
+        "{e}"
+    );
     let e = open_err(vec![format!("{}/*.nc", dir.path().display())]);
     assert!(e.contains("matched no file"), "{e}");
 }
@@ -169,18 +197,26 @@ fn file_not_found_and_empty_glob() {
 #[test]
 fn missing_units_attribute_is_an_error() {
     let dir = tempdir().unwrap();
-    let times = noleap_months(1);
-    for var in ["dissic", "thetao", "so"] {
-        cmip_file(dir.path(), var, "a", 0..1, &times, "noleap");
-    }
+    let times = three_of_four(dir.path());
     let path = dir.path().join("talk_a.nc");
     let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
-    let mut talk = data_var("talk", "alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "x", "tzyx", 0..1, GRID);
+    let mut talk = data_var(
+        "talk",
+        "alkalinity",
+        "sea_water_alkalinity_expressed_as_mole_equivalent",
+        "x",
+        "tzyx",
+        0..1,
+        GRID,
+    );
     talk.attrs.retain(|(k, _)| k != "units");
     vars.push(talk);
     write_nc(&path, &dims(GRID, 1), &vars);
     let e = open_err(all(dir.path()));
-    assert!(e.contains("talk_a.nc") && e.contains("no `units` attribute"), "{e}");
+    assert!(
+        e.contains("talk_a.nc") && e.contains("no `units` attribute"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -190,4 +226,49 @@ fn slab_out_of_range_is_an_error() {
     let run = Run::open(&spec(all(dir.path()))).unwrap();
     assert!(run.read_slab(2, 0..1).is_err());
     assert!(run.read_slab(0, 3..9).is_err());
+}
+
+#[test]
+fn different_calendars_between_files_are_refused() {
+    let dir = tempdir().unwrap();
+    let times = noleap_months(2);
+    for var in ["dissic", "talk", "thetao", "so"] {
+        cmip_file(dir.path(), var, "a", 0..1, &times[..1], "noleap");
+        let calendar = if var == "thetao" { "360_day" } else { "noleap" };
+        cmip_file(dir.path(), var, "b", 1..2, &times[1..], calendar);
+    }
+    let e = open_err(all(dir.path()));
+    assert!(
+        e.contains("thetao_b.nc") && e.contains("'time'") && e.contains("calendars"),
+        "{e}"
+    );
+}
+
+#[test]
+fn mapped_variable_that_does_not_exist() {
+    let dir = tempdir().unwrap();
+    cmip_run(dir.path(), 2, "noleap");
+    let mut spec = spec(all(dir.path()));
+    spec.mapping.set("dic", "DIC_total").unwrap();
+    let e = Run::open(&spec).err().unwrap().to_string();
+    assert!(e.contains("DIC_total") && e.contains("dissic"), "{e}");
+}
+
+#[test]
+fn dimension_of_unknown_axis_is_refused() {
+    let dir = tempdir().unwrap();
+    let times = three_of_four(dir.path());
+    let path = dir.path().join("talk_a.nc");
+    let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
+    let mut talk = cmip_var("talk", "tzyx", 0..1, GRID);
+    talk.dims[3] = "band".to_string();
+    vars.push(talk);
+    let mut file_dims = dims(GRID, 1);
+    file_dims.push(("band", GRID.cols));
+    write_nc(&path, &file_dims, &vars);
+    let e = open_err(all(dir.path()));
+    assert!(
+        e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("dimension 'band'"),
+        "{e}"
+    );
 }

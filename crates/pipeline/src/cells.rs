@@ -97,6 +97,9 @@ pub struct SlabResult {
     pub counts: FlagCounts,
 }
 
+/// One rayon task's share: first cell index, its piece of every field, its flags.
+type Block<'a> = (usize, Vec<&'a mut [f32]>, &'a mut [i8]);
+
 /// Cells handed to one rayon task: large enough to amortise scheduling.
 const CELLS_PER_TASK: usize = 4096;
 
@@ -111,7 +114,7 @@ pub fn solve_slab(
     let mut flags = vec![FLAG_FILL; cells];
 
     // Split every field and the flags into the same blocks, then hand blocks to rayon.
-    let mut blocks: Vec<(usize, Vec<&mut [f32]>, &mut [i8])> = flags
+    let mut blocks: Vec<Block<'_>> = flags
         .chunks_mut(CELLS_PER_TASK)
         .enumerate()
         .map(|(i, f)| (i * CELLS_PER_TASK, Vec::with_capacity(fields.len()), f))

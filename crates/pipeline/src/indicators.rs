@@ -77,7 +77,10 @@ impl FromStr for Indicator {
             .find(|i| i.key() == wanted)
             .ok_or_else(|| PipelineError::Option {
                 option: "--indicators".into(),
-                message: format!("unknown indicator '{text}'; choose from {}", keys(Indicator::ALL)),
+                message: format!(
+                    "unknown indicator '{text}'; choose from {}",
+                    keys(Indicator::ALL)
+                ),
             })
     }
 }
@@ -118,7 +121,10 @@ impl FromStr for PhScale {
             .find(|s| s.key() == wanted)
             .ok_or_else(|| PipelineError::Option {
                 option: "--ph-scales".into(),
-                message: format!("unknown pH scale '{text}'; choose from {}", keys(PhScale::ALL)),
+                message: format!(
+                    "unknown pH scale '{text}'; choose from {}",
+                    keys(PhScale::ALL)
+                ),
             })
     }
 }
@@ -155,7 +161,7 @@ impl ConcentrationUnit {
     }
 
     /// Converts µmol kg-1 to this unit; `density` in kg m-3.
-    fn from_micromol_per_kg(self, value: f64, density: f64) -> f64 {
+    fn convert_micromol_per_kg(self, value: f64, density: f64) -> f64 {
         match self {
             ConcentrationUnit::MolPerCubicMetre => value * 1e-6 * density,
             ConcentrationUnit::MicromolPerKilogram => value,
@@ -188,7 +194,10 @@ impl FromStr for ConcentrationUnit {
 }
 
 fn keys<T: fmt::Display>(all: &[T]) -> String {
-    all.iter().map(|k| k.to_string()).collect::<Vec<_>>().join(", ")
+    all.iter()
+        .map(|k| k.to_string())
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 /// Parses a comma-separated list of keys, dropping repeats and keeping the order given.
@@ -239,7 +248,10 @@ impl IndicatorChoice {
                     if self.ph_scales.is_empty() {
                         return Err(PipelineError::Option {
                             option: "--ph-scales".into(),
-                            message: format!("no pH scale chosen; choose from {}", keys(PhScale::ALL)),
+                            message: format!(
+                                "no pH scale chosen; choose from {}",
+                                keys(PhScale::ALL)
+                            ),
                         });
                     }
                     fields.extend(self.ph_scales.iter().map(|&s| OutputField::ph(s)));
@@ -301,7 +313,11 @@ impl OutputField {
                 "pH on the total scale, in situ",
                 Some("sea_water_ph_reported_on_total_scale"),
             ),
-            PhScale::Seawater => ("ph_seawater_scale", "pH on the seawater scale, in situ", None),
+            PhScale::Seawater => (
+                "ph_seawater_scale",
+                "pH on the seawater scale, in situ",
+                None,
+            ),
             PhScale::Free => ("ph_free_scale", "pH on the free scale, in situ", None),
         };
         OutputField {
@@ -316,15 +332,16 @@ impl OutputField {
 
     fn new(indicator: Indicator, unit: ConcentrationUnit) -> OutputField {
         let per_volume = unit == ConcentrationUnit::MolPerCubicMetre;
-        let concentration = |name, long_name, standard_name: Option<&'static str>, species| OutputField {
-            name,
-            long_name,
-            // CF mole_concentration names are per volume; no per-mass names exist for these.
-            standard_name: if per_volume { standard_name } else { None },
-            units: unit.udunits(),
-            comment: "",
-            quantity: Quantity::Concentration(species, unit),
-        };
+        let concentration =
+            |name, long_name, standard_name: Option<&'static str>, species| OutputField {
+                name,
+                long_name,
+                // CF mole_concentration names are per volume; no per-mass names exist for these.
+                standard_name: if per_volume { standard_name } else { None },
+                units: unit.udunits(),
+                comment: "",
+                quantity: Quantity::Concentration(species, unit),
+            };
         match indicator {
             Indicator::Ph => OutputField::ph(PhScale::Total),
             Indicator::Carbonate => concentration(
@@ -333,9 +350,12 @@ impl OutputField {
                 Some("mole_concentration_of_carbonate_expressed_as_carbon_in_sea_water"),
                 Species::Carbonate,
             ),
-            Indicator::Bicarbonate => {
-                concentration("hco3", "Bicarbonate ion concentration", None, Species::Bicarbonate)
-            }
+            Indicator::Bicarbonate => concentration(
+                "hco3",
+                "Bicarbonate ion concentration",
+                None,
+                Species::Bicarbonate,
+            ),
             Indicator::Co2Star => concentration(
                 "co2_star",
                 "Dissolved CO2 (CO2(aq) + H2CO3) concentration",
@@ -397,7 +417,7 @@ impl OutputField {
                     Species::Bicarbonate => solution.bicarbonate,
                     Species::Co2Star => solution.co2,
                 };
-                unit.from_micromol_per_kg(micromol_per_kg, density_kg_m3)
+                unit.convert_micromol_per_kg(micromol_per_kg, density_kg_m3)
             }
             Quantity::Pco2 => solution.pco2_uatm,
             Quantity::Fco2 => solution.fco2_uatm,
@@ -423,7 +443,14 @@ mod tests {
     #[test]
     fn parses_lists_and_rejects_unknown_keys() {
         let list: Vec<Indicator> = parse_list("ph, co3,omega-aragonite,ph").unwrap();
-        assert_eq!(list, vec![Indicator::Ph, Indicator::Carbonate, Indicator::OmegaAragonite]);
+        assert_eq!(
+            list,
+            vec![
+                Indicator::Ph,
+                Indicator::Carbonate,
+                Indicator::OmegaAragonite
+            ]
+        );
         let err = parse_list::<Indicator>("ph,omega").unwrap_err().to_string();
         assert!(err.contains("omega-aragonite"), "{err}");
     }

@@ -72,12 +72,18 @@ pub struct JobSummary {
 }
 
 /// Plans a job without running it: checks options and output path, and splits the work.
-pub fn plan_job(run: &Run, options: &JobOptions) -> Result<(SlabPlan, Vec<OutputField>), PipelineError> {
+pub fn plan_job(
+    run: &Run,
+    options: &JobOptions,
+) -> Result<(SlabPlan, Vec<OutputField>), PipelineError> {
     let fields = options.indicators.fields()?;
     if !(0..=9).contains(&options.deflate_level) {
         return Err(PipelineError::Option {
             option: "--deflate-level".into(),
-            message: format!("{} is not a deflate level; expected 0 to 9", options.deflate_level),
+            message: format!(
+                "{} is not a deflate level; expected 0 to 9",
+                options.deflate_level
+            ),
         });
     }
     let shape = run.shape();
@@ -103,15 +109,20 @@ fn check_output_path(run: &Run, options: &JobOptions) -> Result<(), PipelineErro
         message,
     };
     if output.file_name().is_none() || output.is_dir() {
-        return Err(refuse("is a directory; give a file name such as indicators.nc".into()));
+        return Err(refuse(
+            "is a directory; give a file name such as indicators.nc".into(),
+        ));
     }
     let directory = match output.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
     };
-    let directory = directory
-        .canonicalize()
-        .map_err(|e| refuse(format!("its directory {} is not usable: {e}", directory.display())))?;
+    let directory = directory.canonicalize().map_err(|e| {
+        refuse(format!(
+            "its directory {} is not usable: {e}",
+            directory.display()
+        ))
+    })?;
     let resolved = directory.join(output.file_name().unwrap_or_default());
     for input in run.input_files() {
         let input = input.canonicalize().unwrap_or(input);
@@ -123,7 +134,9 @@ fn check_output_path(run: &Run, options: &JobOptions) -> Result<(), PipelineErro
         }
     }
     if output.exists() && !options.overwrite && !options.resume {
-        return Err(refuse("already exists; pass --overwrite to replace it".into()));
+        return Err(refuse(
+            "already exists; pass --overwrite to replace it".into(),
+        ));
     }
     let partial = partial_path(output);
     if options.resume {
@@ -195,6 +208,7 @@ pub fn run_job(
     let first_step = record.steps_done.min(plan.steps);
     let mut slabs = plan.slabs(first_step);
 
+    check_writable(&partial, options.resume)?;
     // Read the first slab before any output exists: unreadable inputs fail cleanly.
     let mut read_time = Duration::ZERO;
     let first = match slabs.next() {
@@ -303,7 +317,9 @@ pub fn run_job(
                 if result.rows.end == plan.shape[1] {
                     // A finished time step: make it durable, then record it.
                     let t = Instant::now();
-                    nc(file.sync(), &partial, || format!("flushing time step {}", result.step))?;
+                    nc(file.sync(), &partial, || {
+                        format!("flushing time step {}", result.step)
+                    })?;
                     sync_file(&partial)?;
                     record.steps_done = result.step + 1;
                     record.save(&progress_file)?;
@@ -343,7 +359,10 @@ pub fn run_job(
     sync_file(&partial)?;
     fs::rename(&partial, &output).map_err(|e| PipelineError::Output {
         path: output.clone(),
-        message: format!("cannot rename the finished {} into place: {e}", partial.display()),
+        message: format!(
+            "cannot rename the finished {} into place: {e}",
+            partial.display()
+        ),
     })?;
     let _ = fs::remove_file(&progress_file);
     sync_parent(&output);
@@ -359,6 +378,32 @@ pub fn run_job(
         compute,
         write: write_time,
     })
+}
+
+/// Fails early, before any reading or solving, when the partial file cannot be written.
+fn check_writable(partial: &Path, resume: bool) -> Result<(), PipelineError> {
+    let refuse = |e: std::io::Error| PipelineError::Output {
+        path: partial.to_path_buf(),
+        message: format!("cannot write here: {e}"),
+    };
+    if resume {
+        fs::OpenOptions::new()
+            .append(true)
+            .open(partial)
+            .map_err(refuse)?;
+    } else {
+        let existed = partial.exists();
+        fs::OpenOptions::new()
+            .write(true)
+            .create(true)
+            .truncate(false)
+            .open(partial)
+            .map_err(refuse)?;
+        if !existed {
+            fs::remove_file(partial).map_err(refuse)?;
+        }
+    }
+    Ok(())
 }
 
 fn sync_file(path: &Path) -> Result<(), PipelineError> {

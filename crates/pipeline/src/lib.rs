@@ -17,7 +17,9 @@ pub mod resume;
 
 pub use cells::{CellFlag, FlagCounts, FLAG_FILL, FLAG_MEANINGS, FLAG_VALUES, VALUE_FILL};
 pub use error::PipelineError;
-pub use indicators::{parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale};
+pub use indicators::{
+    parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale,
+};
 pub use job::{plan_job, run_job, JobOptions, JobSummary, NoProgress, Progress};
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};

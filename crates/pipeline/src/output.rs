@@ -114,12 +114,13 @@ pub fn define_output(
     meta: &OutputMetadata,
 ) -> Result<OutputLayout, PipelineError> {
     let axes = run.write_coordinates(file, 0..plan.steps)?;
-    let layout = OutputLayout::new(axes.dims.clone(), plan.shape[0], plan.steps).map_err(|message| {
-        PipelineError::Output {
-            path: path.to_path_buf(),
-            message,
-        }
-    })?;
+    let layout =
+        OutputLayout::new(axes.dims.clone(), plan.shape[0], plan.steps).map_err(|message| {
+            PipelineError::Output {
+                path: path.to_path_buf(),
+                message,
+            }
+        })?;
     let dims: Vec<&str> = layout.dims.iter().map(String::as_str).collect();
     let chunk = layout.chunk(plan);
     let constants_note = format!(
@@ -147,12 +148,16 @@ pub fn define_output(
         if let Some(standard_name) = field.standard_name {
             attributes.push(("standard_name", standard_name.to_string()));
         }
-        let comment = [field.comment, "Computed from alkalinity and DIC.", &constants_note]
-            .iter()
-            .filter(|s| !s.is_empty())
-            .copied()
-            .collect::<Vec<_>>()
-            .join(" ");
+        let comment = [
+            field.comment,
+            "Computed from alkalinity and DIC.",
+            &constants_note,
+        ]
+        .iter()
+        .filter(|s| !s.is_empty())
+        .copied()
+        .collect::<Vec<_>>()
+        .join(" ");
         attributes.push(("comment", comment));
         attributes.push(("ancillary_variables", FLAG_VARIABLE.to_string()));
         if let Some(coordinates) = &axes.coordinates_attr {
@@ -183,14 +188,26 @@ pub fn define_output(
         nc(flag.set_compression(meta.deflate_level, true), path, what)?;
     }
     nc(flag.set_fill_value(FLAG_FILL), path, what)?;
-    nc(flag.put_attribute("standard_name", "status_flag"), path, what)?;
+    nc(
+        flag.put_attribute("standard_name", "status_flag"),
+        path,
+        what,
+    )?;
     nc(
         flag.put_attribute("long_name", "Quality of the computed indicators"),
         path,
         what,
     )?;
-    nc(flag.put_attribute("flag_values", FLAG_VALUES.to_vec()), path, what)?;
-    nc(flag.put_attribute("flag_meanings", FLAG_MEANINGS), path, what)?;
+    nc(
+        flag.put_attribute("flag_values", FLAG_VALUES.to_vec()),
+        path,
+        what,
+    )?;
+    nc(
+        flag.put_attribute("flag_meanings", FLAG_MEANINGS),
+        path,
+        what,
+    )?;
     nc(
         flag.put_attribute("valid_range", vec![FLAG_VALUES[0], FLAG_VALUES[3]]),
         path,
@@ -198,10 +215,18 @@ pub fn define_output(
     )?;
     nc(flag.put_attribute("comment", FLAG_COMMENT), path, what)?;
     if let Some(coordinates) = &axes.coordinates_attr {
-        nc(flag.put_attribute("coordinates", coordinates.as_str()), path, what)?;
+        nc(
+            flag.put_attribute("coordinates", coordinates.as_str()),
+            path,
+            what,
+        )?;
     }
     if let Some(grid_mapping) = &axes.grid_mapping {
-        nc(flag.put_attribute("grid_mapping", grid_mapping.as_str()), path, what)?;
+        nc(
+            flag.put_attribute("grid_mapping", grid_mapping.as_str()),
+            path,
+            what,
+        )?;
     }
 
     for (name, value) in global_attributes(run, meta) {
@@ -302,10 +327,12 @@ pub fn write_slab(
 ) -> Result<(), PipelineError> {
     let extents = layout.extents(result.step, result.rows.clone(), result.shape);
     for (field, values) in fields.iter().zip(&result.fields) {
-        let mut var = file.variable_mut(field.name).ok_or_else(|| PipelineError::Output {
-            path: path.to_path_buf(),
-            message: format!("variable '{}' is missing", field.name),
-        })?;
+        let mut var = file
+            .variable_mut(field.name)
+            .ok_or_else(|| PipelineError::Output {
+                path: path.to_path_buf(),
+                message: format!("variable '{}' is missing", field.name),
+            })?;
         nc(var.put_values(values, extents.clone()), path, || {
             format!("writing '{}' at time step {}", field.name, result.step)
         })?;
@@ -386,7 +413,10 @@ mod tests {
     #[test]
     fn partial_files_sit_beside_the_output() {
         let out = Path::new("/data/out/indicators.nc");
-        assert_eq!(partial_path(out), Path::new("/data/out/.indicators.nc.partial"));
+        assert_eq!(
+            partial_path(out),
+            Path::new("/data/out/.indicators.nc.partial")
+        );
         assert_eq!(
             progress_path(out),
             Path::new("/data/out/.indicators.nc.partial.progress")
@@ -397,7 +427,10 @@ mod tests {
     fn layouts_place_slabs() {
         let dims = |n: &[&str]| n.iter().map(|s| s.to_string()).collect::<Vec<_>>();
         let full = OutputLayout::new(dims(&["time", "lev", "lat", "lon"]), 5, 3).unwrap();
-        assert_eq!(full.extents(2, 4..6, [5, 2, 8]), vec![2..3, 0..5, 4..6, 0..8]);
+        assert_eq!(
+            full.extents(2, 4..6, [5, 2, 8]),
+            vec![2..3, 0..5, 4..6, 0..8]
+        );
         let no_time = OutputLayout::new(dims(&["lev", "lat", "lon"]), 5, 1).unwrap();
         assert_eq!(no_time.extents(0, 0..2, [5, 2, 8]), vec![0..5, 0..2, 0..8]);
         let surface = OutputLayout::new(dims(&["time", "lat", "lon"]), 1, 4).unwrap();

@@ -69,7 +69,8 @@ impl SlabPlan {
 
     /// Estimated peak memory of a compute job with this plan.
     pub fn estimated_peak_bytes(&self) -> u64 {
-        FIXED_OVERHEAD_BYTES + self.rows_per_slab as u64 * self.cells_per_row() * self.bytes_per_cell()
+        FIXED_OVERHEAD_BYTES
+            + self.rows_per_slab as u64 * self.cells_per_row() * self.bytes_per_cell()
     }
 
     /// Makes slabs at most `limit` rows (at least one), with chunks no taller than a slab.
@@ -161,7 +162,8 @@ pub fn plan_slabs(
             ),
         });
     }
-    let fitting_rows = ((budget_bytes - FIXED_OVERHEAD_BYTES) / row_bytes).min(rows as u64) as usize;
+    let fitting_rows =
+        ((budget_bytes - FIXED_OVERHEAD_BYTES) / row_bytes).min(rows as u64) as usize;
 
     // Chunks: whole rows of all levels when a row is small, else one row split by levels.
     let chunk_row_bytes = (levels * cols * 4) as u64;
@@ -170,7 +172,9 @@ pub fn plan_slabs(
         [levels_fit.min(levels), 1, cols]
     } else {
         // Even chunks: rows split into as few pieces as the target allows.
-        let rows_fit = ((CHUNK_TARGET_BYTES / chunk_row_bytes) as usize).min(fitting_rows).max(1);
+        let rows_fit = ((CHUNK_TARGET_BYTES / chunk_row_bytes) as usize)
+            .min(fitting_rows)
+            .max(1);
         let pieces = rows.div_ceil(rows_fit);
         [levels, rows.div_ceil(pieces), cols]
     };
@@ -234,7 +238,9 @@ mod tests {
 
     #[test]
     fn refuses_a_budget_below_one_row() {
-        let err = plan_slabs([75, 720, 1440], 1, 5, 130 * MIB).unwrap_err().to_string();
+        let err = plan_slabs([75, 720, 1440], 1, 5, 130 * MIB)
+            .unwrap_err()
+            .to_string();
         assert!(err.contains("too small"), "{err}");
         assert!(err.contains("at least"), "{err}");
     }

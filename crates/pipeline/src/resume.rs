@@ -94,7 +94,9 @@ impl ProgressRecord {
     pub fn job_difference(&self, job: &[String]) -> Option<String> {
         for (recorded, now) in self.job.iter().zip(job) {
             if recorded != now {
-                return Some(format!("the interrupted run had '{recorded}', this one has '{now}'"));
+                return Some(format!(
+                    "the interrupted run had '{recorded}', this one has '{now}'"
+                ));
             }
         }
         match self.job.len().cmp(&job.len()) {
@@ -152,7 +154,10 @@ mod tests {
         record.save(&path).unwrap();
         assert_eq!(ProgressRecord::load(&path).unwrap(), record);
         assert_eq!(record.job_difference(&record.job), None);
-        let other = vec!["acidscape 0.1.0".to_string(), "input /x.nc 11 5.0".to_string()];
+        let other = vec![
+            "acidscape 0.1.0".to_string(),
+            "input /x.nc 11 5.0".to_string(),
+        ];
         let why = record.job_difference(&other).unwrap();
         assert!(why.contains("input /x.nc 11"), "{why}");
     }

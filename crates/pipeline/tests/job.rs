@@ -37,6 +37,13 @@ fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
     }
 }
 
+/// The message of a job that must fail.
+fn refusal(run: &Run, options: &JobOptions) -> String {
+    run_job(run, options, &mut NoProgress)
+        .unwrap_err()
+        .to_string()
+}
+
 fn every_indicator() -> IndicatorChoice {
     IndicatorChoice {
         indicators: Indicator::ALL.to_vec(),
@@ -97,7 +104,11 @@ fn output_equals_the_solver_and_flags_mark_the_bad_cells() {
             let solution = solve(pair, &conditions, &ConstantChoice::default()).unwrap();
             for (field, values) in fields.iter().zip(&stored) {
                 let expected = field.value(&solution, slab.density_kg_m3[cell]) as f32;
-                assert_eq!(values[at], expected, "{} at step {step} cell {cell}", field.name);
+                assert_eq!(
+                    values[at], expected,
+                    "{} at step {step} cell {cell}",
+                    field.name
+                );
             }
             let expected_flag = if solution.validity.is_within() { 0 } else { 1 };
             assert_eq!(flag, expected_flag, "flag at step {step} cell {cell}");
@@ -122,7 +133,12 @@ fn output_carries_cf_attributes() {
     let inputs = write_cmip_style_run(dir.path(), 1, 1);
     let run = open_run(&inputs);
     let output = dir.path().join("out.nc");
-    run_job(&run, &options(&output, IndicatorChoice::default()), &mut NoProgress).unwrap();
+    run_job(
+        &run,
+        &options(&output, IndicatorChoice::default()),
+        &mut NoProgress,
+    )
+    .unwrap();
     let file = netcdf::open(&output).unwrap();
     let text = |var: Option<&str>, name: &str| -> String {
         let value = match var {
@@ -138,7 +154,10 @@ fn output_carries_cf_attributes() {
     assert_eq!(text(None, "Conventions"), "CF-1.10");
     assert!(text(None, "history").contains("acidscape compute (test)"));
     assert!(text(None, "references").contains("Lueker"));
-    assert_eq!(text(Some("ph"), "standard_name"), "sea_water_ph_reported_on_total_scale");
+    assert_eq!(
+        text(Some("ph"), "standard_name"),
+        "sea_water_ph_reported_on_total_scale"
+    );
     assert_eq!(text(Some("co3"), "units"), "mol m-3");
     assert_eq!(text(Some("pco2"), "units"), "uatm");
     assert_eq!(text(Some("quality_flag"), "standard_name"), "status_flag");
@@ -146,7 +165,10 @@ fn output_carries_cf_attributes() {
         text(Some("quality_flag"), "flag_meanings"),
         "computed outside_validity_range no_solution missing_input"
     );
-    assert_eq!(text(Some("ph"), "cell_methods"), "area: mean where sea time: mean");
+    assert_eq!(
+        text(Some("ph"), "cell_methods"),
+        "area: mean where sea time: mean"
+    );
     let chunking = file.variable("ph").unwrap().chunking().unwrap().unwrap();
     assert_eq!(chunking, vec![1, LEVELS, ROWS, COLS]);
 }
@@ -164,8 +186,14 @@ fn an_interrupted_job_resumes_to_identical_values() {
     stopping.stop_after_steps = Some(2);
     stopping.max_rows_per_slab = Some(3);
     let err = run_job(&run, &stopping, &mut NoProgress).unwrap_err();
-    assert!(matches!(err, PipelineError::Stopped { steps_done: 2, .. }), "{err}");
-    assert!(!pieces.exists(), "an interrupted job must not leave a complete-looking file");
+    assert!(
+        matches!(err, PipelineError::Stopped { steps_done: 2, .. }),
+        "{err}"
+    );
+    assert!(
+        !pieces.exists(),
+        "an interrupted job must not leave a complete-looking file"
+    );
     assert!(partial_path(&pieces).exists());
 
     // Without --resume or --overwrite the leftover is not silently replaced.
@@ -179,11 +207,20 @@ fn an_interrupted_job_resumes_to_identical_values() {
     assert_eq!(resumed.first_step, 2);
     assert_eq!(resumed.counts, full.counts);
     for field in every_indicator().fields().unwrap() {
-        let a: Vec<u32> = read_f32(&whole, field.name).iter().map(|v| v.to_bits()).collect();
-        let b: Vec<u32> = read_f32(&pieces, field.name).iter().map(|v| v.to_bits()).collect();
+        let a: Vec<u32> = read_f32(&whole, field.name)
+            .iter()
+            .map(|v| v.to_bits())
+            .collect();
+        let b: Vec<u32> = read_f32(&pieces, field.name)
+            .iter()
+            .map(|v| v.to_bits())
+            .collect();
         assert_eq!(a, b, "{} differs after resume", field.name);
     }
-    assert_eq!(read_i8(&whole, "quality_flag"), read_i8(&pieces, "quality_flag"));
+    assert_eq!(
+        read_i8(&whole, "quality_flag"),
+        read_i8(&pieces, "quality_flag")
+    );
 }
 
 #[test]
@@ -197,9 +234,17 @@ fn resume_refuses_changed_options() {
     run_job(&run, &stopping, &mut NoProgress).unwrap_err();
     let mut changed = options(&output, every_indicator());
     changed.resume = true;
-    let err = run_job(&run, &changed, &mut NoProgress).unwrap_err().to_string();
-    assert!(err.contains("differ") && err.contains("indicators="), "{err}");
-    assert!(partial_path(&output).exists(), "a refused resume keeps the partial file");
+    let err = run_job(&run, &changed, &mut NoProgress)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains("differ") && err.contains("indicators="),
+        "{err}"
+    );
+    assert!(
+        partial_path(&output).exists(),
+        "a refused resume keeps the partial file"
+    );
 }
 
 #[test]
@@ -212,30 +257,30 @@ fn refuses_unsafe_outputs_before_writing() {
     let before = std::fs::read(&inputs[0]).unwrap();
     let mut onto_input = options(&inputs[0], IndicatorChoice::default());
     onto_input.overwrite = true;
-    let err = run_job(&run, &onto_input, &mut NoProgress).unwrap_err().to_string();
+    let err = run_job(&run, &onto_input, &mut NoProgress)
+        .unwrap_err()
+        .to_string();
     assert!(err.contains("is an input"), "{err}");
     assert_eq!(std::fs::read(&inputs[0]).unwrap(), before);
 
     // An existing output needs --overwrite.
     let existing = dir.path().join("existing.nc");
     std::fs::write(&existing, b"keep me").unwrap();
-    let err = run_job(&run, &options(&existing, IndicatorChoice::default()), &mut NoProgress)
-        .unwrap_err()
-        .to_string();
+    let err = refusal(&run, &options(&existing, IndicatorChoice::default()));
     assert!(err.contains("--overwrite"), "{err}");
     assert_eq!(std::fs::read(&existing).unwrap(), b"keep me");
 
     // A missing directory fails before any compute, leaving nothing behind.
     let nowhere = dir.path().join("no-such-dir").join("out.nc");
-    let err = run_job(&run, &options(&nowhere, IndicatorChoice::default()), &mut NoProgress)
-        .unwrap_err()
-        .to_string();
+    let err = refusal(&run, &options(&nowhere, IndicatorChoice::default()));
     assert!(err.contains("no-such-dir"), "{err}");
     assert!(!nowhere.parent().unwrap().exists());
 
     // --resume with nothing to resume.
     let mut resume = options(&dir.path().join("fresh.nc"), IndicatorChoice::default());
     resume.resume = true;
-    let err = run_job(&run, &resume, &mut NoProgress).unwrap_err().to_string();
+    let err = run_job(&run, &resume, &mut NoProgress)
+        .unwrap_err()
+        .to_string();
     assert!(err.contains("no interrupted run"), "{err}");
 }

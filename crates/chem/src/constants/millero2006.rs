@@ -32,7 +32,12 @@ pub(crate) fn salinity_part(terms: &SampleTerms, a: [f64; 3], b: [f64; 2], c: f6
 /// ```
 pub fn pk1(terms: &SampleTerms) -> f64 {
     pure_water_pk1(terms)
-        + salinity_part(terms, [13.4191, 0.0331, -5.33e-5], [-530.123, -6.103], -2.06950)
+        + salinity_part(
+            terms,
+            [13.4191, 0.0331, -5.33e-5],
+            [-530.123, -6.103],
+            -2.06950,
+        )
 }
 
 /// pK2 (seawater scale, mol kg-1): Millero et al. 2006, eq. for pK2* with A2, B2, C2.
@@ -44,5 +49,10 @@ pub fn pk1(terms: &SampleTerms) -> f64 {
 /// ```
 pub fn pk2(terms: &SampleTerms) -> f64 {
     pure_water_pk2(terms)
-        + salinity_part(terms, [21.0894, 0.1248, -3.687e-4], [-772.483, -20.051], -3.3336)
+        + salinity_part(
+            terms,
+            [21.0894, 0.1248, -3.687e-4],
+            [-772.483, -20.051],
+            -3.3336,
+        )
 }

@@ -15,7 +15,12 @@ use super::SampleTerms;
 /// ```
 pub fn pk1(terms: &SampleTerms) -> f64 {
     pure_water_pk1(terms)
-        + salinity_part(terms, [13.4038, 0.03206, -5.242e-5], [-530.659, -5.8210], -2.0664)
+        + salinity_part(
+            terms,
+            [13.4038, 0.03206, -5.242e-5],
+            [-530.659, -5.8210],
+            -2.0664,
+        )
 }
 
 /// pK2 (seawater scale, mol kg-1): Millero 2010, seawater-scale A2, B2, C2 (from memory).
@@ -27,5 +32,10 @@ pub fn pk1(terms: &SampleTerms) -> f64 {
 /// ```
 pub fn pk2(terms: &SampleTerms) -> f64 {
     pure_water_pk2(terms)
-        + salinity_part(terms, [21.3728, 0.1218, -3.688e-4], [-788.289, -19.189], -3.374)
+        + salinity_part(
+            terms,
+            [21.3728, 0.1218, -3.688e-4],
+            [-788.289, -19.189],
+            -3.374,
+        )
 }

@@ -23,11 +23,11 @@ use pressure::PressureTerms;
 /// Temperature and salinity terms shared by many constants, each evaluated once per sample.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct SampleTerms {
-    /// Temperature [°C].
+    /// Temperature \[°C\].
     pub celsius: f64,
-    /// Temperature [K].
+    /// Temperature \[K\].
     pub kelvin: f64,
-    /// 1 / T [K-1].
+    /// 1 / T \[K-1\].
     pub inv_kelvin: f64,
     /// ln(T / K).
     pub ln_kelvin: f64,
@@ -35,7 +35,7 @@ pub struct SampleTerms {
     pub salinity: f64,
     /// √S.
     pub sqrt_salinity: f64,
-    /// Ionic strength [mol kg-1 H2O].
+    /// Ionic strength \[mol kg-1 H2O\].
     pub ionic_strength: f64,
     /// √I.
     pub sqrt_ionic_strength: f64,
@@ -44,7 +44,7 @@ pub struct SampleTerms {
 }
 
 impl SampleTerms {
-    /// Terms at in-situ temperature [°C] and practical salinity.
+    /// Terms at in-situ temperature \[°C\] and practical salinity.
     pub fn new(temperature_c: f64, salinity: f64) -> Self {
         let kelvin = temperature_c + 273.15;
         let ionic_strength = ionic_strength(salinity);
@@ -67,7 +67,12 @@ impl SampleTerms {
     }
 }
 
-/// Ionic strength of seawater [mol kg-1 H2O]: I = 19.924 S / (1000 - 1.005 S), Dickson 1990.
+/// Ionic strength of seawater \[mol kg-1 H2O\]: I = 19.924 S / (1000 - 1.005 S), Dickson 1990.
+///
+/// ```
+/// // Hand evaluation at S = 35: 19.924·35 / (1000 - 35.175) = 697.34 / 964.825 = 0.722763
+/// assert!((acidscape_chem::constants::ionic_strength(35.0) - 0.722763).abs() < 1e-6);
+/// ```
 pub fn ionic_strength(salinity: f64) -> f64 {
     19.924 * salinity / (1000.0 - 1.005 * salinity)
 }
@@ -76,7 +81,7 @@ pub fn ionic_strength(salinity: f64) -> f64 {
 /// (mol kg-1 of seawater) except where named free; totals are mol kg-1.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct EquilibriumConstants {
-    /// CO2 solubility K0 [mol kg-1 atm-1] at in-situ temperature and 1 atm (not pressure-corrected).
+    /// CO2 solubility K0 \[mol kg-1 atm-1\] at in-situ temperature and 1 atm (not pressure-corrected).
     pub k0: f64,
     /// fCO2 / pCO2 at in-situ temperature and 1 atm total pressure.
     pub fugacity_factor: f64,
@@ -102,21 +107,21 @@ pub struct EquilibriumConstants {
     pub k3p: f64,
     /// KSi of silicic acid (total scale).
     pub ksi: f64,
-    /// Ksp* of calcite [mol² kg-2].
+    /// Ksp* of calcite \[mol² kg-2\].
     pub ksp_calcite: f64,
-    /// Ksp* of aragonite [mol² kg-2].
+    /// Ksp* of aragonite \[mol² kg-2\].
     pub ksp_aragonite: f64,
-    /// Total boron [mol kg-1].
+    /// Total boron \[mol kg-1\].
     pub total_boron: f64,
-    /// Total sulfate [mol kg-1].
+    /// Total sulfate \[mol kg-1\].
     pub total_sulfate: f64,
-    /// Total fluoride [mol kg-1].
+    /// Total fluoride \[mol kg-1\].
     pub total_fluoride: f64,
-    /// Calcium [mol kg-1].
+    /// Calcium \[mol kg-1\].
     pub calcium: f64,
-    /// [H+]total / [H+]free = 1 + ST/KS.
+    /// \[H+\]total / \[H+\]free = 1 + ST/KS.
     pub free_to_total: f64,
-    /// [H+]total / [H+]seawater = (1 + ST/KS) / (1 + ST/KS + FT/KF).
+    /// \[H+\]total / \[H+\]seawater = (1 + ST/KS) / (1 + ST/KS + FT/KF).
     pub seawater_to_total: f64,
     /// Validity ranges the sample falls outside.
     pub validity: Validity,
@@ -183,7 +188,10 @@ pub fn equilibrium_constants(
 }
 
 /// As [`equilibrium_constants`], for conditions already validated.
-pub(crate) fn constants_unchecked(conditions: &Conditions, choice: &ConstantChoice) -> EquilibriumConstants {
+pub(crate) fn constants_unchecked(
+    conditions: &Conditions,
+    choice: &ConstantChoice,
+) -> EquilibriumConstants {
     let terms = SampleTerms::new(conditions.temperature_c, conditions.salinity);
     let pressure_bar = conditions.pressure_dbar * 0.1;
     let pt = PressureTerms::new(conditions.temperature_c, pressure_bar);
@@ -199,21 +207,33 @@ pub(crate) fn constants_unchecked(conditions: &Conditions, choice: &ConstantChoi
     let ks_surface = ln_ks_surface.exp();
     let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
     let ln_kf_free_surface = match choice.fluoride {
-        FluorideSet::PerezFraga1987 => perez_fraga1987::ln_kf(&terms) - free_to_total_surface.ln(),
+        FluorideSet::PerezFraga1987 => perez_fraga1987::ln_kf(&terms),
         FluorideSet::DicksonRiley1979 => dickson_riley1979::ln_kf_free(&terms),
     };
-    let kf_free_surface = ln_kf_free_surface.exp();
+    let (kf_free_surface, kf_free) = {
+        let fluoride_ln_k = ln_kf_free_surface;
+        let surface = fluoride_ln_k.exp();
+        let in_situ = (fluoride_ln_k + pt.ln_factor(&pressure::KF)).exp();
+        match choice.fluoride {
+            // Perez & Fraga 1987 is on the total scale: divide by [H+]T/[H+]F at the surface.
+            FluorideSet::PerezFraga1987 => (
+                surface / free_to_total_surface,
+                in_situ / free_to_total_surface,
+            ),
+            FluorideSet::DicksonRiley1979 => (surface, in_situ),
+        }
+    };
     let ks_free = (ln_ks_surface + pt.ln_factor(&pressure::KS)).exp();
-    let kf_free = (ln_kf_free_surface + pt.ln_factor(&pressure::KF)).exp();
 
     let free_to_total = 1.0 + total_sulfate / ks_free;
     let free_to_seawater = free_to_total + total_fluoride / kf_free;
     let seawater_to_total = free_to_total / free_to_seawater;
     let free_to_seawater_surface = free_to_total_surface + total_fluoride / kf_free_surface;
 
-    // ln of the factors taking a constant to the total scale at in-situ pressure.
-    let ln_seawater_to_total = seawater_to_total.ln();
-    let ln_total_surface_to_total = ln_seawater_to_total + (free_to_seawater_surface / free_to_total_surface).ln();
+    // ln of the factor taking a total-scale surface constant, corrected on the seawater scale,
+    // to the total scale at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
+    let ln_total_surface_to_total =
+        (seawater_to_total * free_to_seawater_surface / free_to_total_surface).ln();
 
     let in_situ_total = |ln_k_surface_total: f64, coefficients: &pressure::PressureCoefficients| {
         (ln_k_surface_total + pt.ln_factor(coefficients) + ln_total_surface_to_total).exp()
@@ -228,12 +248,12 @@ pub(crate) fn constants_unchecked(conditions: &Conditions, choice: &ConstantChoi
         CarbonicSet::Millero2010 => (
             -millero2010::pk1(&terms) * ln10,
             -millero2010::pk2(&terms) * ln10,
-            ln_seawater_to_total,
+            seawater_to_total.ln(),
         ),
         CarbonicSet::WatersMilleroWoosley2014 => (
             -waters2014::pk1(&terms) * ln10,
             -waters2014::pk2(&terms) * ln10,
-            ln_seawater_to_total,
+            seawater_to_total.ln(),
         ),
     };
     let k1 = (ln_k1 + pt.ln_factor(&pressure::K1) + ln_to_total).exp();

@@ -14,7 +14,9 @@ use super::SampleTerms;
 pub fn log10_ksp_calcite(terms: &SampleTerms) -> f64 {
     let t = terms.kelvin;
     let (s, r) = (terms.salinity, terms.sqrt_salinity);
-    -171.9065 - 0.077993 * t + 2839.319 * terms.inv_kelvin + 71.595 * terms.log10_kelvin()
+    -171.9065 - 0.077993 * t
+        + 2839.319 * terms.inv_kelvin
+        + 71.595 * terms.log10_kelvin()
         + (-0.77712 + 0.0028426 * t + 178.34 * terms.inv_kelvin) * r
         - 0.07711 * s
         + 0.0041249 * s * r
@@ -31,7 +33,9 @@ pub fn log10_ksp_calcite(terms: &SampleTerms) -> f64 {
 pub fn log10_ksp_aragonite(terms: &SampleTerms) -> f64 {
     let t = terms.kelvin;
     let (s, r) = (terms.salinity, terms.sqrt_salinity);
-    -171.945 - 0.077993 * t + 2903.293 * terms.inv_kelvin + 71.595 * terms.log10_kelvin()
+    -171.945 - 0.077993 * t
+        + 2903.293 * terms.inv_kelvin
+        + 71.595 * terms.log10_kelvin()
         + (-0.068393 + 0.0017276 * t + 88.135 * terms.inv_kelvin) * r
         - 0.10018 * s
         + 0.0059415 * s * r

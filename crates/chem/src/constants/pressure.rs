@@ -56,7 +56,11 @@ pub const ARAGONITE: PressureCoefficients = coefficients(-45.96, 0.5304, 0.0, -1
 /// // ln = (25.2458·400 - 0.5·2.9046e-3·160000)/22877.27 = (10098.32 - 232.368)/22877.27 = 0.431256
 /// assert!((ln_pressure_factor(&K1, 2.0, 400.0) - 0.431256).abs() < 2e-6);
 /// ```
-pub fn ln_pressure_factor(coefficients: &PressureCoefficients, temperature_c: f64, pressure_bar: f64) -> f64 {
+pub fn ln_pressure_factor(
+    coefficients: &PressureCoefficients,
+    temperature_c: f64,
+    pressure_bar: f64,
+) -> f64 {
     PressureTerms::new(temperature_c, pressure_bar).ln_factor(coefficients)
 }
 

@@ -5,7 +5,7 @@ use super::SampleTerms;
 /// Gas constant in cm³ atm mol-1 K-1 (CODATA), for the virial term.
 const GAS_CONSTANT_CM3_ATM: f64 = 82.057_366;
 
-/// ln K0 [K0 in mol kg-1 atm-1]: Weiss 1974, eq. 12 with the mol kg-1 coefficients of Table I.
+/// ln K0 \[K0 in mol kg-1 atm-1\]: Weiss 1974, eq. 12 with the mol kg-1 coefficients of Table I.
 ///
 /// ```
 /// use acidscape_chem::constants::{weiss1974, SampleTerms};
@@ -21,7 +21,7 @@ pub fn ln_k0(terms: &SampleTerms) -> f64 {
         + terms.salinity * (0.023517 - 0.023656 * t100 + 0.0047036 * t100 * t100)
 }
 
-/// fCO2 / pCO2 [-] at 1 atm total pressure: Weiss 1974, eqs. 5-9 (virial coefficient B and
+/// fCO2 / pCO2 \[-\] at 1 atm total pressure: Weiss 1974, eqs. 5-9 (virial coefficient B and
 /// cross-virial δ of CO2 in air); the mole-fraction factor (1 - xCO2)² is taken as 1 (common practice).
 ///
 /// ```

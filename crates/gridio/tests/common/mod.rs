@@ -181,10 +181,14 @@ pub fn data_var(
     steps: std::ops::Range<usize>,
     g: Grid,
 ) -> Var {
-    let mut v = Var::new(var_name, &dims_of(order), field_values(field, order, steps, g))
-        .attr("units", units)
-        .attr("_FillValue", 1e20_f32)
-        .f32();
+    let mut v = Var::new(
+        var_name,
+        &dims_of(order),
+        field_values(field, order, steps, g),
+    )
+    .attr("units", units)
+    .attr("_FillValue", 1e20_f32)
+    .f32();
     if !standard_name.is_empty() {
         v = v.attr("standard_name", standard_name);
     }
@@ -200,22 +204,97 @@ pub fn dims(g: Grid, steps: usize) -> Vec<(&'static str, usize)> {
     ]
 }
 
-/// One file per variable, CMIP style (`<var>_<tag>.nc`), for steps `steps`.
-pub fn cmip_file(dir: &Path, var: &str, tag: &str, steps: std::ops::Range<usize>, times: &[f64], calendar: &str) -> PathBuf {
-    let (field, standard, units) = match var {
-        "dissic" => ("dic", "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water", "mol m-3"),
-        "talk" => ("alkalinity", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3"),
+/// Synthetic field, CF standard name and units of each CMIP/OMIP-named test variable.
+pub fn cmip_meta(var: &str) -> (&'static str, &'static str, &'static str) {
+    match var {
+        "dissic" => (
+            "dic",
+            "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water",
+            "mol m-3",
+        ),
+        "talk" => (
+            "alkalinity",
+            "sea_water_alkalinity_expressed_as_mole_equivalent",
+            "mol m-3",
+        ),
         "thetao" => ("temperature", "sea_water_potential_temperature", "degC"),
         "so" => ("salinity", "sea_water_salinity", "0.001"),
-        "po4" => ("phosphate", "mole_concentration_of_phosphate_in_sea_water", "mol m-3"),
-        "si" => ("silicate", "mole_concentration_of_silicate_in_sea_water", "mol m-3"),
+        "po4" => (
+            "phosphate",
+            "mole_concentration_of_phosphate_in_sea_water",
+            "mol m-3",
+        ),
+        "si" => (
+            "silicate",
+            "mole_concentration_of_silicate_in_sea_water",
+            "mol m-3",
+        ),
         other => panic!("unknown CMIP var {other}"),
-    };
+    }
+}
+
+/// The CMIP/OMIP variables every run needs.
+pub const REQUIRED: [&str; 4] = ["dissic", "talk", "thetao", "so"];
+
+/// A CMIP-named data variable of the synthetic run.
+pub fn cmip_var(var: &str, order: &str, steps: std::ops::Range<usize>, g: Grid) -> Var {
+    let (field, standard, units) = cmip_meta(var);
+    data_var(var, field, standard, units, order, steps, g)
+}
+
+/// The four required data variables in one dimension order.
+pub fn required_vars(order: &str, steps: std::ops::Range<usize>, g: Grid) -> Vec<Var> {
+    REQUIRED
+        .iter()
+        .map(|v| cmip_var(v, order, steps.clone(), g))
+        .collect()
+}
+
+/// One file per variable, CMIP style (`<var>_<tag>.nc`), for steps `steps`.
+pub fn cmip_file(
+    dir: &Path,
+    var: &str,
+    tag: &str,
+    steps: std::ops::Range<usize>,
+    times: &[f64],
+    calendar: &str,
+) -> PathBuf {
+    cmip_file_with(
+        dir,
+        var,
+        tag,
+        steps,
+        times,
+        "days since 2015-01-01",
+        calendar,
+    )
+}
+
+/// Like [`cmip_file`] with explicit time units.
+pub fn cmip_file_with(
+    dir: &Path,
+    var: &str,
+    tag: &str,
+    steps: std::ops::Range<usize>,
+    times: &[f64],
+    time_units: &str,
+    calendar: &str,
+) -> PathBuf {
     let path = dir.join(format!("{var}_{tag}.nc"));
-    let mut vars = coordinates(GRID, times, "days since 2015-01-01", calendar);
-    vars.push(data_var(var, field, standard, units, "tzyx", steps.clone(), GRID));
+    let mut vars = coordinates(GRID, times, time_units, calendar);
+    vars.push(cmip_var(var, "tzyx", steps.clone(), GRID));
     write_nc(&path, &dims(GRID, steps.len()), &vars);
     path
+}
+
+/// Writes dissic, thetao and so (one step each) and returns the month times, so a
+/// test can add its own, possibly broken, alkalinity file.
+pub fn three_of_four(dir: &Path) -> Vec<f64> {
+    let times = noleap_months(1);
+    for var in ["dissic", "thetao", "so"] {
+        cmip_file(dir, var, "a", 0..1, &times, "noleap");
+    }
+    times
 }
 
 /// Monthly mid-points of the noleap calendar, days since 2015-01-01, for `n` months.
@@ -245,7 +324,7 @@ pub fn cmip_run(dir: &Path, n: usize, calendar: &str) -> Vec<PathBuf> {
     let times = noleap_months(n);
     let half = n / 2;
     let mut out = Vec::new();
-    for var in ["dissic", "talk", "thetao", "so"] {
+    for var in REQUIRED {
         out.push(cmip_file(dir, var, "a", 0..half, &times[..half], calendar));
         out.push(cmip_file(dir, var, "b", half..n, &times[half..], calendar));
     }

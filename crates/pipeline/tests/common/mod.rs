@@ -39,7 +39,8 @@ pub fn write_cmip_style_run(dir: &Path, steps: usize, files: usize) -> Vec<PathB
 fn write_file(path: &Path, steps: std::ops::Range<usize>) {
     let mut file = netcdf::create(path).unwrap();
     file.add_attribute("Conventions", "CF-1.10").unwrap();
-    file.add_attribute("comment", "SYNTHETIC test data (invented values)").unwrap();
+    file.add_attribute("comment", "SYNTHETIC test data (invented values)")
+        .unwrap();
     file.add_unlimited_dimension("time").unwrap();
     file.add_dimension("lev", LEVELS).unwrap();
     file.add_dimension("lat", ROWS).unwrap();
@@ -55,13 +56,16 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>) {
         let mut v = file.add_variable::<f64>("time", &["time"]).unwrap();
         v.put_attribute("standard_name", "time").unwrap();
         v.put_attribute("axis", "T").unwrap();
-        v.put_attribute("units", "days since 2015-01-01 00:00:00").unwrap();
+        v.put_attribute("units", "days since 2015-01-01 00:00:00")
+            .unwrap();
         v.put_attribute("calendar", "360_day").unwrap();
         v.put_attribute("bounds", "time_bnds").unwrap();
         v.put_values(&times, 0..times.len()).unwrap();
     }
     {
-        let mut v = file.add_variable::<f64>("time_bnds", &["time", "bnds"]).unwrap();
+        let mut v = file
+            .add_variable::<f64>("time_bnds", &["time", "bnds"])
+            .unwrap();
         v.put_values(&bounds, (0..times.len(), 0..2)).unwrap();
     }
     let depths = [5.0, 100.0, 1000.0];
@@ -74,12 +78,26 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>) {
         v.put_attribute("axis", "Z").unwrap();
         v.put_attribute("bounds", "lev_bnds").unwrap();
         v.put_values(&depths, 0..LEVELS).unwrap();
-        let mut b = file.add_variable::<f64>("lev_bnds", &["lev", "bnds"]).unwrap();
+        let mut b = file
+            .add_variable::<f64>("lev_bnds", &["lev", "bnds"])
+            .unwrap();
         b.put_values(&depth_bounds, (0..LEVELS, 0..2)).unwrap();
     }
     for (name, axis, units, standard, centres) in [
-        ("lat", "Y", "degrees_north", "latitude", vec![-30.0, -10.0, 10.0, 30.0]),
-        ("lon", "X", "degrees_east", "longitude", vec![10.0, 30.0, 50.0, 70.0, 90.0]),
+        (
+            "lat",
+            "Y",
+            "degrees_north",
+            "latitude",
+            vec![-30.0, -10.0, 10.0, 30.0],
+        ),
+        (
+            "lon",
+            "X",
+            "degrees_east",
+            "longitude",
+            vec![10.0, 30.0, 50.0, 70.0, 90.0],
+        ),
     ] {
         let bounds: Vec<f64> = centres.iter().flat_map(|c| [c - 10.0, c + 10.0]).collect();
         let n = centres.len();
@@ -89,15 +107,25 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>) {
         v.put_attribute("axis", axis).unwrap();
         v.put_attribute("bounds", format!("{name}_bnds")).unwrap();
         v.put_values(&centres, 0..n).unwrap();
-        let mut b = file.add_variable::<f64>(&format!("{name}_bnds"), &[name, "bnds"]).unwrap();
+        let mut b = file
+            .add_variable::<f64>(&format!("{name}_bnds"), &[name, "bnds"])
+            .unwrap();
         b.put_values(&bounds, (0..n, 0..2)).unwrap();
     }
 
     let variables = [
         ("thetao", "sea_water_potential_temperature", "degC"),
         ("so", "sea_water_salinity", "0.001"),
-        ("dissic", "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water", "mol m-3"),
-        ("talk", "sea_water_alkalinity_expressed_as_mole_equivalent", "mol m-3"),
+        (
+            "dissic",
+            "mole_concentration_of_dissolved_inorganic_carbon_in_sea_water",
+            "mol m-3",
+        ),
+        (
+            "talk",
+            "sea_water_alkalinity_expressed_as_mole_equivalent",
+            "mol m-3",
+        ),
     ];
     for (name, standard, units) in variables {
         let mut v = file
@@ -107,16 +135,14 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>) {
         v.put_attribute("standard_name", standard).unwrap();
         v.put_attribute("units", units).unwrap();
         v.put_attribute("missing_value", FILL).unwrap();
-        v.put_attribute("cell_methods", "area: mean where sea time: mean").unwrap();
+        v.put_attribute("cell_methods", "area: mean where sea time: mean")
+            .unwrap();
         for (local, step) in steps.clone().enumerate() {
             let values: Vec<f32> = (0..LEVELS * ROWS * COLS)
                 .map(|cell| value(name, step, cell))
                 .collect();
-            v.put_values(
-                &values,
-                (local..local + 1, 0..LEVELS, 0..ROWS, 0..COLS),
-            )
-            .unwrap();
+            v.put_values(&values, (local..local + 1, 0..LEVELS, 0..ROWS, 0..COLS))
+                .unwrap();
         }
     }
 }
@@ -148,12 +174,16 @@ pub fn value(name: &str, step: usize, cell: usize) -> f32 {
 /// Reads a whole variable of an output file.
 pub fn read_f32(path: &Path, name: &str) -> Vec<f32> {
     let file = netcdf::open(path).unwrap();
-    let var = file.variable(name).unwrap_or_else(|| panic!("no variable {name}"));
+    let var = file
+        .variable(name)
+        .unwrap_or_else(|| panic!("no variable {name}"));
     var.get_values::<f32, _>(..).unwrap()
 }
 
 pub fn read_i8(path: &Path, name: &str) -> Vec<i8> {
     let file = netcdf::open(path).unwrap();
-    let var = file.variable(name).unwrap_or_else(|| panic!("no variable {name}"));
+    let var = file
+        .variable(name)
+        .unwrap_or_else(|| panic!("no variable {name}"));
     var.get_values::<i8, _>(..).unwrap()
 }
