@@ -2,6 +2,7 @@
 
 use crate::run_options::RunOptions;
 use acidscape_gridio::Run;
+use acidscape_pipeline::{parse_memory_size, plan_slabs, IndicatorChoice};
 use clap::Args;
 use std::error::Error;
 
@@ -16,7 +17,18 @@ pub struct DescribeArgs {
 }
 
 pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
+    let budget = parse_memory_size(&args.memory_budget)?;
     let run = Run::open(&args.run.spec()?)?;
     println!("{}", run.report());
+    let shape = run.shape();
+    let fields = IndicatorChoice::default().fields()?.len();
+    let plan = plan_slabs(
+        [shape.levels, shape.rows, shape.cols],
+        run.time_steps(),
+        fields,
+        budget,
+    )?;
+    println!("Work split for `compute` with its default indicators:");
+    println!("{plan}");
     Ok(())
 }

@@ -1,36 +1,39 @@
-//! The `compute` subcommand as a user runs it: on a SYNTHETIC cmip-style run written by
-//! the project's generator (scripts/make_sample_grids.py, needs python3 with numpy,
-//! netCDF4, cftime: scripts/ensure-deps.sh installs them), compared with ncdump
-//! (netcdf-bin) at full float precision.
+//! The `compute` subcommand as a user runs it, on a copy of the bundled SYNTHETIC cmip-style
+//! sample run (sample-grids/cmip-style/pathway-moderate: 12 monthly steps in two files per
+//! variable), with outputs compared value by value at full float precision.
 
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
 const BIN: &str = env!("CARGO_BIN_EXE_acidscape");
-const VARIABLES: &str = "ph,co3,pco2,omega_aragonite,omega_calcite,quality_flag";
+const VARIABLES: [&str; 6] = [
+    "ph",
+    "co3",
+    "pco2",
+    "omega_aragonite",
+    "omega_calcite",
+    "quality_flag",
+];
+const SAMPLE_STEPS: usize = 12;
 
 fn repository() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
 }
 
-/// Writes a cmip-style run (one pathway used) and returns its input files.
-fn sample_run(dir: &Path, size: [&str; 3], steps: &str) -> Vec<PathBuf> {
-    let status = Command::new("python3")
-        .arg(repository().join("scripts/make_sample_grids.py"))
-        .args(["--out"])
-        .arg(dir)
-        .args(["--runs", "cmip-style", "--size", size[0], size[1], size[2]])
-        .args(["--steps", steps, "--quiet"])
-        .stdout(Stdio::null())
-        .status()
-        .expect("python3 must be installed (scripts/ensure-deps.sh)");
-    assert!(status.success(), "scripts/make_sample_grids.py failed");
-    let folder = dir.join("cmip-style/pathway-moderate");
+/// Copies the bundled cmip-style run (one pathway) into `dir` and returns the copies, so a test
+/// that tries to write over an input can only ever touch a copy.
+fn sample_run(dir: &Path) -> Vec<PathBuf> {
+    let folder = repository().join("sample-grids/cmip-style/pathway-moderate");
     let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
         .unwrap()
         .map(|e| e.unwrap().path())
         .filter(|p| p.extension().is_some_and(|e| e == "nc"))
+        .map(|source| {
+            let copy = dir.join(source.file_name().unwrap());
+            std::fs::copy(&source, &copy).unwrap();
+            copy
+        })
         .collect();
     files.sort();
     files
@@ -50,19 +53,25 @@ fn compute(inputs: &[PathBuf], output: &Path, extra: &[&str], env: &[(&str, &str
     command.output().unwrap()
 }
 
-/// The data section of the chosen variables at full precision (ncdump -p 9,17).
-fn data_section(path: &Path) -> String {
-    let out = Command::new("ncdump")
-        .args(["-p", "9,17", "-v", VARIABLES])
-        .arg(path)
-        .output()
-        .expect("ncdump (netcdf-bin) must be installed");
-    assert!(out.status.success(), "ncdump {}", path.display());
-    let text = String::from_utf8_lossy(&out.stdout).into_owned();
-    let start = text
-        .find("\ndata:")
-        .expect("ncdump output has a data section");
-    text[start..].to_string()
+/// Every value of the chosen variables, as raw bits (fill values included), for bitwise checks.
+fn data_bits(path: &Path) -> Vec<(String, Vec<u32>)> {
+    let file = netcdf::open(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+    VARIABLES
+        .iter()
+        .map(|name| {
+            let variable = file
+                .variable(name)
+                .unwrap_or_else(|| panic!("{} has no {name}", path.display()));
+            let bits = if *name == "quality_flag" {
+                let values: Vec<i8> = variable.get_values(..).unwrap();
+                values.into_iter().map(|v| v as u8 as u32).collect()
+            } else {
+                let values: Vec<f32> = variable.get_values(..).unwrap();
+                values.into_iter().map(f32::to_bits).collect()
+            };
+            (name.to_string(), bits)
+        })
+        .collect()
 }
 
 fn partial(output: &Path) -> PathBuf {
@@ -73,7 +82,7 @@ fn partial(output: &Path) -> PathBuf {
 #[test]
 fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
     let dir = tempfile::tempdir().unwrap();
-    let inputs = sample_run(dir.path(), ["8", "6", "4"], "4");
+    let inputs = sample_run(dir.path());
     let whole = dir.path().join("whole.nc");
     let out = compute(&inputs, &whole, &[], &[]);
     assert!(
@@ -106,13 +115,13 @@ fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
         String::from_utf8_lossy(&out.stderr)
     );
     assert!(!partial(&pieces).exists());
-    assert_eq!(data_section(&whole), data_section(&pieces));
+    assert_eq!(data_bits(&whole), data_bits(&pieces));
 }
 
 #[test]
 fn killed_run_resumes_to_identical_values() {
     let dir = tempfile::tempdir().unwrap();
-    let inputs = sample_run(dir.path(), ["40", "30", "15"], "24");
+    let inputs = sample_run(dir.path());
     let whole = dir.path().join("whole.nc");
     let out = compute(&inputs, &whole, &[], &[]);
     assert!(
@@ -135,7 +144,10 @@ fn killed_run_resumes_to_identical_values() {
     let stderr = child.stderr.take().unwrap();
     let mut finished_early = true;
     for line in BufReader::new(stderr).lines() {
-        if line.unwrap().contains("1/24 time steps written") {
+        if line
+            .unwrap()
+            .contains(&format!("1/{SAMPLE_STEPS} time steps written"))
+        {
             child.kill().unwrap();
             finished_early = false;
             break;
@@ -157,13 +169,13 @@ fn killed_run_resumes_to_identical_values() {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
-    assert_eq!(data_section(&whole), data_section(&killed));
+    assert_eq!(data_bits(&whole), data_bits(&killed));
 }
 
 #[test]
 fn bad_inputs_and_options_fail_before_any_output() {
     let dir = tempfile::tempdir().unwrap();
-    let inputs = sample_run(dir.path(), ["8", "6", "4"], "1");
+    let inputs = sample_run(dir.path());
     let output = dir.path().join("out.nc");
     let check_nothing_written = |out: &Output, expect: &str| {
         assert!(!out.status.success());
@@ -209,7 +221,7 @@ fn bad_inputs_and_options_fail_before_any_output() {
 #[test]
 fn never_replaces_an_input_or_an_existing_output() {
     let dir = tempfile::tempdir().unwrap();
-    let inputs = sample_run(dir.path(), ["8", "6", "4"], "1");
+    let inputs = sample_run(dir.path());
     let before = std::fs::read(&inputs[0]).unwrap();
     let out = compute(&inputs, &inputs[0], &["--overwrite"], &[]);
     assert!(!out.status.success());

@@ -211,7 +211,8 @@ pub fn solve_cell(
         }
         return CellFlag::NoSolution as i8;
     }
-    if solution.validity.is_within() {
+    // Only breaches that can move an indicator count (KF's range does not: Validity::MATERIAL).
+    if !solution.validity.is_material() {
         CellFlag::Computed as i8
     } else {
         CellFlag::OutsideValidityRange as i8

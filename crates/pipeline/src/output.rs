@@ -262,7 +262,9 @@ fn input_cell_methods(files: &[PathBuf]) -> Option<String> {
 }
 
 const FLAG_COMMENT: &str = "computed: solved with every input inside the constants' validity ranges; \
-outside_validity_range: solved, but some input lies outside a constant's published range (values kept, use with care); \
+outside_validity_range: solved, but some input lies outside the published range of a constant that matters \
+for the indicators (K0, K1, K2, KB, KW, KS, phosphate and silicate constants, Ksp, pressure correction; \
+not KF, whose alkalinity term stays below 0.01 umol kg-1) - values kept, use with care; \
 no_solution: the inputs admit no physical solution (indicators missing); \
 missing_input: a wet cell with some input missing (indicators missing). Land is _FillValue.";
 
