@@ -33,10 +33,13 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     /// Compute indicators for a table of water samples (CSV in, CSV out)
+    #[command(after_help = CAUTIONS)]
     Samples(samples::SamplesArgs),
     /// Explain what acidscape understands of a model run, before any long job
+    #[command(after_help = CAUTIONS)]
     Describe(describe::DescribeArgs),
     /// Compute indicator fields for a whole model run and write CF NetCDF
+    #[command(after_help = CAUTIONS)]
     Compute(compute::ComputeArgs),
 }
 

@@ -77,3 +77,24 @@ fn a_budget_too_small_for_one_row_is_refused() {
     assert!(!out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains("--memory-budget"));
 }
+
+#[test]
+fn every_help_page_carries_the_cautions() {
+    for args in [
+        vec!["--help"],
+        vec!["compute", "--help"],
+        vec!["describe", "--help"],
+        vec!["samples", "--help"],
+    ] {
+        let out = Command::new(env!("CARGO_BIN_EXE_acidscape"))
+            .args(&args)
+            .output()
+            .unwrap();
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(out.status.success(), "{args:?}");
+        assert!(
+            text.contains("not measurements") && text.contains("validity range"),
+            "{args:?}: {text}"
+        );
+    }
+}
