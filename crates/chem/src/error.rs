@@ -36,7 +36,9 @@ impl fmt::Display for ChemError {
 
 impl std::error::Error for ChemError {}
 
-/// Rejects NaN, infinities and values outside `[min, max]`.
+/// Rejects NaN, infinities and values outside `[min, max]` (finite bounds: NaN fails both
+/// comparisons, infinities fail one).
+#[inline(always)]
 pub(crate) fn check_range(
     field: &'static str,
     value: f64,
@@ -44,13 +46,20 @@ pub(crate) fn check_range(
     max: f64,
     expected: &'static str,
 ) -> Result<f64, ChemError> {
-    if value.is_finite() && value >= min && value <= max {
+    debug_assert!(min.is_finite() && max.is_finite());
+    if value >= min && value <= max {
         Ok(value)
     } else {
-        Err(ChemError::InvalidInput {
-            field,
-            value,
-            expected,
-        })
+        Err(invalid_input(field, value, expected))
+    }
+}
+
+#[cold]
+#[inline(never)]
+fn invalid_input(field: &'static str, value: f64, expected: &'static str) -> ChemError {
+    ChemError::InvalidInput {
+        field,
+        value,
+        expected,
     }
 }

@@ -20,7 +20,8 @@
 //!   the Millero 1979 sign). KS and KF are corrected on the free scale first; the acid constants are
 //!   corrected on the seawater scale and converted to the total scale with the in-situ KS and KF.
 //! - Alkalinity-pH equation (Dickson 1981 definition, with borate, water, phosphate, silicate,
-//!   HSO4- and HF) solved by Newton steps inside the always-valid bracket of Munhoven 2013, with
+//!   HSO4- and HF) solved by Halley steps (Newton steps corrected for curvature; two per sample
+//!   from the carbonate-borate cubic start) inside the always-valid bracket of Munhoven 2013, with
 //!   bisection fallback; DIC+pH, TA+pH and DIC+pCO2 in closed form.
 //! - Revelle factor: analytical ∂ln pCO2/∂ln DIC at constant alkalinity.
 

@@ -125,6 +125,17 @@ proptest! {
     }
 
     #[test]
+    fn converges_far_inside_the_promised_tolerance(c in ocean_conditions(), (ta, dic) in ocean_alkalinity_dic(), choice in any_choice()) {
+        // The solver stops after a Halley step below 1e-5 relative, leaving an error of order its
+        // cube; against a 200-step bisection (pH resolved to f64 round-off, ~5e-15 relative in
+        // [H+]) the root agrees to 1e-12, a hundred times inside the 1e-10 it promises.
+        let s = from_alkalinity_dic(ta, dic, &c, &choice);
+        let reference = independent_bisection(ta, dic, &c, &choice);
+        prop_assert!(relative(s.h_total, 10f64.powf(-reference.ph)) < 1e-12, "{} vs {}", s.ph_total, reference.ph);
+        prop_assert!(s.iterations <= 4, "{} iterations", s.iterations);
+    }
+
+    #[test]
     fn revelle_factor_matches_a_central_difference(c in ocean_conditions(), (ta, dic) in ocean_alkalinity_dic()) {
         let choice = ConstantChoice::default();
         let s = from_alkalinity_dic(ta, dic, &c, &choice);
@@ -271,6 +282,34 @@ fn preindustrial_to_modern_co2_lowers_surface_ph_by_about_a_tenth() {
             );
         }
     }
+}
+
+#[test]
+fn a_step_that_lands_on_the_root_ends_the_iteration() {
+    // Synthetic cell (invented inputs) whose third step finds the root to round-off: the step
+    // then leaves [H+] unchanged, on the bracket bound just moved there. Once, that forced a
+    // bisection and a dozen needless iterations; it must end the iteration instead.
+    let c = Conditions {
+        temperature_c: 33.544039016754375,
+        salinity: 22.033594866010176,
+        pressure_dbar: 1040.8533508770054,
+        phosphate: 2.1937744716526266,
+        silicate: 145.01750031343386,
+    };
+    let s = from_alkalinity_dic(
+        2417.3364503992757,
+        1967.6550762386357,
+        &c,
+        &ConstantChoice::default(),
+    );
+    assert!(s.iterations <= 3, "{} iterations", s.iterations);
+    let reference = independent_bisection(
+        2417.3364503992757,
+        1967.6550762386357,
+        &c,
+        &ConstantChoice::default(),
+    );
+    assert!(relative(s.h_total, 10f64.powf(-reference.ph)) < 1e-12);
 }
 
 #[test]

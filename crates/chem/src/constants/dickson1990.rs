@@ -31,6 +31,13 @@ pub fn ln_kb(terms: &SampleTerms) -> f64 {
 /// assert!((ln_ks - (-2.30)).abs() < 5e-3);
 /// ```
 pub fn ln_ks(terms: &SampleTerms) -> f64 {
+    ln_ks_per_kg_water(terms) + terms.ln_water_fraction()
+}
+
+/// ln KS of HSO4- (free scale, mol kg-1 of water): Dickson 1990, J. Chem. Thermodyn. 22, eq. 22
+/// without its water-fraction term; multiply KS by [`SampleTerms::water_fraction`] for mol kg-1
+/// of seawater.
+pub fn ln_ks_per_kg_water(terms: &SampleTerms) -> f64 {
     let (i, sqrt_i) = (terms.ionic_strength, terms.sqrt_ionic_strength);
     let (inv_t, ln_t) = (terms.inv_kelvin, terms.ln_kelvin);
     -4276.1 * inv_t + 141.328 - 23.093 * ln_t
@@ -38,5 +45,4 @@ pub fn ln_ks(terms: &SampleTerms) -> f64 {
         + (35474.0 * inv_t - 771.54 + 114.723 * ln_t) * i
         - 2698.0 * inv_t * i * sqrt_i
         + 1776.0 * inv_t * i * i
-        + terms.ln_water_fraction
 }

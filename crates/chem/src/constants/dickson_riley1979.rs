@@ -15,5 +15,11 @@ use super::SampleTerms;
 /// assert!((ln_kf - (-6.046766)).abs() < 2e-6);
 /// ```
 pub fn ln_kf_free(terms: &SampleTerms) -> f64 {
-    1590.2 * terms.inv_kelvin - 12.641 + 1.525 * terms.sqrt_ionic_strength + terms.ln_water_fraction
+    ln_kf_free_per_kg_water(terms) + terms.ln_water_fraction()
+}
+
+/// ln KF (free scale, mol kg-1 of water): Dickson & Riley 1979 with the ionic-strength term of
+/// Dickson 1990; multiply KF by [`SampleTerms::water_fraction`] for mol kg-1 of seawater.
+pub fn ln_kf_free_per_kg_water(terms: &SampleTerms) -> f64 {
+    1590.2 * terms.inv_kelvin - 12.641 + 1.525 * terms.sqrt_ionic_strength
 }

@@ -68,10 +68,16 @@ pub fn ln_k3p(terms: &SampleTerms) -> f64 {
 /// assert!((millero1995::ln_ksi(&SampleTerms::new(25.0, 35.0)) - (-21.61)).abs() < 5e-3);
 /// ```
 pub fn ln_ksi(terms: &SampleTerms) -> f64 {
+    ln_ksi_per_kg_water(terms) + terms.ln_water_fraction()
+}
+
+/// ln KSi of Si(OH)4 (total scale, mol kg-1 of water): Millero 1995 as given by Dickson et al.
+/// 2007, ch. 5, without its water-fraction term; multiply KSi by [`SampleTerms::water_fraction`]
+/// for mol kg-1 of seawater.
+pub fn ln_ksi_per_kg_water(terms: &SampleTerms) -> f64 {
     let (inv_t, i) = (terms.inv_kelvin, terms.ionic_strength);
     -8904.2 * inv_t + 117.385 - 19.334 * terms.ln_kelvin
         + (-458.79 * inv_t + 3.5913) * terms.sqrt_ionic_strength
         + (188.74 * inv_t - 1.5998) * i
         + (-12.1652 * inv_t + 0.07871) * i * i
-        + terms.ln_water_fraction
 }

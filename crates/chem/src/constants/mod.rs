@@ -39,8 +39,9 @@ pub struct SampleTerms {
     pub ionic_strength: f64,
     /// √I.
     pub sqrt_ionic_strength: f64,
-    /// ln(1 - 0.001005 S): converts mol kg-1 of water to mol kg-1 of seawater.
-    pub ln_water_fraction: f64,
+    /// 1 - 0.001005 S: kg of water per kg of seawater, converting mol kg-1 of water to mol kg-1
+    /// of seawater (Dickson 1990). Kept as a factor: its logarithm is only needed for printed ln K.
+    pub water_fraction: f64,
 }
 
 impl SampleTerms {
@@ -57,8 +58,13 @@ impl SampleTerms {
             sqrt_salinity: salinity.sqrt(),
             ionic_strength,
             sqrt_ionic_strength: ionic_strength.sqrt(),
-            ln_water_fraction: (1.0 - 0.001005 * salinity).ln(),
+            water_fraction: 1.0 - 0.001005 * salinity,
         }
+    }
+
+    /// ln(1 - 0.001005 S), the water-fraction term of the ln K written per kg of seawater.
+    pub fn ln_water_fraction(&self) -> f64 {
+        self.water_fraction.ln()
     }
 
     /// log10(T / K), from the stored ln T.
@@ -202,67 +208,86 @@ pub(crate) fn constants_unchecked(
     let total_fluoride = totals::fluoride(salinity);
     let calcium = totals::calcium(salinity);
 
+    // Every constant is one exp of its ln K plus its pressure term (Millero 1995); factors that
+    // change only its unit or scale multiply the exp instead of adding their ln to it.
+    let water_fraction = terms.water_fraction;
+    let in_situ = |ln_k_surface: f64, coefficients: &pressure::PressureCoefficients| {
+        (ln_k_surface + pt.ln_factor(coefficients)).exp()
+    };
+
     // Free-scale KS and KF at the surface, then at in-situ pressure.
-    let ln_ks_surface = dickson1990::ln_ks(&terms);
-    let ks_surface = ln_ks_surface.exp();
+    let ln_ks_surface = dickson1990::ln_ks_per_kg_water(&terms);
+    let ks_surface = ln_ks_surface.exp() * water_fraction;
+    let ks_free = in_situ(ln_ks_surface, &pressure::KS) * water_fraction;
     let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
-    let ln_kf_free_surface = match choice.fluoride {
-        FluorideSet::PerezFraga1987 => perez_fraga1987::ln_kf(&terms),
-        FluorideSet::DicksonRiley1979 => dickson_riley1979::ln_kf_free(&terms),
-    };
-    let (kf_free_surface, kf_free) = {
-        let fluoride_ln_k = ln_kf_free_surface;
-        let surface = fluoride_ln_k.exp();
-        let in_situ = (fluoride_ln_k + pt.ln_factor(&pressure::KF)).exp();
-        match choice.fluoride {
-            // Perez & Fraga 1987 is on the total scale: divide by [H+]T/[H+]F at the surface.
-            FluorideSet::PerezFraga1987 => (
-                surface / free_to_total_surface,
-                in_situ / free_to_total_surface,
-            ),
-            FluorideSet::DicksonRiley1979 => (surface, in_situ),
-        }
-    };
-    let ks_free = (ln_ks_surface + pt.ln_factor(&pressure::KS)).exp();
-
     let free_to_total = 1.0 + total_sulfate / ks_free;
-    let free_to_seawater = free_to_total + total_fluoride / kf_free;
+    // KF on the scale its paper gives, at the surface and in situ.
+    let (ln_kf_surface, fluoride_scale) = match choice.fluoride {
+        FluorideSet::PerezFraga1987 => (perez_fraga1987::ln_kf(&terms), 1.0),
+        FluorideSet::DicksonRiley1979 => (
+            dickson_riley1979::ln_kf_free_per_kg_water(&terms),
+            water_fraction,
+        ),
+    };
+    let kf_published_surface = ln_kf_surface.exp() * fluoride_scale;
+    let kf_published = in_situ(ln_kf_surface, &pressure::KF) * fluoride_scale;
+    // FT/KF on the free scale. Perez & Fraga 1987 is on the total scale: its free-scale KF is
+    // KF / ([H+]T/[H+]F at the surface), so FT/KF_free = (FT/KF)·[H+]T/[H+]F; formed as products
+    // so that only two divisions lie between KS and the scale factors.
+    let (kf_free, fluoride_surface, fluoride_in_situ) = match choice.fluoride {
+        FluorideSet::PerezFraga1987 => (
+            kf_published / free_to_total_surface,
+            total_fluoride / kf_published_surface * free_to_total_surface,
+            total_fluoride / kf_published * free_to_total_surface,
+        ),
+        FluorideSet::DicksonRiley1979 => (
+            kf_published,
+            total_fluoride / kf_published_surface,
+            total_fluoride / kf_published,
+        ),
+    };
+
+    // [H+]F/[H+]SWS at the surface and in situ.
+    let free_to_seawater = free_to_total + fluoride_in_situ;
+    let free_to_seawater_surface = free_to_total_surface + fluoride_surface;
     let seawater_to_total = free_to_total / free_to_seawater;
-    let free_to_seawater_surface = free_to_total_surface + total_fluoride / kf_free_surface;
 
-    // ln of the factor taking a total-scale surface constant, corrected on the seawater scale,
-    // to the total scale at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
-    let ln_total_surface_to_total =
-        (seawater_to_total * free_to_seawater_surface / free_to_total_surface).ln();
-
+    // Takes a total-scale surface constant, corrected on the seawater scale, to the total scale
+    // at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
+    let total_surface_to_total =
+        free_to_total * free_to_seawater_surface / (free_to_seawater * free_to_total_surface);
     let in_situ_total = |ln_k_surface_total: f64, coefficients: &pressure::PressureCoefficients| {
-        (ln_k_surface_total + pt.ln_factor(coefficients) + ln_total_surface_to_total).exp()
+        in_situ(ln_k_surface_total, coefficients) * total_surface_to_total
     };
     let ln10 = std::f64::consts::LN_10;
-    let (ln_k1, ln_k2, ln_to_total) = match choice.carbonic {
+    let (ln_k1, ln_k2, to_total) = match choice.carbonic {
         CarbonicSet::Lueker2000 => (
             -lueker2000::pk1(&terms) * ln10,
             -lueker2000::pk2(&terms) * ln10,
-            ln_total_surface_to_total,
+            total_surface_to_total,
         ),
         CarbonicSet::Millero2010 => (
             -millero2010::pk1(&terms) * ln10,
             -millero2010::pk2(&terms) * ln10,
-            seawater_to_total.ln(),
+            seawater_to_total,
         ),
         CarbonicSet::WatersMilleroWoosley2014 => (
             -waters2014::pk1(&terms) * ln10,
             -waters2014::pk2(&terms) * ln10,
-            seawater_to_total.ln(),
+            seawater_to_total,
         ),
     };
-    let k1 = (ln_k1 + pt.ln_factor(&pressure::K1) + ln_to_total).exp();
-    let k2 = (ln_k2 + pt.ln_factor(&pressure::K2) + ln_to_total).exp();
+    let k1 = in_situ(ln_k1, &pressure::K1) * to_total;
+    let k2 = in_situ(ln_k2, &pressure::K2) * to_total;
 
-    let ksp_calcite =
-        (mucci1983::log10_ksp_calcite(&terms) * ln10 + pt.ln_factor(&pressure::CALCITE)).exp();
-    let ksp_aragonite =
-        (mucci1983::log10_ksp_aragonite(&terms) * ln10 + pt.ln_factor(&pressure::ARAGONITE)).exp();
+    let ksp_calcite = in_situ(
+        mucci1983::log10_ksp_calcite(&terms) * ln10,
+        &pressure::CALCITE,
+    );
+    let ksp_aragonite = in_situ(
+        mucci1983::log10_ksp_aragonite(&terms) * ln10,
+        &pressure::ARAGONITE,
+    );
 
     EquilibriumConstants {
         k0: weiss1974::ln_k0(&terms).exp(),
@@ -277,7 +302,8 @@ pub(crate) fn constants_unchecked(
         k1p: in_situ_total(millero1995::ln_k1p(&terms), &pressure::K1P),
         k2p: in_situ_total(millero1995::ln_k2p(&terms), &pressure::K2P),
         k3p: in_situ_total(millero1995::ln_k3p(&terms), &pressure::K3P),
-        ksi: in_situ_total(millero1995::ln_ksi(&terms), &pressure::KSI),
+        ksi: in_situ_total(millero1995::ln_ksi_per_kg_water(&terms), &pressure::KSI)
+            * water_fraction,
         ksp_calcite,
         ksp_aragonite,
         total_boron,

@@ -64,29 +64,35 @@ pub fn ln_pressure_factor(
     PressureTerms::new(temperature_c, pressure_bar).ln_factor(coefficients)
 }
 
-/// Terms shared by every constant's pressure correction at one temperature and pressure.
+/// Terms shared by every constant's pressure correction at one temperature and pressure, so
+/// that each correction is five products: ln(K_P/K_0) = -(a0 x0 + a1 x1 + a2 x2) + b0 y0 + b1 y1.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct PressureTerms {
-    t: f64,
-    t2: f64,
-    pressure_over_rt: f64,
-    half_pressure2_over_rt: f64,
+    /// P/RT, t P/RT, t² P/RT: multiply a0, a1, a2 of ΔV.
+    volume: [f64; 3],
+    /// ½ P²/RT·10⁻³, t ½ P²/RT·10⁻³: multiply b0, b1 of ΔK.
+    compressibility: [f64; 2],
 }
 
 impl PressureTerms {
     pub(crate) fn new(temperature_c: f64, pressure_bar: f64) -> Self {
-        let rt = GAS_CONSTANT_CM3_BAR * (temperature_c + 273.15);
+        let t = temperature_c;
+        let pressure_over_rt = pressure_bar / (GAS_CONSTANT_CM3_BAR * (t + 273.15));
+        let half_pressure2_over_rt = 0.5e-3 * pressure_bar * pressure_over_rt;
         Self {
-            t: temperature_c,
-            t2: temperature_c * temperature_c,
-            pressure_over_rt: pressure_bar / rt,
-            half_pressure2_over_rt: 0.5 * pressure_bar * pressure_bar / rt,
+            volume: [
+                pressure_over_rt,
+                t * pressure_over_rt,
+                t * t * pressure_over_rt,
+            ],
+            compressibility: [half_pressure2_over_rt, t * half_pressure2_over_rt],
         }
     }
 
     pub(crate) fn ln_factor(&self, c: &PressureCoefficients) -> f64 {
-        let delta_v = c.volume[0] + c.volume[1] * self.t + c.volume[2] * self.t2;
-        let delta_k = (c.compressibility[0] + c.compressibility[1] * self.t) * 1e-3;
-        -delta_v * self.pressure_over_rt + delta_k * self.half_pressure2_over_rt
+        let [x0, x1, x2] = self.volume;
+        let [y0, y1] = self.compressibility;
+        c.compressibility[0] * y0 + c.compressibility[1] * y1
+            - (c.volume[0] * x0 + c.volume[1] * x1 + c.volume[2] * x2)
     }
 }
