@@ -4,16 +4,19 @@
 # Generates (once) a 360 x 180 x 50 run with 2*STEPS monthly steps, written by
 # scripts/make_sample_grids.py as two files per variable (first and second half of the
 # steps), so the first-half files form a STEPS-step run and all files a 2*STEPS-step run.
-# Then measures, each once (the machine may be shared: treat figures as indicative):
+# Then measures, REPEAT times each, printing every run and the median (the machine may be
+# shared: quote medians or ratios):
 #   1. I/O floor with nccopy (netcdf-bin):
 #      a. read: nccopy -d 0 of every input file of the STEPS-step run (reads and inflates
 #         every input value, writes it back uncompressed to a scratch file);
 #      b. write: nccopy -d LEVEL -s of acidscape's own output (reads it, then deflates and
 #         writes the same values with the same chunking: the output's write cost, plus a read);
-#   2. acidscape end to end on 1 and 2 threads (wall time, peak RSS via /usr/bin/time -v,
-#      cells/s and the read/solve/write split from its summary);
+#   2. acidscape end to end on 1 core and on 2 cores (taskset pins the whole process, reader
+#      and writer threads included, with --threads matching; wall time, peak RSS via
+#      /usr/bin/time -v, cells/s and the read / convert+solve / write split from its summary);
 #   3. peak RSS on the 2*STEPS-step run (memory must stay flat as steps grow).
-# Usage: scripts/bench_pipeline.sh [DIR]   (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50")
+# Usage: scripts/bench_pipeline.sh [DIR]
+#        (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50", REPEAT=3)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 dir=${1:-${TMPDIR:-/tmp}/acidscape-bench}
@@ -21,6 +24,7 @@ steps=${STEPS:-12}
 budget=${BUDGET:-2GiB}
 level=${LEVEL:-1}
 size=${SIZE:-360 180 50}
+repeat=${REPEAT:-3}
 export CARGO_TARGET_DIR=${CARGO_TARGET_DIR:-target}
 cargo build --release --quiet -p acidscape
 bin="$CARGO_TARGET_DIR/release/acidscape"
@@ -40,40 +44,61 @@ mapfile -t half < <(for v in thetao so dissic talk po4 si; do ls "$run_dir"/${v}
 mapfile -t all < <(ls "$run_dir"/*.nc)
 echo "inputs: ${#half[@]} files for $steps steps ($(du -ch "${half[@]}" | tail -1 | cut -f1)), ${#all[@]} files for $((2 * steps)) steps"
 
-seconds() { /usr/bin/env python3 -c 'import sys,time; print(f"{time.time():.3f}")'; }
-measure() { # label, then the command; prints wall seconds and peak RSS
+seconds() { /usr/bin/env python3 -c 'import time; print(f"{time.time():.3f}")'; }
+median() { sort -g | awk '{v[NR] = $1} END {print (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2}'; }
+
+# label, then the command: runs it REPEAT times; prints each run and the medians of wall
+# seconds and peak RSS; leaves the last run's summary in $dir/$label.out
+measure() {
     local label=$1; shift
-    local log="$dir/$label.time"
-    /usr/bin/time -v "$@" >"$dir/$label.out" 2>"$log" || { cat "$log"; return 1; }
-    local wall rss
-    wall=$(grep "Elapsed (wall clock)" "$log" | awk '{print $NF}')
-    rss=$(grep "Maximum resident set size" "$log" | awk '{print $NF}')
-    printf '%-26s wall %8s   peak RSS %8.1f MiB\n' "$label" "$wall" "$(echo "$rss / 1024" | bc -l)"
+    local log="$dir/$label.time" walls=() rsss=()
+    for ((i = 1; i <= repeat; i++)); do
+        /usr/bin/time -f '%e %M' -o "$log" "$@" >"$dir/$label.out" 2>"$dir/$label.err" \
+            || { cat "$dir/$label.err"; return 1; }
+        read -r wall rss <"$log"
+        walls+=("$wall"); rsss+=("$rss")
+        printf '  %-22s run %d: wall %7.2f s   peak RSS %7.1f MiB\n' "$label" "$i" "$wall" "$(echo "$rss / 1024" | bc -l)"
+    done
+    local wall_median rss_median
+    wall_median=$(printf '%s\n' "${walls[@]}" | median)
+    rss_median=$(printf '%s\n' "${rsss[@]}" | median)
+    printf '%-24s median wall %7.2f s   median peak RSS %7.1f MiB\n' "$label" "$wall_median" "$(echo "$rss_median / 1024" | bc -l)"
+    echo "$wall_median" >"$dir/$label.median"
 }
 
-echo "== I/O floor (nccopy)"
-rm -rf "$dir/nccopy" && mkdir -p "$dir/nccopy"
-start=$(seconds)
-for f in "${half[@]}"; do nccopy -k nc4 -d 0 "$f" "$dir/nccopy/$(basename "$f")"; done
-read_s=$(echo "$(seconds) - $start" | bc -l)
-printf 'read inputs (nccopy -d 0):  %.2f s for %s of input\n' "$read_s" "$(du -ch "${half[@]}" | tail -1 | cut -f1)"
+echo "== I/O floor (nccopy), median of $repeat"
+reads=()
+for ((i = 1; i <= repeat; i++)); do
+    rm -rf "$dir/nccopy" && mkdir -p "$dir/nccopy"
+    start=$(seconds)
+    for f in "${half[@]}"; do nccopy -k nc4 -d 0 "$f" "$dir/nccopy/$(basename "$f")"; done
+    reads+=("$(echo "$(seconds) - $start" | bc -l)")
+done
 rm -rf "$dir/nccopy"
+read_s=$(printf '%s\n' "${reads[@]}" | median)
+printf 'read inputs (nccopy -d 0):  %.2f s for %s of input\n' "$read_s" "$(du -ch "${half[@]}" | tail -1 | cut -f1)"
 
 echo "== acidscape compute, $steps steps"
-out1="$dir/out-1thread.nc"; out2="$dir/out-2threads.nc"
-measure "acidscape-1-thread" "$bin" compute "${half[@]}" -o "$out1" --overwrite --threads 1 --memory-budget "$budget" --deflate-level "$level"
-grep -E "^(cells|wall|stage|quality|peak)" "$dir/acidscape-1-thread.out"
-measure "acidscape-2-threads" "$bin" compute "${half[@]}" -o "$out2" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"
-grep -E "^(cells|wall|stage|peak)" "$dir/acidscape-2-threads.out"
+out1="$dir/out-1core.nc"; out2="$dir/out-2cores.nc"
+measure "acidscape-1-core" taskset -c 0 "$bin" compute "${half[@]}" -o "$out1" --overwrite --threads 1 --memory-budget "$budget" --deflate-level "$level"
+grep -E "^(cells|wall|stage|quality|peak)" "$dir/acidscape-1-core.out"
+measure "acidscape-2-cores" taskset -c 0,1 "$bin" compute "${half[@]}" -o "$out2" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"
+grep -E "^(cells|wall|stage|peak)" "$dir/acidscape-2-cores.out"
+printf 'speed-up, 2 cores over 1 (medians): %.2f x\n' "$(echo "$(cat "$dir/acidscape-1-core.median") / $(cat "$dir/acidscape-2-cores.median")" | bc -l)"
 
-start=$(seconds)
-nccopy -d "$level" -s "$out2" "$dir/nccopy-output.nc"
-write_s=$(echo "$(seconds) - $start" | bc -l)
+writes=()
+for ((i = 1; i <= repeat; i++)); do
+    start=$(seconds)
+    nccopy -d "$level" -s "$out2" "$dir/nccopy-output.nc"
+    writes+=("$(echo "$(seconds) - $start" | bc -l)")
+    rm -f "$dir/nccopy-output.nc"
+done
+write_s=$(printf '%s\n' "${writes[@]}" | median)
+floor=$(echo "$read_s + $write_s" | bc -l)
 printf 'write output (nccopy -d %s -s of our output, %s): %.2f s\n' "$level" "$(du -h "$out2" | cut -f1)" "$write_s"
-printf 'I/O floor (read + write): %.2f s\n' "$(echo "$read_s + $write_s" | bc -l)"
-rm -f "$dir/nccopy-output.nc"
+printf 'I/O floor (read + write): %.2f s; acidscape on 2 cores / floor: %.2f x\n' "$floor" "$(echo "$(cat "$dir/acidscape-2-cores.median") / $floor" | bc -l)"
 
-echo "== memory as steps double: $((2 * steps)) steps, 2 threads"
-measure "acidscape-2x-steps" "$bin" compute "${all[@]}" -o "$dir/out-2x.nc" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"
+echo "== memory as steps double: $((2 * steps)) steps, 2 cores"
+measure "acidscape-2x-steps" taskset -c 0,1 "$bin" compute "${all[@]}" -o "$dir/out-2x.nc" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"
 grep -E "^(cells|wall|stage|peak)" "$dir/acidscape-2x-steps.out"
 rm -f "$out1" "$out2" "$dir/out-2x.nc"

@@ -145,7 +145,7 @@ fn summary_text(summary: &JobSummary) -> String {
         "Wrote {output}\n\
          cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
          wall time: {:.2} s; throughput {:.3e} cells/s\n\
-         stage time (stages overlap): read {:.2} s, solve {:.2} s, write {:.2} s\n\
+         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s, write {:.2} s\n\
          quality flags (all steps): computed {}, outside validity range {}, no solution {}, missing input {}; land {}\n\
          peak memory estimate: {}\n\
          open it with: ncdump -h {output}   or   python3 -c \"import xarray; print(xarray.open_dataset('{output}'))\"",

@@ -82,14 +82,22 @@ pub(crate) fn open_inputs(inputs: &[String]) -> Result<Vec<InputFile>> {
             }
         }
     }
+    open_paths(&paths)
+}
+
+/// Opens files already found (again, for metadata after [`open_inputs`]'s handles closed).
+pub(crate) fn open_paths(paths: &[PathBuf]) -> Result<Vec<InputFile>> {
     paths
-        .into_iter()
+        .iter()
         .map(|path| {
-            let nc = netcdf::open(&path).map_err(|e| GridError::Unreadable {
+            let nc = netcdf::open(path).map_err(|e| GridError::Unreadable {
                 path: path.clone(),
                 message: e.to_string(),
             })?;
-            Ok(InputFile { path, nc })
+            Ok(InputFile {
+                path: path.clone(),
+                nc,
+            })
         })
         .collect()
 }
@@ -233,24 +241,43 @@ impl MaskRule {
     /// Masks (to NaN) and unpacks raw values in place.
     pub fn apply(&self, values: &mut [f64]) {
         let packed = self.scale_factor != 1.0 || self.add_offset != 0.0;
-        for v in values.iter_mut() {
-            let raw = *v;
-            let is_missing = !raw.is_finite()
-                || self.missing.iter().any(|m| same_value(raw, *m))
-                || self.valid_min.is_some_and(|lo| raw < lo)
-                || self.valid_max.is_some_and(|hi| raw > hi);
-            *v = if is_missing {
-                f64::NAN
-            } else if packed {
-                raw * self.scale_factor + self.add_offset
-            } else {
-                raw
-            };
+        let (lo, hi) = (
+            self.valid_min.unwrap_or(f64::NEG_INFINITY),
+            self.valid_max.unwrap_or(f64::INFINITY),
+        );
+        // Hot loop (every value read): the common one- or two-entry list in registers.
+        let is_missing = |raw: f64| -> bool {
+            !raw.is_finite()
+                || raw < lo
+                || raw > hi
+                || match self.missing.as_slice() {
+                    [] => false,
+                    [m] => same_value(raw, *m),
+                    [m, n] => same_value(raw, *m) || same_value(raw, *n),
+                    more => more.iter().any(|m| same_value(raw, *m)),
+                }
+        };
+        if packed {
+            let (scale, offset) = (self.scale_factor, self.add_offset);
+            for v in values.iter_mut() {
+                *v = if is_missing(*v) {
+                    f64::NAN
+                } else {
+                    *v * scale + offset
+                };
+            }
+        } else {
+            for v in values.iter_mut() {
+                if is_missing(*v) {
+                    *v = f64::NAN;
+                }
+            }
         }
     }
 }
 
 /// Equality tolerant of a float32 fill value stored in a float64 attribute (or the reverse).
+#[inline]
 fn same_value(a: f64, b: f64) -> bool {
     a == b || (a - b).abs() <= 1e-6 * b.abs().max(f64::MIN_POSITIVE)
 }

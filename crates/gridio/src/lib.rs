@@ -25,7 +25,7 @@ mod vertical;
 pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
-pub use run::Run;
+pub use run::{RawSlab, Run};
 
 use std::ops::Range;
 

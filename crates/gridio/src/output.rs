@@ -123,8 +123,13 @@ fn copy_static(file: &InputFile, name: &str, out: &mut netcdf::FileMut) -> Resul
 }
 
 /// A static variable, with the variable named by its `bounds` attribute.
-fn copy_with_bounds(run: &Run, name: &str, out: &mut netcdf::FileMut) -> Result<()> {
-    let Some(file) = holder(run, name) else {
+fn copy_with_bounds(
+    run: &Run,
+    files: &[InputFile],
+    name: &str,
+    out: &mut netcdf::FileMut,
+) -> Result<()> {
+    let Some(file) = holder(run, files, name) else {
         return Ok(());
     };
     copy_static(file, name, out)?;
@@ -137,16 +142,17 @@ fn copy_with_bounds(run: &Run, name: &str, out: &mut netcdf::FileMut) -> Result<
 }
 
 /// The grid file if it has the variable, else the first file that does.
-fn holder<'r>(run: &'r Run, name: &str) -> Option<&'r InputFile> {
-    let grid = &run.files[run.grid_file];
+fn holder<'f>(run: &Run, files: &'f [InputFile], name: &str) -> Option<&'f InputFile> {
+    let grid = &files[run.grid_file];
     if grid.nc.variable(name).is_some() {
         return Some(grid);
     }
-    run.files.iter().find(|f| f.nc.variable(name).is_some())
+    files.iter().find(|f| f.nc.variable(name).is_some())
 }
 
 pub(crate) fn write_coordinates(
     run: &Run,
+    files: &[InputFile],
     out: &mut netcdf::FileMut,
     steps: Range<usize>,
 ) -> Result<OutputAxes> {
@@ -168,7 +174,7 @@ pub(crate) fn write_coordinates(
         let name = time.var_name.clone();
         ensure_dim(out, &time.dim_name, steps.len())?;
         dims.push(time.dim_name.clone());
-        let src_file = &run.files[time.file];
+        let src_file = &files[time.file];
         let src = crate::catalog::require_var(src_file, &name, "the time axis")?;
         out.add_variable::<f64>(&name, &[&time.dim_name])
             .map_err(|e| write_error(&name, e))?;
@@ -208,15 +214,15 @@ pub(crate) fn write_coordinates(
         ensure_dim(out, z_dim, run.shape.levels)?;
         dims.push(z_dim.clone());
         if let Some(name) = run.vertical.name() {
-            copy_with_bounds(run, name, out)?;
+            copy_with_bounds(run, files, name, out)?;
         }
         if let Vertical::Parametric(p) = &run.vertical {
             for term in &p.term_vars {
                 if *term != p.eta.name {
-                    copy_with_bounds(run, term, out)?;
+                    copy_with_bounds(run, files, term, out)?;
                 }
             }
-            copy_free_surface(run, p, out, &steps)?;
+            copy_free_surface(run, files, p, out, &steps)?;
         }
     }
 
@@ -226,15 +232,15 @@ pub(crate) fn write_coordinates(
     dims.push(h.y_dim.clone());
     dims.push(h.x_dim.clone());
     for name in [&h.y_dim, &h.x_dim] {
-        if holder(run, name).is_some() {
-            copy_with_bounds(run, name, out)?;
+        if holder(run, files, name).is_some() {
+            copy_with_bounds(run, files, name, out)?;
         }
     }
     for name in h.lat_name.iter().chain(h.lon_name.iter()) {
-        copy_with_bounds(run, name, out)?;
+        copy_with_bounds(run, files, name, out)?;
     }
     if let Some(gm) = &h.grid_mapping {
-        copy_with_bounds(run, gm, out)?;
+        copy_with_bounds(run, files, gm, out)?;
     }
     let coordinates_attr = if h.curvilinear {
         let names: Vec<&str> = h
@@ -258,12 +264,13 @@ pub(crate) fn write_coordinates(
 /// (time, y, x) order.
 fn copy_free_surface(
     run: &Run,
+    files: &[InputFile],
     p: &crate::vertical::Parametric,
     out: &mut netcdf::FileMut,
     steps: &Range<usize>,
 ) -> Result<()> {
     let name = p.eta.name.clone();
-    let src_file = &run.files[p.eta.pieces[0].file];
+    let src_file = &files[p.eta.pieces[0].file];
     let src = crate::catalog::require_var(src_file, &name, "formula_terms")?;
     let h = &run.horizontal;
     let mut out_dims: Vec<String> = Vec::new();
@@ -294,7 +301,7 @@ fn copy_free_surface(
     for (i, step) in frames.into_iter().enumerate() {
         let values: Vec<f64> = p
             .eta
-            .read(&run.files, step, &rows)?
+            .read(&run.paths, step, &rows)?
             .into_iter()
             .map(|v| if v.is_nan() { fill } else { v })
             .collect();

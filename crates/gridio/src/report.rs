@@ -34,7 +34,7 @@ pub(crate) fn report(run: &Run) -> String {
             .source
             .pieces
             .iter()
-            .map(|p| run.files[p.file].path.clone())
+            .map(|p| run.paths[p.file].clone())
             .collect();
         let _ = writeln!(
             out,

@@ -65,7 +65,9 @@ pub(crate) struct Horizontal {
 
 /// An opened and validated run: all files, joined along time.
 pub struct Run {
-    pub(crate) files: Vec<InputFile>,
+    /// Input files, in the order opened. No handle stays open between calls: each
+    /// variable reads through its own (see `source::DataHandle`), metadata is reopened.
+    pub(crate) paths: Vec<PathBuf>,
     pub(crate) inputs: Vec<Input>,
     pub(crate) density: DensityChoice,
     pub(crate) shape: GridShape,
@@ -581,7 +583,8 @@ impl Run {
             cols,
         };
         let mut run = Run {
-            files,
+            // Closes the metadata handles before any data are read (see `paths`).
+            paths: files.into_iter().map(|f| f.path).collect(),
             inputs,
             density: spec.density,
             shape,
@@ -615,7 +618,7 @@ impl Run {
         let mut row = 0;
         while row < self.shape.rows {
             let rows = row..(row + block).min(self.shape.rows);
-            let read = |role: Role| self.required(role).source.read(&self.files, 0, &rows);
+            let read = |role: Role| self.required(role).source.read(&self.paths, 0, &rows);
             let t = read(Role::Temperature)?;
             let s = read(Role::Salinity)?;
             let d = read(Role::Dic)?;
@@ -656,11 +659,20 @@ impl Run {
 
     /// Every input file, in the order opened.
     pub fn input_files(&self) -> Vec<PathBuf> {
-        self.files.iter().map(|f| f.path.clone()).collect()
+        self.paths.clone()
     }
 
     /// Reads and converts one slab: time step `step`, all levels, rows `rows`, all columns.
     pub fn read_slab(&self, step: usize, rows: Range<usize>) -> Result<SlabInputs> {
+        let raw = self.read_raw_slab(step, rows)?;
+        Ok(self.convert_slab(raw))
+    }
+
+    /// The file-reading half of [`Run::read_slab`]: every value the slab needs, masked and
+    /// unpacked but not converted. Reading is serialised by libnetcdf; converting
+    /// ([`Run::convert_slab`]) is pure computation, so a pipeline can convert one slab on
+    /// its worker threads while its reader thread reads the next.
+    pub fn read_raw_slab(&self, step: usize, rows: Range<usize>) -> Result<RawSlab> {
         crate::catalog::silence_hdf5_diagnostics();
         if step >= self.time_steps() || rows.start >= rows.end || rows.end > self.shape.rows {
             return Err(GridError::OutOfRange {
@@ -673,56 +685,65 @@ impl Run {
                 ),
             });
         }
-        let cols = self.shape.cols;
-        let columns = rows.len() * cols;
-        let cells = self.shape.levels * columns;
-        let read = |role: Role| self.required(role).source.read(&self.files, step, &rows);
+        let read = |role: Role| self.required(role).source.read(&self.paths, step, &rows);
         let temperature_raw = read(Role::Temperature)?;
         let salinity_raw = read(Role::Salinity)?;
         let dic_raw = read(Role::Dic)?;
         let alkalinity_raw = read(Role::Alkalinity)?;
         let optional = |role: Role| -> Result<Option<Vec<f64>>> {
             self.input(role)
-                .map(|i| i.source.read(&self.files, step, &rows))
+                .map(|i| i.source.read(&self.paths, step, &rows))
                 .transpose()
         };
         let phosphate_raw = optional(Role::Phosphate)?;
         let silicate_raw = optional(Role::Silicate)?;
         let pressure_raw = optional(Role::Pressure)?;
-
-        // Depth and pressure per cell (parallel: the cell-wise TEOS-10 work dominates).
-        let (z, eta) = self.vertical.heights(&self.files, step, &rows, cols)?;
         let latitude = self.latitude_per_column(&rows)?;
-        let depth_and_pressure: Vec<(f64, f64)> = (0..cells)
-            .into_par_iter()
-            .map(|c| {
-                let column = c % columns;
-                let lat = latitude.as_ref().map_or(0.0, |l| l[column]);
-                if let Vertical::Pressures { dbar, .. } = &self.vertical {
-                    let p = dbar[c / columns];
-                    return (seawater::depth_from_sea_pressure(p, lat), p);
-                }
-                let below_surface = eta[column] - z[c];
-                let p = if below_surface.is_finite() {
-                    seawater::sea_pressure_from_depth(below_surface.max(0.0), lat)
-                        .unwrap_or(f64::NAN)
-                } else {
-                    f64::NAN
-                };
-                (-z[c], p)
-            })
-            .collect();
-        let (depth_m, mut pressure_dbar): (Vec<f64>, Vec<f64>) =
-            depth_and_pressure.into_iter().unzip();
-        if let (Some(raw), Some(input)) = (&pressure_raw, self.input(Role::Pressure)) {
+        // Heights change per cell and step only without fixed levels (free surface,
+        // terrain-following levels); fixed levels need none.
+        let heights = match self.vertical {
+            Vertical::Surface | Vertical::Parametric(_) => {
+                Some(
+                    self.vertical
+                        .heights(&self.paths, step, &rows, self.shape.cols)?,
+                )
+            }
+            Vertical::Depths { .. } | Vertical::Pressures { .. } => None,
+        };
+        Ok(RawSlab {
+            step,
+            rows,
+            temperature_raw,
+            salinity_raw,
+            dic_raw,
+            alkalinity_raw,
+            phosphate_raw,
+            silicate_raw,
+            pressure_raw,
+            latitude,
+            heights,
+        })
+    }
+
+    /// The converting half of [`Run::read_slab`]: units, TEOS-10 and EOS-80 conversions,
+    /// in parallel on the current rayon pool. Never fails: what cannot be converted is NaN.
+    /// `raw` must come from this run's [`Run::read_raw_slab`].
+    pub fn convert_slab(&self, raw: RawSlab) -> SlabInputs {
+        let cols = self.shape.cols;
+        let cells = self.shape.levels * raw.rows.len() * cols;
+
+        // Depth and sea pressure per cell.
+        let (depth_m, mut pressure_dbar) =
+            self.depth_and_pressure(&raw.rows, &raw.latitude, raw.heights);
+        if let (Some(given), Some(input)) = (&raw.pressure_raw, self.input(Role::Pressure)) {
             if let Conversion::Pressure(to_dbar, atmosphere) = input.conversion {
-                for (p, r) in pressure_dbar.iter_mut().zip(raw) {
+                for (p, r) in pressure_dbar.iter_mut().zip(given) {
                     *p = r * to_dbar - atmosphere;
                 }
             }
         }
 
-        // Temperature, salinity, density, concentrations.
+        // Temperature, salinity, density, concentrations: converted in place.
         let (t_scale, t_kind) = match self.required(Role::Temperature).conversion {
             Conversion::Temperature(scale, kind) => (scale, kind),
             _ => (TemperatureUnits::Celsius, TemperatureKind::InSitu),
@@ -740,66 +761,142 @@ impl Run {
             concentration(Role::Phosphate),
             concentration(Role::Silicate),
         );
-        // Per cell: [salinity, temperature, density, dic, alkalinity, phosphate, silicate].
-        let converted: Vec<[f64; 7]> = (0..cells)
+        let mut temperature_c = raw.temperature_raw;
+        let mut salinity = raw.salinity_raw;
+        let mut dic = raw.dic_raw;
+        let mut alkalinity = raw.alkalinity_raw;
+        // Absent nutrients are 0 µmol kg-1 and stay so (their units are None).
+        let mut phosphate = raw.phosphate_raw.unwrap_or_else(|| vec![0.0; cells]);
+        let mut silicate = raw.silicate_raw.unwrap_or_else(|| vec![0.0; cells]);
+        let mut density_kg_m3 = vec![0.0; cells];
+        (
+            (
+                temperature_c.par_iter_mut(),
+                salinity.par_iter_mut(),
+                density_kg_m3.par_iter_mut(),
+                pressure_dbar.par_iter(),
+            ),
+            (
+                dic.par_iter_mut(),
+                alkalinity.par_iter_mut(),
+                phosphate.par_iter_mut(),
+                silicate.par_iter_mut(),
+            ),
+        )
             .into_par_iter()
-            .map(|c| {
-                let p = pressure_dbar[c];
+            .with_min_len(256)
+            .for_each(|((t, s, rho, p), (dic, alk, po4, si))| {
+                let p = *p;
                 let sp = match salinity_conversion {
-                    (SalinityKind::Practical, _) => salinity_raw[c] * self.salinity_scale,
+                    (SalinityKind::Practical, _) => *s * self.salinity_scale,
                     (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
-                        seawater::practical_from_absolute(salinity_raw[c] * to_g_per_kg)
+                        seawater::practical_from_absolute(*s * to_g_per_kg)
                     }
                     (SalinityKind::Absolute, SalinityUnits::Practical) => {
-                        seawater::practical_from_absolute(salinity_raw[c])
+                        seawater::practical_from_absolute(*s)
                     }
                 };
-                let t_file = t_scale.to_celsius(temperature_raw[c]);
-                let t = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
-                    seawater::in_situ_temperature(t_kind, t_file, sp, p).unwrap_or(f64::NAN)
+                let t_file = t_scale.to_celsius(*t);
+                let (t_situ, density) = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
+                    in_situ_temperature_and_density(self.density, t_kind, t_file, sp, p)
                 } else {
-                    f64::NAN
+                    let reference = match self.density {
+                        DensityChoice::Reference(rho) => rho,
+                        DensityChoice::InSitu => f64::NAN,
+                    };
+                    (f64::NAN, reference)
                 };
-                let rho = match self.density {
-                    DensityChoice::Reference(rho) => rho,
-                    DensityChoice::InSitu if t.is_finite() => {
-                        seawater::in_situ_density(sp, t, p).unwrap_or(f64::NAN)
-                    }
-                    DensityChoice::InSitu => f64::NAN,
-                };
+                *s = sp;
+                *t = t_situ;
+                *rho = density;
                 let convert = |units: Option<Concentration>, v: f64| {
-                    units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, rho))
+                    units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
                 };
-                let nutrient = |units, raw: &Option<Vec<f64>>| {
-                    raw.as_ref().map_or(0.0, |r| convert(units, r[c]))
-                };
-                [
-                    sp,
-                    t,
-                    rho,
-                    convert(dic_units, dic_raw[c]),
-                    convert(alk_units, alkalinity_raw[c]),
-                    nutrient(po4_units, &phosphate_raw),
-                    nutrient(si_units, &silicate_raw),
-                ]
-            })
-            .collect();
-        let column_of = |i: usize| converted.iter().map(|v| v[i]).collect::<Vec<f64>>();
-        let slab = SlabInputs {
-            step,
-            rows: rows.clone(),
-            shape: [self.shape.levels, rows.len(), cols],
-            salinity: column_of(0),
-            temperature_c: column_of(1),
-            density_kg_m3: column_of(2),
-            dic: column_of(3),
-            alkalinity: column_of(4),
-            phosphate: column_of(5),
-            silicate: column_of(6),
+                *dic = convert(dic_units, *dic);
+                *alk = convert(alk_units, *alk);
+                if po4_units.is_some() {
+                    *po4 = convert(po4_units, *po4);
+                }
+                if si_units.is_some() {
+                    *si = convert(si_units, *si);
+                }
+            });
+        SlabInputs {
+            step: raw.step,
+            shape: [self.shape.levels, raw.rows.len(), cols],
+            rows: raw.rows,
+            salinity,
+            temperature_c,
+            density_kg_m3,
+            dic,
+            alkalinity,
+            phosphate,
+            silicate,
             pressure_dbar,
             depth_m,
+        }
+    }
+
+    /// Depth [m, positive down] and sea pressure [dbar] of every cell of a slab. On fixed
+    /// levels (depth or pressure) both depend on level and latitude only: they are computed
+    /// once per level and run of equal latitudes (once per row on a rectilinear grid).
+    fn depth_and_pressure(
+        &self,
+        rows: &Range<usize>,
+        latitude: &Option<Vec<f64>>,
+        heights: Option<(Vec<f64>, Vec<f64>)>,
+    ) -> (Vec<f64>, Vec<f64>) {
+        let columns = rows.len() * self.shape.cols;
+        let cells = self.shape.levels * columns;
+        let lat_of = |column: usize| latitude.as_ref().map_or(0.0, |l| l[column]);
+        let per_level = |at: &(dyn Fn(usize, f64) -> (f64, f64) + Sync)| {
+            let mut depth = vec![0.0; cells];
+            let mut pressure = vec![0.0; cells];
+            depth
+                .par_chunks_mut(columns.max(1))
+                .zip(pressure.par_chunks_mut(columns.max(1)))
+                .enumerate()
+                .for_each(|(level, (depth, pressure))| {
+                    let mut last: Option<(f64, (f64, f64))> = None;
+                    for column in 0..columns {
+                        let lat = lat_of(column);
+                        let value = match last {
+                            Some((l, v)) if l == lat => v,
+                            _ => at(level, lat),
+                        };
+                        last = Some((lat, value));
+                        (depth[column], pressure[column]) = value;
+                    }
+                });
+            (depth, pressure)
         };
-        Ok(slab)
+        let from_depth = |depth: f64, lat: f64| {
+            let p = if depth.is_finite() {
+                seawater::sea_pressure_from_depth(depth.max(0.0), lat).unwrap_or(f64::NAN)
+            } else {
+                f64::NAN
+            };
+            (depth, p)
+        };
+        match (&self.vertical, heights) {
+            (Vertical::Pressures { dbar, .. }, _) => per_level(&|level, lat| {
+                let p = dbar[level];
+                (seawater::depth_from_sea_pressure(p, lat), p)
+            }),
+            (Vertical::Depths { depth_m, .. }, _) => {
+                per_level(&|level, lat| from_depth(depth_m[level], lat))
+            }
+            (_, Some((z, eta))) => (0..cells)
+                .into_par_iter()
+                .map(|c| {
+                    let column = c % columns;
+                    let (_, p) = from_depth(eta[column] - z[c], lat_of(column));
+                    (-z[c], p)
+                })
+                .unzip(),
+            // read_raw_slab reads heights for every other vertical coordinate.
+            (_, None) => (vec![f64::NAN; cells], vec![f64::NAN; cells]),
+        }
     }
 
     /// Latitude [°N] per column of the rows, when the run has latitude.
@@ -807,7 +904,7 @@ impl Run {
         let Some(source) = &self.horizontal.latitude else {
             return Ok(None);
         };
-        let values = source.read(&self.files, 0, rows)?;
+        let values = source.read(&self.paths, 0, rows)?;
         if source.len_of(Axis::X).is_some() {
             return Ok(Some(values));
         }
@@ -884,7 +981,59 @@ impl Run {
         steps: Range<usize>,
     ) -> Result<OutputAxes> {
         crate::catalog::silence_hdf5_diagnostics();
-        crate::output::write_coordinates(self, out, steps)
+        let files = crate::catalog::open_paths(&self.paths)?;
+        crate::output::write_coordinates(self, &files, out, steps)
+    }
+}
+
+/// One slab's values as read from the files (masked and unpacked, in canonical order), before
+/// conversion: the output of [`Run::read_raw_slab`], the input of [`Run::convert_slab`].
+#[derive(Clone, Debug)]
+pub struct RawSlab {
+    step: usize,
+    rows: Range<usize>,
+    temperature_raw: Vec<f64>,
+    salinity_raw: Vec<f64>,
+    dic_raw: Vec<f64>,
+    alkalinity_raw: Vec<f64>,
+    phosphate_raw: Option<Vec<f64>>,
+    silicate_raw: Option<Vec<f64>>,
+    pressure_raw: Option<Vec<f64>>,
+    /// Latitude per column of the slab, when the run has one.
+    latitude: Option<Vec<f64>>,
+    /// Height per cell and free-surface height per column, when levels are not fixed.
+    heights: Option<(Vec<f64>, Vec<f64>)>,
+}
+
+impl RawSlab {
+    /// Time step of the slab.
+    pub fn step(&self) -> usize {
+        self.step
+    }
+
+    /// Rows of the slab.
+    pub fn rows(&self) -> Range<usize> {
+        self.rows.clone()
+    }
+}
+
+/// In-situ temperature [°C] and the density for per-volume concentrations [kg m-3] of one
+/// wet cell; NaN for what cannot be computed.
+fn in_situ_temperature_and_density(
+    density: DensityChoice,
+    kind: TemperatureKind,
+    temperature: f64,
+    practical: f64,
+    p: f64,
+) -> (f64, f64) {
+    let in_situ_only = || seawater::in_situ_temperature(kind, temperature, practical, p);
+    match density {
+        DensityChoice::Reference(rho) => (in_situ_only().unwrap_or(f64::NAN), rho),
+        // One pass gives both (saves a potential-temperature evaluation per cell).
+        DensityChoice::InSitu => match seawater::in_situ_state(kind, temperature, practical, p) {
+            Ok(state) => (state.temperature_c, state.density_kg_m3),
+            Err(_) => (in_situ_only().unwrap_or(f64::NAN), f64::NAN),
+        },
     }
 }
 
@@ -961,6 +1110,7 @@ fn horizontal_grid(
                 steps: 1,
                 mask: crate::catalog::MaskRule::of(&lat_var),
             }],
+            data: Default::default(),
         };
         horizontal.latitude = Some(source);
     }

@@ -132,7 +132,7 @@ impl Vertical {
     /// per cell of a slab, in canonical order (eta per column: rows*cols).
     pub fn heights(
         &self,
-        files: &[InputFile],
+        paths: &[std::path::PathBuf],
         step: usize,
         rows: &Range<usize>,
         cols: usize,
@@ -155,13 +155,13 @@ impl Vertical {
             Vertical::Parametric(p) => {
                 let eta: Vec<f64> = p
                     .eta
-                    .read(files, step, rows)?
+                    .read(paths, step, rows)?
                     .into_iter()
                     .map(|v| v * p.eta_to_m)
                     .collect();
                 let depth: Vec<f64> = p
                     .depth
-                    .read(files, step, rows)?
+                    .read(paths, step, rows)?
                     .into_iter()
                     .map(|v| v * p.depth_to_m)
                     .collect();

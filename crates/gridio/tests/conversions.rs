@@ -593,6 +593,27 @@ fn potential_and_in_situ_temperature_round_trip() {
 }
 
 #[test]
+fn in_situ_from_potential_meets_its_1e_10_tolerance_over_the_oceanic_range() {
+    // The inversion stops without a final check once its Newton step is small enough; the
+    // round trip through Fofonoff & Millard 1983 THETA must still close to 1e-10 °C
+    // (plus round-off) everywhere in the ocean, including the deepest trenches.
+    let mut worst: f64 = 0.0;
+    for s in [0.0, 10.0, 30.0, 34.5, 35.0, 36.0, 42.0] {
+        for t in [-2.0, -1.0, 0.5, 2.0, 4.0, 8.0, 12.0, 20.0, 28.0, 35.0, 40.0] {
+            for p in [
+                1.0, 50.0, 300.0, 1000.0, 2500.0, 4000.0, 6000.0, 8000.0, 11000.0,
+            ] {
+                let theta = potential_from_in_situ(s, t, p);
+                let back = in_situ_from_potential(s, theta, p).unwrap();
+                worst = worst.max((back - t).abs());
+            }
+        }
+    }
+    eprintln!("largest round-trip error of in_situ_from_potential: {worst:.1e} °C");
+    assert!(worst < 2e-10, "{worst:e}");
+}
+
+#[test]
 fn teos10_pressure_from_depth() {
     // gsw_p_from_z documentation example (TEOS-10, 75-term), z = -(10..1000) m, lat = 4°N,
     // as printed by GSW-R 1.0-5.

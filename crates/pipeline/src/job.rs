@@ -12,7 +12,7 @@ use crate::plan::{plan_slabs, SlabPlan};
 use crate::resume::{file_identity, sync_parent, ProgressRecord};
 use crate::PipelineError;
 use acidscape_chem::ConstantChoice;
-use acidscape_gridio::{GridError, Run, SlabInputs};
+use acidscape_gridio::{GridError, RawSlab, Run};
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::sync::mpsc::sync_channel;
@@ -65,7 +65,8 @@ pub struct JobSummary {
     /// Flag counts over the whole output, all time steps.
     pub counts: FlagCounts,
     pub wall: Duration,
-    /// Time spent in each stage (they overlap, so they may add up to more than `wall`).
+    /// Time spent in each stage (they overlap, so they may add up to more than `wall`): `read` is
+    /// file I/O only, `compute` the unit and TEOS-10 conversions plus the solver.
     pub read: Duration,
     pub compute: Duration,
     pub write: Duration,
@@ -214,7 +215,7 @@ pub fn run_job(
     let first = match slabs.next() {
         Some((step, rows)) => {
             let t = Instant::now();
-            let slab = run.read_slab(step, rows)?;
+            let slab = run.read_raw_slab(step, rows)?;
             read_time += t.elapsed();
             Some(slab)
         }
@@ -267,7 +268,9 @@ pub fn run_job(
     let fields_ref = &fields;
 
     let outcome = std::thread::scope(|scope| -> Result<(Duration, Duration), PipelineError> {
-        let (input_tx, input_rx) = sync_channel::<Result<SlabInputs, GridError>>(1);
+        // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
+        // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
+        let (input_tx, input_rx) = sync_channel::<Result<RawSlab, GridError>>(1);
         let (result_tx, result_rx) = sync_channel::<Result<SlabResult, GridError>>(1);
         let reader = scope.spawn(move || {
             let mut busy = Duration::ZERO;
@@ -278,7 +281,7 @@ pub fn run_job(
             }
             for (step, rows) in slabs {
                 let t = Instant::now();
-                let slab = run.read_slab(step, rows);
+                let slab = run.read_raw_slab(step, rows);
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -292,7 +295,7 @@ pub fn run_job(
             for item in input_rx {
                 let item = item.map(|inputs| {
                     let t = Instant::now();
-                    let result = solve_slab(&inputs, fields_ref, &constants);
+                    let result = solve_slab(&run.convert_slab(inputs), fields_ref, &constants);
                     busy += t.elapsed();
                     result
                 });
