@@ -21,6 +21,8 @@ pub enum CarbonicSet {
     /// Lueker, Dickson & Keeling 2000 (total scale), refit of Mehrbach et al. 1973.
     #[default]
     Lueker2000,
+    /// Millero et al. 2006 (seawater scale), S 1-50, 0-50 °C; coefficients verified in the abstract.
+    Millero2006,
     /// Millero 2010 (seawater scale), for estuarine to open-ocean salinities.
     Millero2010,
     /// Waters, Millero & Woosley 2014 (seawater scale), the corrected Millero 2010 fit.
@@ -124,6 +126,11 @@ keyed_choice!(
             "Lueker, T. J., Dickson, A. G. and Keeling, C. D. (2000), Ocean pCO2 calculated from dissolved inorganic carbon, alkalinity, and equations for K1 and K2, Marine Chemistry 70, 105-119"
         ),
         (
+            CarbonicSet::Millero2006,
+            "millero2006",
+            "Millero, F. J., Graham, T. B., Huang, F., Bustos-Serrano, H. and Pierrot, D. (2006), Dissociation constants of carbonic acid in seawater as a function of salinity and temperature, Marine Chemistry 100, 80-94"
+        ),
+        (
             CarbonicSet::Millero2010,
             "millero2010",
             "Millero, F. J. (2010), Carbonate constants for estuarine waters, Marine and Freshwater Research 61, 139-142"
@@ -198,6 +205,7 @@ impl CarbonicSet {
     pub fn short_name(self) -> &'static str {
         match self {
             CarbonicSet::Lueker2000 => "Lueker et al. 2000 (total scale)",
+            CarbonicSet::Millero2006 => "Millero et al. 2006 (seawater scale)",
             CarbonicSet::Millero2010 => "Millero 2010 (seawater scale)",
             CarbonicSet::WatersMilleroWoosley2014 => {
                 "Waters, Millero & Woosley 2014 (seawater scale)"

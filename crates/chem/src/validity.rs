@@ -52,6 +52,23 @@ const RANGES: &[Range] = &[
         unit: "",
         source: "Lueker et al. 2000",
     },
+    // Millero et al. 2006: "valid from S = 0 to 50 and t = 0 to 50 °C" (verified, abstract).
+    Range {
+        bit: Validity::MILLERO2006_TEMPERATURE,
+        quantity: Quantity::Temperature,
+        min: 0.0,
+        max: 50.0,
+        unit: " °C",
+        source: "Millero et al. 2006",
+    },
+    Range {
+        bit: Validity::MILLERO2006_SALINITY,
+        quantity: Quantity::Salinity,
+        min: 0.0,
+        max: 50.0,
+        unit: "",
+        source: "Millero et al. 2006",
+    },
     Range {
         bit: Validity::MILLERO2010_TEMPERATURE,
         quantity: Quantity::Temperature,
@@ -209,6 +226,10 @@ impl Validity {
     pub const MUCCI1983_SALINITY: u32 = 1 << 15;
     /// Pressure corrections used beyond 10000 dbar (1000 bar).
     pub const PRESSURE: u32 = 1 << 16;
+    /// K1, K2 of Millero et al. 2006 used outside 0-50 °C.
+    pub const MILLERO2006_TEMPERATURE: u32 = 1 << 17;
+    /// K1, K2 of Millero et al. 2006 used outside S 0-50.
+    pub const MILLERO2006_SALINITY: u32 = 1 << 18;
 
     /// Breaches that can move a reported indicator: all but KF's. HF enters alkalinity as
     /// TF·[H+]free/KF, below 0.01 µmol kg-1 at seawater pH, so an extrapolated KF cannot
@@ -269,6 +290,7 @@ impl Validity {
     ) -> Self {
         let (carbonic_t, carbonic_s) = match choice.carbonic {
             CarbonicSet::Lueker2000 => (Self::LUEKER2000_TEMPERATURE, Self::LUEKER2000_SALINITY),
+            CarbonicSet::Millero2006 => (Self::MILLERO2006_TEMPERATURE, Self::MILLERO2006_SALINITY),
             CarbonicSet::Millero2010 => (Self::MILLERO2010_TEMPERATURE, Self::MILLERO2010_SALINITY),
             CarbonicSet::WatersMilleroWoosley2014 => {
                 (Self::WATERS2014_TEMPERATURE, Self::WATERS2014_SALINITY)

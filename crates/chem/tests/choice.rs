@@ -152,3 +152,35 @@ fn hydrogen_fluoride_alkalinity_is_negligible_in_seawater() {
     }
     assert!(largest < 1e-2, "largest HF alkalinity {largest} µmol/kg");
 }
+
+/// The Millero et al. 2006 set as `solve` uses it: at S = 35, 25 °C, surface, K1 and K2 brought
+/// back to the seawater scale equal the check values printed in the paper's abstract,
+/// pK1* = 5.8401 and pK2* = 8.9636 (Millero et al. 2006, Marine Chemistry 100, 80-94; verified).
+#[test]
+fn millero2006_constants_in_use_match_the_published_check_values() {
+    use acidscape_chem::equilibrium_constants;
+    let choice = ConstantChoice {
+        carbonic: "millero2006".parse().unwrap(),
+        ..ConstantChoice::default()
+    };
+    let surface = Conditions {
+        temperature_c: 25.0,
+        salinity: 35.0,
+        pressure_dbar: 0.0,
+        phosphate: 0.0,
+        silicate: 0.0,
+    };
+    let k = equilibrium_constants(&surface, &choice).unwrap();
+    let pk1_seawater = -(k.k1 / k.seawater_to_total).log10();
+    let pk2_seawater = -(k.k2 / k.seawater_to_total).log10();
+    assert!((pk1_seawater - 5.8401).abs() < 5e-5, "pK1* {pk1_seawater}");
+    assert!((pk2_seawater - 8.9636).abs() < 5e-5, "pK2* {pk2_seawater}");
+    // Its validity range is its own, not Lueker's: 1 °C is inside 0-50 °C.
+    let cold = Conditions {
+        temperature_c: 1.0,
+        ..surface
+    };
+    let s = solve_ta_dic(2300.0, 2100.0, &cold, &choice);
+    assert!(!s.validity.contains(Validity::MILLERO2006_TEMPERATURE));
+    assert!(!s.validity.contains(Validity::LUEKER2000_TEMPERATURE));
+}

@@ -65,7 +65,7 @@ impl RunOptions {
 /// Which published constants to use (defaults follow Dickson, Sabine & Christian 2007).
 #[derive(Args, Debug, Clone, Default)]
 pub struct ConstantOptions {
-    /// Carbonic-acid constants K1, K2: lueker2000 (default), or another key listed in the README
+    /// Carbonic-acid constants K1, K2: lueker2000 (default), millero2006, millero2010, waters2014
     #[arg(long, value_name = "KEY")]
     pub carbonic: Option<String>,
 

@@ -266,6 +266,11 @@ pub(crate) fn constants_unchecked(
             -lueker2000::pk2(&terms) * ln10,
             total_surface_to_total,
         ),
+        CarbonicSet::Millero2006 => (
+            -millero2006::pk1(&terms) * ln10,
+            -millero2006::pk2(&terms) * ln10,
+            seawater_to_total,
+        ),
         CarbonicSet::Millero2010 => (
             -millero2010::pk1(&terms) * ln10,
             -millero2010::pk2(&terms) * ln10,
