@@ -69,6 +69,32 @@ impl PairChoice {
             Self::DicPco2 => [Role::Dic, Role::Pco2],
         }
     }
+
+    /// The chemistry's input pair from the values of the two roles, in `roles()` order.
+    fn input_pair(self, a: f64, b: f64) -> InputPair {
+        match self {
+            PairChoice::AlkalinityDic => InputPair::AlkalinityDic {
+                alkalinity: a,
+                dic: b,
+            },
+            PairChoice::AlkalinityPh => InputPair::AlkalinityPh {
+                alkalinity: a,
+                ph_total: b,
+            },
+            PairChoice::DicPh => InputPair::DicPh {
+                dic: a,
+                ph_total: b,
+            },
+            PairChoice::AlkalinityPco2 => InputPair::AlkalinityPco2 {
+                alkalinity: a,
+                pco2_uatm: b,
+            },
+            PairChoice::DicPco2 => InputPair::DicPco2 {
+                dic: a,
+                pco2_uatm: b,
+            },
+        }
+    }
 }
 
 /// What a column means to the chemistry.
@@ -369,29 +395,7 @@ fn row_inputs(
         }
     };
     let [first, second] = pair_choice.roles();
-    let (a, b) = (member(first)?, member(second)?);
-    let pair = match pair_choice {
-        PairChoice::AlkalinityDic => InputPair::AlkalinityDic {
-            alkalinity: a,
-            dic: b,
-        },
-        PairChoice::AlkalinityPh => InputPair::AlkalinityPh {
-            alkalinity: a,
-            ph_total: b,
-        },
-        PairChoice::DicPh => InputPair::DicPh {
-            dic: a,
-            ph_total: b,
-        },
-        PairChoice::AlkalinityPco2 => InputPair::AlkalinityPco2 {
-            alkalinity: a,
-            pco2_uatm: b,
-        },
-        PairChoice::DicPco2 => InputPair::DicPco2 {
-            dic: a,
-            pco2_uatm: b,
-        },
-    };
+    let pair = pair_choice.input_pair(member(first)?, member(second)?);
     Ok(RowInputs {
         pair,
         conditions: Conditions {
