@@ -75,9 +75,11 @@ PATHWAYS = {
 TREND_START_YEAR = 2015.0
 TREND_EFOLD_DEPTH = 500.0  # m; anthropogenic DIC attenuates with depth
 
-RUN_NAMES = ("cmip-style", "terrain-following", "curvilinear")
+RUN_NAMES = ("cmip-style", "terrain-following", "curvilinear", "century")
 DEFAULT_SIZE = (44, 32, 18)
-DEFAULT_STEPS = {"cmip-style": 12, "terrain-following": 6, "curvilinear": 4}
+# the multi-decade run is coarser so that 86 annual steps stay small enough to commit
+DEFAULT_SIZES = {"century": (30, 22, 15)}
+DEFAULT_STEPS = {"cmip-style": 12, "terrain-following": 6, "curvilinear": 4, "century": 86}
 LARGE_SIZE = (360, 180, 50)
 LARGE_STEPS = 12
 
@@ -509,16 +511,16 @@ def write_cmip_style(job):
     return written
 
 
-def write_cmip_fixed(folder, pathway, lon, lat, geo, history):
+def write_cmip_fixed(folder, pathway, lon, lat, geo, history, run="cmip-style"):
     area_path = folder / f"areacello_{pathway}.nc"
-    with open_dataset(area_path, "Varnholm Gulf synthetic run, grid-cell area", pathway, "cmip-style",
+    with open_dataset(area_path, "Varnholm Gulf synthetic run, grid-cell area", pathway, run,
                       history, {"frequency": "fx"}) as ds:
         add_rectilinear_horizontal(ds, lon, lat)
         add_var(ds, "areacello", ("lat", "lon"),
                 {"standard_name": "cell_area", "long_name": "Grid-Cell Area for Ocean Variables", "units": "m2",
                  "cell_methods": "area: sum"}, cell_area_rectilinear(lon, lat))
     depth_path = folder / f"deptho_{pathway}.nc"
-    with open_dataset(depth_path, "Varnholm Gulf synthetic run, sea floor depth", pathway, "cmip-style",
+    with open_dataset(depth_path, "Varnholm Gulf synthetic run, sea floor depth", pathway, run,
                       history, {"frequency": "fx", "external_variables": "areacello"}) as ds:
         add_rectilinear_horizontal(ds, lon, lat)
         add_var(ds, "deptho", ("lat", "lon"),
@@ -757,10 +759,117 @@ def write_curvilinear(job):
     return written
 
 
+# ----------------------------------------------------------------------------
+# Run 4: century (cmip-style layout, annual means 2015-2100)
+# ----------------------------------------------------------------------------
+
+CENTURY_FIRST_YEAR = 2015
+CENTURY_SPLIT_YEAR = 2050  # files 2015-2049 and 2050-2100, as CMIP splits long runs
+
+
+@dataclass
+class YearlyAxis:
+    units: str
+    calendar: str
+    years: list
+    values: np.ndarray
+    bounds: np.ndarray
+
+    def part(self, first, stop):
+        return YearlyAxis(self.units, self.calendar, self.years[first:stop], self.values[first:stop],
+                          self.bounds[first:stop])
+
+
+def yearly_axis(first_year, steps, calendar):
+    units = f"days since {first_year:04d}-01-01 00:00:00"
+    years = list(range(first_year, first_year + steps))
+    starts = [cftime.datetime(y, 1, 1, calendar=calendar) for y in years]
+    ends = [cftime.datetime(y + 1, 1, 1, calendar=calendar) for y in years]
+    start_num = np.asarray(cftime.date2num(starts, units, calendar=calendar), dtype="f8")
+    end_num = np.asarray(cftime.date2num(ends, units, calendar=calendar), dtype="f8")
+    return YearlyAxis(units, calendar, years, 0.5 * (start_num + end_num), np.stack([start_num, end_num], axis=1))
+
+
+class YearToYear:
+    """Invented year-to-year variability: smooth AR(1) anomalies (lag-1 correlation 0.5), fixed seed."""
+
+    def __init__(self, shape, years, seed):
+        rng = np.random.default_rng(seed)
+        cells = max(2.0, min(shape) / 6.0)
+        self.temperature, self.dic = [], []
+        t = np.zeros(shape)
+        d = np.zeros(shape)
+        for _ in range(years):
+            t = 0.5 * t + np.sqrt(0.75) * mesoscale_field(rng, shape, cells)
+            d = 0.5 * d + np.sqrt(0.75) * mesoscale_field(rng, shape, cells)
+            self.temperature.append(0.35 * t)  # degC at the surface
+            self.dic.append(4.0 * d)  # umol kg-1 at the surface
+
+
+def annual_mean_water(depth, geo, lat2, year, trend, eddies, year_index, variability):
+    """Mean of the twelve monthly states of a year, plus that year's invented anomalies."""
+    months = []
+    for month in range(1, 13):
+        step = 12 * year_index + month - 1
+        months.append(water_properties(depth, geo, lat2, month, year + (month - 0.5) / 12.0, trend,
+                                       eddies.displacement(step), eddies.surface_anomaly(step)))
+    mean = Water(*(np.mean([getattr(w, f) for w in months], axis=0) for f in Water.__dataclass_fields__))
+    mean.theta = mean.theta + variability.temperature[year_index] * np.exp(-depth / 80.0)
+    mean.dic = mean.dic + variability.dic[year_index] * np.exp(-depth / 150.0)
+    return mean
+
+
+def write_century(job):
+    nx, ny, nz = job.size
+    lon, lat = rectilinear_grid(nx, ny)
+    lon2, lat2 = np.meshgrid(lon, lat)
+    geo = geography(lon2, lat2)
+    interfaces = level_interfaces(nz)
+    centres = 0.5 * (interfaces[:-1] + interfaces[1:])
+    wet = centres[:, None, None] < geo.bottom_depth[None, :, :]
+    axis = yearly_axis(CENTURY_FIRST_YEAR, job.steps, "noleap")
+    eddies = Eddies((ny, nx), SEED + 4)
+    variability = YearToYear((ny, nx), job.steps, SEED + 5)
+    split = min(max(CENTURY_SPLIT_YEAR - CENTURY_FIRST_YEAR, 1), job.steps)
+    parts = [(0, split)] + ([(split, job.steps)] if job.steps > split else [])
+    written = []
+    for pathway in job.pathways:
+        trend = PATHWAYS[pathway][0]
+        folder = job.out / "century" / pathway
+        extra = {"frequency": "yr", "concentration_conversion": density_note("mol m-3"),
+                 "external_variables": "areacello"}
+        for first, stop in parts:
+            part = axis.part(first, stop)
+            tag = f"{axis.years[first]:04d}-{axis.years[stop - 1]:04d}"
+            with contextlib.ExitStack() as files:
+                variables = {}
+                for name, (attrs, digits) in CMIP_VARIABLES.items():
+                    path = folder / f"{name}_{pathway}_{tag}.nc"
+                    title = f"Varnholm Gulf synthetic run, annual means, {pathway}, {attrs['long_name']}"
+                    ds = files.enter_context(open_dataset(path, title, pathway, "century", job.history, extra))
+                    add_time(ds, part)
+                    add_depth_levels(ds, "lev", centres, interfaces, "down")
+                    add_rectilinear_horizontal(ds, lon, lat)
+                    full = {**attrs, "cell_methods": "area: mean where sea time: mean",
+                            "cell_measures": "area: areacello"}
+                    variables[name] = add_var(ds, name, ("time", "lev", "lat", "lon"), full, None,
+                                              digits=job.digits(digits), chunks=(1, nz, ny, nx))
+                    written.append(path)
+                for local, step in enumerate(range(first, stop)):
+                    water = annual_mean_water(centres[:, None, None], geo, lat2, axis.years[step], trend, eddies,
+                                              step, variability)
+                    for name, var in variables.items():
+                        write(var, np.where(wet, cmip_values(name, water), np.nan).astype("f4"), local)
+        written += write_cmip_fixed(folder, pathway, lon, lat, geo, job.history, "century")
+        job.report("century", pathway, len(CMIP_VARIABLES))
+    return written
+
+
 WRITERS = {
     "cmip-style": write_cmip_style,
     "terrain-following": write_terrain_following,
     "curvilinear": write_curvilinear,
+    "century": write_century,
 }
 
 
@@ -769,9 +878,11 @@ def parse_args(argv):
                                      formatter_class=argparse.RawDescriptionHelpFormatter, epilog=__doc__)
     parser.add_argument("--out", type=Path, help="output directory (runs go in <out>/<run>/<pathway>/)")
     parser.add_argument("--size", type=int, nargs=3, metavar=("NX", "NY", "NZ"), default=None,
-                        help=f"columns west-east, south-north, and levels (default {' '.join(map(str, DEFAULT_SIZE))})")
+                        help=f"columns west-east, south-north, and levels (default {' '.join(map(str, DEFAULT_SIZE))}; "
+                             f"century {' '.join(map(str, DEFAULT_SIZES['century']))})")
     parser.add_argument("--steps", type=int, default=None,
-                        help="monthly steps per run (default: cmip-style 12, terrain-following 6, curvilinear 4)")
+                        help="steps per run: months, or years for century (default: cmip-style 12, terrain-following 6, "
+                             "curvilinear 4, century 86 = 2015-2100)")
     parser.add_argument("--runs", default=",".join(RUN_NAMES), help=f"comma-separated subset of {', '.join(RUN_NAMES)}")
     parser.add_argument("--large", type=Path, metavar="DIR",
                         help=f"benchmark preset: {LARGE_SIZE[0]}x{LARGE_SIZE[1]}x{LARGE_SIZE[2]}, {LARGE_STEPS} steps, "
@@ -798,10 +909,8 @@ def parse_args(argv):
     if not pathways or any(p not in PATHWAYS for p in pathways):
         parser.error(f"unknown pathway in {args.pathways!r}; choose from {', '.join(PATHWAYS)}")
     args.pathways = pathways
-    size = tuple(args.size or DEFAULT_SIZE)
-    if min(size[:2]) < 4 or size[2] < 2:
+    if args.size is not None and (min(args.size[:2]) < 4 or args.size[2] < 2):
         parser.error("--size needs NX, NY >= 4 and NZ >= 2")
-    args.size = size
     if args.steps is not None and args.steps < 1:
         parser.error("--steps must be at least 1")
     return args
@@ -810,14 +919,15 @@ def parse_args(argv):
 def main(argv=None):
     args = parse_args(sys.argv[1:] if argv is None else argv)
     # history is deterministic (no timestamp) so repeated runs give the same bytes
-    options = ["--size", *map(str, args.size)]
+    options = ["--size", *map(str, args.size)] if args.size else []
     options += ["--steps", str(args.steps)] if args.steps else []
     options += ["--runs", ",".join(args.runs), "--pathways", ",".join(args.pathways)]
     options += ["--lossless"] if args.lossless else []
     history = "scripts/make_sample_grids.py " + " ".join(options)
     written = []
     for run in args.runs:
-        job = Job(args.out, args.size, args.steps or DEFAULT_STEPS[run], history, args.pathways, args.quiet,
+        size = tuple(args.size or DEFAULT_SIZES.get(run, DEFAULT_SIZE))
+        job = Job(args.out, size, args.steps or DEFAULT_STEPS[run], history, args.pathways, args.quiet,
                   args.lossless)
         written += WRITERS[run](job)
     total = sum(p.stat().st_size for p in written)
