@@ -2,7 +2,7 @@
 # Runs `acidscape compute` on every sample run and checks each output with
 # scripts/check_external_readers.py: netCDF4 and xarray open it (units, coordinates,
 # decoded time) and the compliance-checker CF suites cf:1.8 and cf:1.10 (the version the
-# output declares) report no error.
+# output declares) report no error; CDO and NCO read them (scripts/check_with_cdo_nco.sh).
 # Sample runs: sample-grids/<run>/<pathway>/ if present, else generated (small, SYNTHETIC)
 # into a temporary directory by scripts/make_sample_grids.py.
 # Usage: scripts/check_outputs.sh [--keep]   (--keep leaves the temporary directory)
@@ -42,6 +42,10 @@ if [[ ${#outputs[@]} -gt 0 ]]; then
         echo "== external readers and compliance-checker $suite"
         python3 scripts/check_external_readers.py "${outputs[@]}" --cf-suite "$suite" "${expect[@]}" || failed=1
     done
+fi
+if [[ ${#outputs[@]} -gt 0 ]]; then
+    echo "== CDO and NCO"
+    scripts/check_with_cdo_nco.sh "${outputs[@]}" || failed=1
 fi
 if [[ $failed -eq 0 ]]; then echo "check_outputs: all outputs pass"; else echo "check_outputs: FAILED"; fi
 exit $failed
