@@ -165,7 +165,7 @@ pub(crate) struct PlaneGrid {
     pub corners: Vec<[(f64, f64); 4]>,
     pub x_range: (f64, f64),
     pub y_range: (f64, f64),
-    /// Longitudes are shown in [lon_start, lon_start + 360).
+    /// Longitudes are placed in [lon_start, lon_start + 360).
     pub lon_start: f64,
 }
 
@@ -196,8 +196,8 @@ pub(crate) fn wrap180(degrees: f64) -> f64 {
     (degrees + 180.0).rem_euclid(360.0) - 180.0
 }
 
-/// Where the longitude frame starts: the given values themselves when they already run
-/// without a seam, otherwise just after the widest empty arc of the circle.
+/// Where the longitude frame starts: the given values keep their own convention when they
+/// already run without a seam; otherwise the frame opens in the widest empty arc.
 fn seam_free_start(lons: impl Iterator<Item = f64>) -> f64 {
     let raw: Vec<f64> = lons.collect();
     let (min, max) = raw
@@ -212,11 +212,13 @@ fn seam_free_start(lons: impl Iterator<Item = f64>) -> f64 {
             widest = (pair[1] - pair[0], pair[1]);
         }
     }
-    if max - min <= 360.0 - widest.0 + 1e-6 {
+    let first = if max - min <= 360.0 - widest.0 + 1e-6 {
         min
     } else {
         widest.1
-    }
+    };
+    // Start halfway across the empty arc, so cell corners and nearby points fall inside.
+    first - 0.5 * widest.0
 }
 
 /// Bounds halfway between neighbouring centres; the ends mirror their neighbour's spacing.

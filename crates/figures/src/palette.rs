@@ -191,7 +191,7 @@ impl ColourScale {
 }
 
 /// Percentile `p` (0–100) of sorted values, linear between order statistics (Hyndman & Fan
-/// 1996, definition 7).
+/// 1996, definition 7; from memory).
 fn percentile(sorted: &[f64], p: f64) -> f64 {
     let position = p / 100.0 * (sorted.len() - 1) as f64;
     let below = position.floor() as usize;

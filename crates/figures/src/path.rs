@@ -205,7 +205,7 @@ pub fn sample_path(grid: &MapGrid, points: &[(f64, f64)]) -> Result<Vec<PathCell
     let smallest = smallest_cell_km(&plane);
     let total_km: f64 = points.windows(2).map(|w| great_circle_km(w[0], w[1])).sum();
     let step_km = (smallest / 4.0).max(total_km / 200_000.0).max(1e-6);
-    let tolerance_km = (step_km * 1e-4).max(1e-6);
+    let tolerance_km = (smallest * 1e-7).max(1e-9);
     let mut changes = Vec::new();
     let mut start_km = 0.0;
     for pair in points.windows(2) {

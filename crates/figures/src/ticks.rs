@@ -1,7 +1,7 @@
 //! Tick values and their labels.
 
 /// A step of 1, 2, 5 or 10 × 10^n close to `span / target` ("nice numbers", Heckbert 1990,
-/// Graphics Gems, pp. 61–63).
+/// Graphics Gems; from memory).
 pub(crate) fn nice_step(span: f64, target: usize) -> f64 {
     let raw = span.abs() / target.max(1) as f64;
     if raw <= 0.0 || !raw.is_finite() {

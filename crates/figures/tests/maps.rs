@@ -6,8 +6,7 @@
 mod common;
 
 use acidscape_figures::{
-    render_map, Captions, ColourRange, ContourLevel, MapGrid, MapSpec, PageSize, Palette,
-    MISSING_GREY,
+    render_map, Captions, ColourRange, ContourLevel, MapSpec, PageSize, Palette, MISSING_GREY,
 };
 use common::*;
 
@@ -239,16 +238,7 @@ fn the_map_keeps_a_true_aspect_at_high_latitude() {
 #[test]
 fn a_domain_across_the_dateline_is_drawn_in_one_piece() {
     // Centres 170.5 … 179.5 then −179.5 … −170.5, written the −180…180 way.
-    let lons: Vec<f64> = (0..20)
-        .map(|i| {
-            let l = 170.5 + i as f64;
-            if l > 180.0 {
-                l - 360.0
-            } else {
-                l
-            }
-        })
-        .collect();
+    let lons = dateline_lons(170.5, 20);
     let lats = vec![-0.5, 0.5];
     let grid = one_degree_grid(&lons, &lats);
     let values: Vec<f64> = (0..40).map(|k| (k % 20) as f64).collect();
@@ -266,28 +256,8 @@ fn a_domain_across_the_dateline_is_drawn_in_one_piece() {
 
 #[test]
 fn curvilinear_cells_are_drawn_where_their_corners_are() {
-    // A 3 × 3 patch rotated by 30°, 1° cells, centred on 206 °E 34.5 °N.
-    let turn = 30f64.to_radians();
-    let place = |u: f64, v: f64| {
-        (
-            206.0 + u * turn.cos() - v * turn.sin(),
-            34.5 + u * turn.sin() + v * turn.cos(),
-        )
-    };
-    let (mut lon, mut lat, mut lon_v, mut lat_v) = (vec![], vec![], vec![], vec![]);
-    for j in 0..3 {
-        for i in 0..3 {
-            let (u, v) = (i as f64 - 1.0, j as f64 - 1.0);
-            let c = place(u, v);
-            let corners = [(-0.5, -0.5), (0.5, -0.5), (0.5, 0.5), (-0.5, 0.5)]
-                .map(|(a, b)| place(u + a, v + b));
-            lon.push(c.0);
-            lat.push(c.1);
-            lon_v.push(corners.map(|p| p.0));
-            lat_v.push(corners.map(|p| p.1));
-        }
-    }
-    let grid = MapGrid::curvilinear((3, 3), lon.clone(), lat.clone(), lon_v, lat_v).unwrap();
+    // A 3 × 3 patch of 1° cells rotated by 30°.
+    let (grid, lon, lat) = turned_patch(3, 1.0);
     let values: Vec<f64> = (0..9).map(f64::from).collect();
     let mut spec = fixed_spec(0.0, 8.0);
     spec.colouring.palette = Palette::Cividis;
