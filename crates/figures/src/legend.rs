@@ -104,7 +104,8 @@ impl Legend {
         Style::block_height(&style.small, self.rows.len())
     }
 
-    /// Draws the rows centred on `centre_x`, the first row's top at `top`.
+    /// Draws the rows centred on `centre_x` (kept within the page's margins), the first
+    /// row's top at `top`.
     pub(crate) fn draw(
         &self,
         area: &Area,
@@ -115,7 +116,11 @@ impl Legend {
         for (r, row) in self.rows.iter().enumerate() {
             let baseline = top + text.cap_height() + r as f64 * text.line_height();
             let middle = baseline - text.cap_height() / 2.0;
-            let mut x = centre_x - self.row_width(style, row) / 2.0;
+            let width = self.row_width(style, row);
+            let page_right = style.page.width_px() as f64 - style.margin;
+            let mut x = (centre_x - width / 2.0)
+                .min(page_right - width)
+                .max(style.margin);
             for &i in row {
                 let entry = &self.entries[i];
                 draw_swatch(area, style, entry.swatch, x, middle)?;
