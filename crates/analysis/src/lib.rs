@@ -1,0 +1,18 @@
+//! Pure analysis of carbonate-system indicator fields: saturation horizons of water columns,
+//! cell areas and volumes on the sphere, the extent of corrosive water, region membership and
+//! regional statistics, time windows and time of emergence. No I/O: callers read and write files.
+//!
+//! # Conventions
+//! - Depths are in metres, positive down, measured below the sea surface.
+//! - Areas in m², volumes in m³, longitudes and latitudes in degrees (east, north).
+//! - Missing values (land, no solution, missing input) are `f64::NAN` on input.
+//! - Slabs are in the canonical order of the reader: (level, row, col), level outermost.
+//! - Accumulators that may be split across slabs or processes ([`extent`], [`regions`]) sum
+//!   each column in level order and add the column totals exactly ([`ExactSum`]): their results
+//!   are bitwise the same for any split into slabs and any merge order.
+
+pub mod column;
+pub mod horizons;
+mod sum;
+
+pub use sum::ExactSum;
