@@ -12,6 +12,7 @@
 //!   are bitwise the same for any split into slabs and any merge order.
 
 pub mod column;
+pub mod extent;
 pub mod geometry;
 pub mod horizons;
 mod sum;
