@@ -15,6 +15,36 @@ pub mod column;
 pub mod extent;
 pub mod geometry;
 pub mod horizons;
+pub mod regions;
 mod sum;
 
 pub use sum::ExactSum;
+
+/// Two arrays that describe the same cells (or an index and its range) disagree.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[error("{what}: expected {expected} values, got {got}")]
+pub struct LengthError {
+    /// What was being counted.
+    pub what: &'static str,
+    /// The length (or bound) expected.
+    pub expected: usize,
+    /// The length (or index) found.
+    pub got: usize,
+}
+
+/// `Ok` when `got == expected`, else a [`LengthError`] naming `what`.
+pub(crate) fn check_length(
+    what: &'static str,
+    expected: usize,
+    got: usize,
+) -> Result<(), LengthError> {
+    if expected == got {
+        Ok(())
+    } else {
+        Err(LengthError {
+            what,
+            expected,
+            got,
+        })
+    }
+}

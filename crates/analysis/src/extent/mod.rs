@@ -17,7 +17,7 @@ mod tests;
 
 pub use rows::ExtentRow;
 
-use crate::ExactSum;
+use crate::{check_length, ExactSum};
 use serde::{Deserialize, Serialize};
 use thiserror::Error;
 
@@ -53,12 +53,8 @@ pub enum ExtentError {
         threshold: f64,
     },
     /// A column's arrays disagree in length.
-    #[error("{what}: expected {expected} values, got {got}")]
-    Length {
-        what: &'static str,
-        expected: usize,
-        got: usize,
-    },
+    #[error(transparent)]
+    Length(#[from] crate::LengthError),
     /// An area or volume is negative or not finite.
     #[error("{what} must be a finite, non-negative number, got {value}")]
     Measure { what: &'static str, value: f64 },
@@ -193,18 +189,6 @@ fn check_measure(what: &'static str, value: f64) -> Result<(), ExtentError> {
         Ok(())
     } else {
         Err(ExtentError::Measure { what, value })
-    }
-}
-
-fn check_length(what: &'static str, expected: usize, got: usize) -> Result<(), ExtentError> {
-    if expected == got {
-        Ok(())
-    } else {
-        Err(ExtentError::Length {
-            what,
-            expected,
-            got,
-        })
     }
 }
 

@@ -152,13 +152,11 @@ pub fn curvilinear_cell_areas(
     radius_m: f64,
 ) -> Result<Vec<f64>, GeometryError> {
     check_radius(radius_m)?;
-    if lon_vertices.len() != lat_vertices.len() {
-        return Err(GeometryError::Length {
-            what: "latitude vertices (one set of 4 per cell, as the longitude vertices)",
-            expected: lon_vertices.len(),
-            got: lat_vertices.len(),
-        });
-    }
+    crate::check_length(
+        "latitude vertices (one set of 4 per cell, as the longitude vertices)",
+        lon_vertices.len(),
+        lat_vertices.len(),
+    )?;
     lon_vertices
         .iter()
         .zip(lat_vertices)

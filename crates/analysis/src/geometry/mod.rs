@@ -33,10 +33,6 @@ pub enum GeometryError {
     #[error("level {level}: vertical bound {value} is not a finite number of metres")]
     Vertical { level: usize, value: f64 },
     /// Two arrays that describe the same cells have different lengths.
-    #[error("{what}: expected {expected} values, got {got}")]
-    Length {
-        what: &'static str,
-        expected: usize,
-        got: usize,
-    },
+    #[error(transparent)]
+    Length(#[from] crate::LengthError),
 }
