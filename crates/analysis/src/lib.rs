@@ -17,6 +17,7 @@ pub mod geometry;
 pub mod horizons;
 pub mod regions;
 mod sum;
+pub mod windows;
 
 pub use sum::ExactSum;
 
