@@ -1,3 +1,4 @@
+#![warn(missing_docs)]
 //! Pure analysis of carbonate-system indicator fields: saturation horizons of water columns,
 //! cell areas and volumes on the sphere, the extent of corrosive water, region membership and
 //! regional statistics, time windows and time of emergence. No I/O: callers read and write files.
@@ -12,6 +13,7 @@
 //!   are bitwise the same for any split into slabs and any merge order.
 
 pub mod column;
+pub mod emergence;
 pub mod extent;
 pub mod geometry;
 pub mod horizons;

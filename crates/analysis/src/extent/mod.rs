@@ -49,7 +49,9 @@ pub enum ExtentError {
     /// A threshold is not a positive finite number, or is repeated.
     #[error("{mineral} thresholds must be distinct positive numbers, got {threshold}")]
     Threshold {
+        /// The mineral (`aragonite`, `calcite`).
         mineral: &'static str,
+        /// The offending threshold.
         threshold: f64,
     },
     /// A column's arrays disagree in length.
@@ -57,7 +59,12 @@ pub enum ExtentError {
     Length(#[from] crate::LengthError),
     /// An area or volume is negative or not finite.
     #[error("{what} must be a finite, non-negative number, got {value}")]
-    Measure { what: &'static str, value: f64 },
+    Measure {
+        /// What the number is.
+        what: &'static str,
+        /// The number.
+        value: f64,
+    },
     /// Two accumulators with different thresholds cannot be merged.
     #[error("cannot merge extents accumulated with different thresholds")]
     DifferentThresholds,

@@ -25,13 +25,28 @@ pub enum GeometryError {
     Radius(f64),
     /// A latitude is outside −90..90 degrees or not finite.
     #[error("cell {cell}: latitude {latitude} is not within -90..90 degrees north")]
-    Latitude { cell: usize, latitude: f64 },
+    Latitude {
+        /// Index of the cell.
+        cell: usize,
+        /// The latitude \[degrees north\].
+        latitude: f64,
+    },
     /// A longitude is not finite.
     #[error("cell {cell}: longitude {longitude} is not a finite number of degrees east")]
-    Longitude { cell: usize, longitude: f64 },
+    Longitude {
+        /// Index of the cell.
+        cell: usize,
+        /// The longitude \[degrees east\].
+        longitude: f64,
+    },
     /// A vertical bound or interface is not finite.
     #[error("level {level}: vertical bound {value} is not a finite number of metres")]
-    Vertical { level: usize, value: f64 },
+    Vertical {
+        /// Index of the level (or interface).
+        level: usize,
+        /// The value \[m\].
+        value: f64,
+    },
     /// Two arrays that describe the same cells have different lengths.
     #[error(transparent)]
     Length(#[from] crate::LengthError),

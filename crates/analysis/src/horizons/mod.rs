@@ -48,12 +48,22 @@ use thiserror::Error;
 pub enum HorizonError {
     /// Depths and Ω have different lengths.
     #[error("a column has {depths} level depths but {omegas} omega values")]
-    LengthMismatch { depths: usize, omegas: usize },
+    LengthMismatch {
+        /// Number of depths.
+        depths: usize,
+        /// Number of Ω values.
+        omegas: usize,
+    },
     /// A level depth is not finite, or depths do not increase strictly downwards.
     #[error(
         "level depths must be finite and increase strictly downwards (level {level}: {depth_m} m)"
     )]
-    DepthOrder { level: usize, depth_m: f64 },
+    DepthOrder {
+        /// Index of the wet level.
+        level: usize,
+        /// Its depth \[m\].
+        depth_m: f64,
+    },
     /// The sea-floor depth is not a finite number.
     #[error("the sea-floor depth must be a finite number of metres, got {0}")]
     SeaFloor(f64),

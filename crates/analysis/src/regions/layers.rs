@@ -15,7 +15,12 @@ pub enum LayerKind {
     SurfaceCell,
     /// Cells whose centre lies at `top_m ≤ depth < bottom_m` \[m, positive down\]; `bottom_m`
     /// `None` reaches the sea floor. Weighted by volume.
-    Depths { top_m: f64, bottom_m: Option<f64> },
+    Depths {
+        /// Upper limit \[m\] (inside).
+        top_m: f64,
+        /// Lower limit \[m\] (outside); `None` for the sea floor.
+        bottom_m: Option<f64>,
+    },
     /// Every wet cell of the column. Weighted by volume.
     WholeColumn,
 }

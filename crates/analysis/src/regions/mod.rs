@@ -27,17 +27,34 @@ use thiserror::Error;
 pub enum RegionError {
     /// A shape's numbers do not describe a region.
     #[error("region '{region}': {message}")]
-    Shape { region: String, message: String },
+    Shape {
+        /// The region's name.
+        region: String,
+        /// What is wrong.
+        message: String,
+    },
     /// A layer's depths do not describe a layer.
     #[error("layer '{layer}': {message}")]
-    Layer { layer: String, message: String },
+    Layer {
+        /// The layer's name.
+        layer: String,
+        /// What is wrong.
+        message: String,
+    },
     /// Two regions or layers share a name, or a name is empty.
     #[error("{what} names must be non-empty and distinct: '{name}'")]
-    Name { what: &'static str, name: String },
+    Name {
+        /// `region` or `layer`.
+        what: &'static str,
+        /// The name.
+        name: String,
+    },
     /// A region file that is not valid.
     #[error("{source_name}: {message}")]
     File {
+        /// The file (or other source) as the caller named it.
         source_name: String,
+        /// What is wrong.
         message: String,
     },
     /// Arrays that describe the same cells have different lengths, or an index is out of range.
@@ -45,7 +62,12 @@ pub enum RegionError {
     Length(#[from] crate::LengthError),
     /// A column index beyond the columns of a membership.
     #[error("column {column} is outside the {columns} columns the membership was computed for")]
-    Column { column: usize, columns: usize },
+    Column {
+        /// The column index given.
+        column: usize,
+        /// The number of columns.
+        columns: usize,
+    },
     /// Accumulators built for different regions, layers or fields cannot be merged.
     #[error("cannot merge regional statistics with different regions, layers or fields")]
     Mismatch,

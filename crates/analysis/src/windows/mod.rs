@@ -20,14 +20,21 @@ use thiserror::Error;
 pub enum WindowError {
     /// A window that does not parse.
     #[error("time window '{text}': {message}")]
-    Parse { text: String, message: String },
+    Parse {
+        /// The text given.
+        text: String,
+        /// What is wrong.
+        message: String,
+    },
     /// Two windows share a name.
     #[error("two time windows are named '{0}'")]
     DuplicateName(String),
     /// The run lacks some years of a window.
     #[error("time window '{window}': the run has no time step in {}", years_list(.missing_years))]
     Incomplete {
+        /// The window's name.
         window: String,
+        /// Its years with no time step.
         missing_years: Vec<i64>,
     },
     /// A step length that is not a positive number of days.
@@ -35,7 +42,12 @@ pub enum WindowError {
     StepLength(f64),
     /// Steps given out of time order.
     #[error("time steps must come in time order: year {next} after year {previous}")]
-    YearsOutOfOrder { previous: i64, next: i64 },
+    YearsOutOfOrder {
+        /// The earlier year given.
+        previous: i64,
+        /// The year that followed it.
+        next: i64,
+    },
     /// A percentile outside 0–100.
     #[error("a percentile must lie within 0..100, got {0}")]
     Percentile(f64),
