@@ -3,8 +3,8 @@
 //! saturation-horizon depth.
 //!
 //! # Determinism
-//! Each column's terms are added in level order (from the surface down) in ordinary `f64`
-//! arithmetic; the column totals are then added to exact sums ([`ExactSum`]), which are rounded
+//! Each column's terms are added in a fixed order of level indices (four interleaved lanes,
+//! see `volume_sum`) in ordinary `f64` arithmetic; the column totals are then added to exact sums ([`ExactSum`]), which are rounded
 //! once when the summary is read. The result therefore depends only on the set of columns: it is
 //! bitwise the same whatever the split into slabs, the order in which slabs or threads finish,
 //! or the tree in which per-process accumulators are merged. Because the wet volume and a
@@ -187,12 +187,13 @@ pub struct CorrosiveExtent {
     minerals: [MineralSums; 2],
 }
 
+/// Ω is a saturation state when positive and finite (NaN fails both comparisons).
 fn valid_omega(w: f64) -> bool {
-    w.is_finite() && w > 0.0
+    (w > 0.0) & (w < f64::INFINITY)
 }
 
 fn check_measure(what: &'static str, value: f64) -> Result<(), ExtentError> {
-    if value.is_finite() && value >= 0.0 {
+    if (0.0..f64::INFINITY).contains(&value) {
         Ok(())
     } else {
         Err(ExtentError::Measure { what, value })
@@ -241,7 +242,9 @@ impl CorrosiveExtent {
             let sums = &mut self.minerals[i];
             add_mineral(sums, self.thresholds.of(mineral), column, values);
         }
-        self.wet_volume.add(column.volume_m3.iter().sum());
+        let omega = column.aragonite.omega;
+        self.wet_volume
+            .add(volume_sum(column.volume_m3, omega, |_| true));
         self.sea_surface_area.add(column.area_m2);
         Ok(())
     }
@@ -295,31 +298,41 @@ impl CorrosiveExtent {
     }
 }
 
-/// One column's terms for one mineral: plain sums in level order, then exact accumulation.
+/// Σ of the volumes of a column's cells whose Ω passes `keep`, in a fixed order: four
+/// interleaved partial sums over the level index modulo 4, combined as (s0 + s1) + (s2 + s3).
+/// The order depends only on level indices, never on slabs or threads, so sums stay
+/// deterministic; the independent lanes let the processor overlap the additions.
+fn volume_sum(volumes: &[f64], omega: &[f64], keep: impl Fn(f64) -> bool) -> f64 {
+    let mut lanes = [0.0f64; 4];
+    let (v4, w4) = (volumes.chunks_exact(4), omega.chunks_exact(4));
+    let (v_rest, w_rest) = (v4.remainder(), w4.remainder());
+    for (v, w) in v4.zip(w4) {
+        for i in 0..4 {
+            lanes[i] += if keep(w[i]) { v[i] } else { 0.0 };
+        }
+    }
+    for (i, (&v, &w)) in v_rest.iter().zip(w_rest).enumerate() {
+        lanes[i] += if keep(w) { v } else { 0.0 };
+    }
+    (lanes[0] + lanes[1]) + (lanes[2] + lanes[3])
+}
+
+/// One column's terms for one mineral: plain sums in a fixed order, then exact accumulation.
 fn add_mineral(
     sums: &mut MineralSums,
     thresholds: &[f64],
     column: &ExtentColumn,
     values: &MineralColumn,
 ) {
-    let volumes = column.volume_m3;
-    let with_omega: f64 = volumes
-        .iter()
-        .zip(values.omega)
-        .map(|(&v, &w)| if valid_omega(w) { v } else { 0.0 })
-        .sum();
-    sums.volume_with_omega.add(with_omega);
-    let surface = values.omega[0];
+    let (volumes, omega) = (column.volume_m3, values.omega);
+    sums.volume_with_omega
+        .add(volume_sum(volumes, omega, valid_omega));
+    let surface = omega[0];
     if valid_omega(surface) {
         sums.surface_area_with_omega.add(column.area_m2);
     }
     for (t, &threshold) in thresholds.iter().enumerate() {
-        let below: f64 = volumes
-            .iter()
-            .zip(values.omega)
-            .map(|(&v, &w)| if w < threshold { v } else { 0.0 })
-            .sum();
-        sums.volume_below[t].add(below);
+        sums.volume_below[t].add(volume_sum(volumes, omega, |w| w < threshold));
         if surface < threshold {
             sums.surface_area_below[t].add(column.area_m2);
         }

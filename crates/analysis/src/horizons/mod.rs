@@ -93,14 +93,15 @@ impl<'a> WetColumn<'a> {
         if !sea_floor_m.is_finite() {
             return Err(HorizonError::SeaFloor(sea_floor_m));
         }
-        for (k, &z) in depth_m.iter().enumerate() {
-            let rising = k > 0 && z <= depth_m[k - 1];
-            if !z.is_finite() || rising {
-                return Err(HorizonError::DepthOrder {
-                    level: k,
-                    depth_m: z,
-                });
-            }
+        let finite = depth_m.iter().all(|z| z.is_finite());
+        if !finite || !depth_m.windows(2).all(|pair| pair[1] > pair[0]) {
+            let level = (0..depth_m.len())
+                .find(|&k| !depth_m[k].is_finite() || (k > 0 && depth_m[k] <= depth_m[k - 1]))
+                .unwrap_or(0);
+            return Err(HorizonError::DepthOrder {
+                level,
+                depth_m: depth_m[level],
+            });
         }
         let deepest = depth_m.last().copied().unwrap_or(sea_floor_m);
         Ok(WetColumn {
@@ -134,23 +135,31 @@ impl<'a> WetColumn<'a> {
         Ok(self.find(omega, threshold))
     }
 
+    /// One pass down the column in two tight scans: through the saturated levels to the first
+    /// level that is not (the crossing, or a missing Ω), then through the undersaturated levels
+    /// below it to the first that is not (re-saturation, or a missing Ω).
     fn find(&self, omega: &[f64], threshold: f64) -> Horizon {
-        let n = omega.len();
-        if n == 0 {
+        let valid = |w: f64| w > 0.0 && w < f64::INFINITY;
+        let Some(&top) = omega.first() else {
             return Horizon::without_depth(HorizonStatus::Land);
-        }
-        let first_missing = omega.iter().position(|&w| !(w.is_finite() && w > 0.0));
-        let trusted = first_missing.unwrap_or(n);
-        if trusted == 0 {
+        };
+        if !valid(top) {
             return Horizon::without_depth(HorizonStatus::OmegaMissing);
         }
-        let under = |k: usize| omega[k] < threshold;
-        let saturated_between = |from: usize| (from..trusted).any(|k| !under(k));
-        if under(0) {
-            let status = if saturated_between(1) {
-                HorizonStatus::UndersaturatedAtSurfaceSaturatedBelow
-            } else {
-                HorizonStatus::UndersaturatedAtSurface
+        // After an undersaturated level at `from`: whether a saturated level follows before
+        // any missing Ω (re-saturation), and whether the scan met a missing Ω.
+        let below_crossing = |from: usize| {
+            let rest = &omega[from + 1..];
+            match rest.iter().position(|&w| !(w < threshold && w > 0.0)) {
+                Some(i) if valid(rest[i]) => (true, false),
+                Some(_) => (false, true),
+                None => (false, false),
+            }
+        };
+        if top < threshold {
+            let status = match below_crossing(0) {
+                (true, _) => HorizonStatus::UndersaturatedAtSurfaceSaturatedBelow,
+                _ => HorizonStatus::UndersaturatedAtSurface,
             };
             return Horizon {
                 status,
@@ -158,20 +167,20 @@ impl<'a> WetColumn<'a> {
                 sensitivity: None,
             };
         }
-        if let Some(k) = (0..trusted - 1).find(|&k| under(k + 1)) {
-            let status = if saturated_between(k + 2) {
-                HorizonStatus::SeveralCrossings
-            } else if first_missing.is_some() {
-                HorizonStatus::CrossingAboveMissingOmega
-            } else {
-                HorizonStatus::SingleCrossing
-            };
-            return self.crossing(status, omega, k, threshold);
-        }
-        if first_missing.is_some() {
+        let saturated = |w: f64| w >= threshold && w < f64::INFINITY;
+        let Some(i) = omega[1..].iter().position(|&w| !saturated(w)) else {
+            return self.bottom_cell(omega, threshold);
+        };
+        let lower = i + 1;
+        if !valid(omega[lower]) {
             return Horizon::without_depth(HorizonStatus::OmegaMissing);
         }
-        self.bottom_cell(omega, threshold)
+        let status = match below_crossing(lower) {
+            (true, _) => HorizonStatus::SeveralCrossings,
+            (false, true) => HorizonStatus::CrossingAboveMissingOmega,
+            (false, false) => HorizonStatus::SingleCrossing,
+        };
+        self.crossing(status, omega, i, threshold)
     }
 
     /// Extrapolation into the bottom cell from the two deepest centres, when Ω decreases with

@@ -300,7 +300,59 @@ fn columns() -> impl Strategy<Value = (Vec<f64>, Vec<f64>, f64)> {
     })
 }
 
+/// The statuses straight from their definitions, level by level (several passes; an
+/// independent statement of the rules to check the one-pass search against).
+fn reference_status(omega: &[f64], t: f64) -> (HorizonStatus, Option<usize>) {
+    let n = omega.len();
+    if n == 0 {
+        return (HorizonStatus::Land, None);
+    }
+    let first_missing = omega.iter().position(|&w| !(w.is_finite() && w > 0.0));
+    let trusted = first_missing.unwrap_or(n);
+    if trusted == 0 {
+        return (HorizonStatus::OmegaMissing, None);
+    }
+    let under = |k: usize| omega[k] < t;
+    let saturated_from = |from: usize| (from..trusted).any(|k| !under(k));
+    if under(0) {
+        return if saturated_from(1) {
+            (HorizonStatus::UndersaturatedAtSurfaceSaturatedBelow, None)
+        } else {
+            (HorizonStatus::UndersaturatedAtSurface, None)
+        };
+    }
+    if let Some(k) = (0..trusted - 1).find(|&k| under(k + 1)) {
+        let status = if saturated_from(k + 2) {
+            HorizonStatus::SeveralCrossings
+        } else if first_missing.is_some() {
+            HorizonStatus::CrossingAboveMissingOmega
+        } else {
+            HorizonStatus::SingleCrossing
+        };
+        return (status, Some(k));
+    }
+    if first_missing.is_some() {
+        return (HorizonStatus::OmegaMissing, None);
+    }
+    (HorizonStatus::DeeperThanSeaFloor, None)
+}
+
 proptest! {
+    #[test]
+    fn one_pass_search_agrees_with_the_definitions((depths, omega, floor) in columns(), t in 0.5f64..3.0) {
+        let h = horizon(&depths, &omega, floor, t);
+        let (status, upper) = reference_status(&omega, t);
+        if status == HorizonStatus::DeeperThanSeaFloor {
+            // The reference leaves out the bottom-cell extrapolation.
+            prop_assert!(matches!(
+                h.status,
+                HorizonStatus::DeeperThanSeaFloor | HorizonStatus::CrossingInBottomCell
+            ));
+        } else {
+            prop_assert_eq!(h.status, status);
+            prop_assert_eq!(h.sensitivity.map(|s| s.upper_level), upper);
+        }
+    }
     #[test]
     fn depth_lies_where_the_status_says((depths, omega, floor) in columns(), t in 0.5f64..3.0) {
         let h = horizon(&depths, &omega, floor, t);
