@@ -15,6 +15,16 @@ use serde::{Deserialize, Serialize};
 /// Non-finite values are kept apart in an ordinary `f64` sum, so that an infinity or NaN added
 /// anywhere shows in the result as IEEE arithmetic would show it. Finite values must stay far
 /// below `f64::MAX` in magnitude (sums of volumes \[m³\] and areas \[m²\] do).
+///
+/// ```
+/// use acidscape_analysis::ExactSum;
+/// // 1e16 + 1 − 1e16 is 0 in left-to-right f64 arithmetic; the exact sum is 1.
+/// let mut s = ExactSum::new();
+/// for v in [1e16, 1.0, -1e16] {
+///     s.add(v);
+/// }
+/// assert_eq!(s.value(), 1.0);
+/// ```
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct ExactSum {
     /// Non-overlapping partials, increasing in magnitude; their exact sum is the running sum.

@@ -331,6 +331,17 @@ impl EmergenceTracker {
 /// The time of emergence of a series of annual means (`years` strictly increasing; NaN values
 /// and absent years are skipped). `test` as from [`EmergenceRule::test_for`]; `None` gives
 /// [`Emergence::NoData`].
+///
+/// ```
+/// use acidscape_analysis::emergence::*;
+/// let rule = EmergenceRule::Threshold { threshold: 1.0, direction: Direction::Below };
+/// let test = rule.test_for(&[])?;
+/// let years = [2015, 2016, 2017, 2018, 2019];
+/// // Below 1 in 2016, back above in 2017, below for good from 2018.
+/// let omega = [1.2, 0.95, 1.05, 0.9, 0.85];
+/// assert_eq!(time_of_emergence(&years, &omega, test.as_ref())?, Emergence::Year(2018));
+/// # Ok::<(), EmergenceError>(())
+/// ```
 pub fn time_of_emergence(
     years: &[i64],
     values: &[f64],

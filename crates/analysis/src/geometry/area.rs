@@ -47,8 +47,15 @@ fn longitude_width_deg(lon_bounds: [f64; 2]) -> f64 {
 /// Area of a cell bounded by two meridians and two parallels \[m²\]:
 /// R² Δλ |sin φ₂ − sin φ₁| (exact on the sphere: the integral of R² cos φ dφ dλ).
 ///
-/// `lon_bounds` \[degrees east\] in either order and convention (see the module rules: the
-/// shorter way round), `lat_bounds` \[degrees north\], `radius_m` \[m\].
+/// `lon_bounds` \[degrees east\] in either order and convention (the shorter way round;
+/// bounds 360° apart span every longitude), `lat_bounds` \[degrees north\], `radius_m` \[m\].
+///
+/// ```
+/// use acidscape_analysis::geometry::{lon_lat_cell_area, EARTH_MEAN_RADIUS_M as R};
+/// // The whole sphere: 4πR² (about 5.1e14 m²).
+/// let a = lon_lat_cell_area([0.0, 360.0], [-90.0, 90.0], R).unwrap();
+/// assert!((a / (4.0 * std::f64::consts::PI * R * R) - 1.0).abs() < 1e-14);
+/// ```
 pub fn lon_lat_cell_area(
     lon_bounds: [f64; 2],
     lat_bounds: [f64; 2],
@@ -119,6 +126,13 @@ fn signed_triangle_solid_angle(a: [f64; 3], b: [f64; 3], c: [f64; 3]) -> f64 {
 /// pole, or a collapsed tripolar cell) makes a triangle. The area is the sum of the signed
 /// solid angles of the triangles (v0, v1, v2) and (v0, v2, v3), exact for any simple
 /// quadrilateral, convex or not.
+///
+/// ```
+/// use acidscape_analysis::geometry::{quadrilateral_area, EARTH_MEAN_RADIUS_M as R};
+/// // An octant (three right angles; Girard's theorem gives πR²/2), the pole vertex repeated.
+/// let a = quadrilateral_area([0.0, 90.0, 0.0, 0.0], [0.0, 0.0, 90.0, 90.0], R).unwrap();
+/// assert!((a / (std::f64::consts::PI * R * R / 2.0) - 1.0).abs() < 1e-12);
+/// ```
 pub fn quadrilateral_area(
     lon: [f64; 4],
     lat: [f64; 4],

@@ -26,6 +26,12 @@ impl Positive {
 /// down, either order\] that lies above the sea floor `sea_floor_m` \[m, positive down, same
 /// reference\]: `max(0, min(lower, floor) − upper)`. A cell wholly below the floor has thickness 0;
 /// a cell the floor cuts is a partial bottom cell. `f64::INFINITY` as the floor clips nothing.
+///
+/// ```
+/// use acidscape_analysis::geometry::clipped_thickness;
+/// assert_eq!(clipped_thickness(100.0, 120.0, 105.0), 5.0); // partial bottom cell
+/// assert_eq!(clipped_thickness(100.0, 120.0, 90.0), 0.0); // below the sea floor
+/// ```
 pub fn clipped_thickness(upper_m: f64, lower_m: f64, sea_floor_m: f64) -> f64 {
     let (top, bottom) = if upper_m <= lower_m {
         (upper_m, lower_m)

@@ -122,6 +122,18 @@ impl<'a> WetColumn<'a> {
 
     /// The saturation horizon for `threshold` \[1\], from Ω per wet level \[1\] (NaN where
     /// missing), in the same order as the depths.
+    ///
+    /// ```
+    /// use acidscape_analysis::horizons::{HorizonStatus, WetColumn};
+    /// // Ω = 4 exp(−z / 800 m): the analytic horizon is 800 ln 4 ≈ 1109.04 m, which
+    /// // interpolation on ln Ω reproduces between the 1000 and 1200 m centres.
+    /// let depths: [f64; 6] = [10.0, 200.0, 500.0, 1000.0, 1200.0, 2000.0];
+    /// let omega: Vec<f64> = depths.iter().map(|z| 4.0 * (-z / 800.0).exp()).collect();
+    /// let h = WetColumn::new(&depths, 2100.0)?.horizon(&omega, 1.0)?;
+    /// assert_eq!(h.status, HorizonStatus::SingleCrossing);
+    /// assert!((h.depth_m.unwrap() - 800.0 * 4f64.ln()).abs() < 1e-9);
+    /// # Ok::<(), acidscape_analysis::horizons::HorizonError>(())
+    /// ```
     pub fn horizon(&self, omega: &[f64], threshold: f64) -> Result<Horizon, HorizonError> {
         if omega.len() != self.depth_m.len() {
             return Err(HorizonError::LengthMismatch {

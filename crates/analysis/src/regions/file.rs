@@ -77,6 +77,19 @@ pub struct RegionFile {
 
 impl RegionFile {
     /// Parses region-file text; `source_name` (e.g. the file's path) names it in error messages.
+    ///
+    /// ```
+    /// use acidscape_analysis::regions::RegionFile;
+    /// let text = r#"
+    /// [[region]]
+    /// name = "across the dateline"
+    /// box = { west = 170, east = -170, south = -5, north = 5 }
+    /// "#;
+    /// let file = RegionFile::from_toml_str(text, "pacific.toml")?;
+    /// assert_eq!(file.regions.names(), ["across the dateline"]);
+    /// assert!(RegionFile::from_toml_str("[[region]]\nname = \"x\"", "bad.toml").is_err());
+    /// # Ok::<(), acidscape_analysis::regions::RegionError>(())
+    /// ```
     pub fn from_toml_str(text: &str, source_name: &str) -> Result<RegionFile, RegionError> {
         let raw: RawFile = toml::from_str(text).map_err(|e| RegionError::File {
             source_name: source_name.to_string(),

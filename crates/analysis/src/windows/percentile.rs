@@ -12,6 +12,14 @@ use crate::check_length;
 /// order statistics: with the n sorted values x₀ ≤ … ≤ xₙ₋₁ and h = (n − 1) p / 100,
 /// x⌊h⌋ + (h − ⌊h⌋)(x⌊h⌋₊₁ − x⌊h⌋) (Hyndman & Fan 1996, The American Statistician 50,
 /// 361–365, definition 7). `None` when there is no value. Reorders `values`.
+///
+/// ```
+/// use acidscape_analysis::windows::percentile;
+/// // numpy.percentile([3.2, -1, 7.5, 0.25, 12, 4.4, 4.4, 9.9, 2, 5.5, -3.75], 95) = 10.95
+/// let mut v = [3.2, -1.0, 7.5, 0.25, 12.0, 4.4, 4.4, 9.9, 2.0, 5.5, -3.75];
+/// let p95 = percentile(&mut v, 95.0).unwrap().unwrap();
+/// assert!((p95 - 10.95).abs() < 1e-12);
+/// ```
 pub fn percentile(values: &mut [f64], p: f64) -> Result<Option<f64>, WindowError> {
     if !(0.0..=100.0).contains(&p) {
         return Err(WindowError::Percentile(p));

@@ -33,6 +33,14 @@ fn parse_year(text: &str, whole: &str) -> Result<i64, WindowError> {
 
 impl TimeWindow {
     /// Parses `NAME=FIRST-LAST` (e.g. `reference=2015-2034`) or `NAME=YEAR` for a single year.
+    ///
+    /// ```
+    /// use acidscape_analysis::windows::TimeWindow;
+    /// let w = TimeWindow::parse("late=2081-2100")?;
+    /// assert_eq!((w.first_year, w.last_year, w.years()), (2081, 2100, 20));
+    /// assert!(TimeWindow::parse("late=2100-2081").is_err());
+    /// # Ok::<(), acidscape_analysis::windows::WindowError>(())
+    /// ```
     pub fn parse(text: &str) -> Result<TimeWindow, WindowError> {
         let bad = |message: &str| WindowError::Parse {
             text: text.to_string(),
