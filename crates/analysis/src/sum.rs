@@ -25,7 +25,11 @@ use serde::{Deserialize, Serialize};
 /// }
 /// assert_eq!(s.value(), 1.0);
 /// ```
+///
+/// Serialised (with serde) as the flat list of [`ExactSum::partials`], e.g. for sending to
+/// another process; deserialising adds them back exactly.
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(from = "Vec<f64>", into = "Vec<f64>")]
 pub struct ExactSum {
     /// Non-overlapping partials, increasing in magnitude; their exact sum is the running sum.
     partials: Vec<f64>,
@@ -123,6 +127,18 @@ impl ExactSum {
             sum.add(v);
         }
         sum
+    }
+}
+
+impl From<Vec<f64>> for ExactSum {
+    fn from(partials: Vec<f64>) -> Self {
+        ExactSum::from_partials(&partials)
+    }
+}
+
+impl From<ExactSum> for Vec<f64> {
+    fn from(sum: ExactSum) -> Self {
+        sum.partials()
     }
 }
 

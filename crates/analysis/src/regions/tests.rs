@@ -496,3 +496,35 @@ proptest! {
         prop_assert_eq!(stats_bits(&b), stats_bits(&whole));
     }
 }
+
+#[test]
+fn statistics_survive_a_round_trip_through_text() {
+    // Accumulators travel between processes serialised; TOML stands in for any serde format.
+    let set = RegionSet::whole_domain("all").unwrap();
+    let m = set.membership(&[0.0], &[0.0], None).unwrap();
+    let layers = [
+        Layer::new("surface", LayerKind::SurfaceCell).unwrap(),
+        Layer::new(
+            "below 100 m",
+            LayerKind::Depths {
+                top_m: 100.0,
+                bottom_m: None,
+            },
+        )
+        .unwrap(),
+    ];
+    let mut stats = RegionStatistics::new(&set, &layers, vec![field("x", vec![1.0])], vec![]);
+    let col = RegionColumn {
+        area_m2: 3.0,
+        depth_m: &[10.0, 150.0],
+        volume_m3: &[30.0, 1e5 / 3.0],
+        cell_values: &[&[0.5, 2.5]],
+        column_values: &[],
+    };
+    stats.add_column(&m, 0, &col).unwrap();
+    let back: RegionStatistics = toml::from_str(&toml::to_string(&stats).unwrap()).unwrap();
+    assert_eq!(stats_bits(&back), stats_bits(&stats));
+    let mut merged = back.clone();
+    merged.merge(&stats).unwrap();
+    assert_eq!(merged.rows()[1].weight, 2.0 * stats.rows()[1].weight);
+}
