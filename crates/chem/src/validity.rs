@@ -456,28 +456,35 @@ impl OutOfRange {
         self.0 == 0
     }
 
-    /// Which published limits of the chosen sets one bit stands for, e.g. for
-    /// [`OutOfRange::TEMPERATURE_BELOW`] with the defaults "below 2 °C (Lueker et al. 2000: K1,
-    /// K2); below -1 °C (Weiss 1974: K0); ...". Empty for a bit no chosen range can set.
+    /// Which published limits of the chosen sets one bit stands for, the first crossed first:
+    /// for [`OutOfRange::TEMPERATURE_BELOW`] with the defaults "below 5 °C (Mucci 1983: Ksp);
+    /// below 2 °C (Lueker et al. 2000: K1, K2); ...". Empty for a bit no chosen range can set.
     pub fn limits(bit: u8, choice: &ConstantChoice) -> String {
         let relevant = Validity::relevant(choice) & Validity::MATERIAL;
-        RANGES
+        let mut limits: Vec<(f64, String)> = RANGES
             .iter()
             .filter(|range| relevant & range.bit != 0)
             .filter_map(|range| {
                 let (below, above) = range.quantity.direction_bits();
-                let (word, limit) = if bit == below {
-                    ("below", range.min)
+                // Sort key: the limit a value crosses first comes first.
+                let (word, limit, key) = if bit == below {
+                    ("below", range.min, -range.min)
                 } else if bit == above {
-                    ("above", range.max)
+                    ("above", range.max, range.max)
                 } else {
                     return None;
                 };
-                Some(format!(
+                let text = format!(
                     "{word} {limit}{} ({}: {})",
                     range.unit, range.source, range.constants
-                ))
+                );
+                Some((key, text))
             })
+            .collect();
+        limits.sort_by(|a, b| a.0.total_cmp(&b.0));
+        limits
+            .into_iter()
+            .map(|(_, text)| text)
             .collect::<Vec<_>>()
             .join("; ")
     }

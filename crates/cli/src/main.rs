@@ -54,7 +54,14 @@ fn main() -> ExitCode {
         Ok(()) => ExitCode::SUCCESS,
         Err(error) => {
             eprintln!("acidscape: error: {error}");
-            ExitCode::FAILURE
+            // A job stopped by a signal exits as the shell reports a signal: 128 + its number.
+            let signal = error
+                .downcast_ref::<acidscape_pipeline::PipelineError>()
+                .and_then(|e| e.signal());
+            match signal.and_then(|s| u8::try_from(128 + s).ok()) {
+                Some(code) => ExitCode::from(code),
+                None => ExitCode::FAILURE,
+            }
         }
     }
 }

@@ -1,10 +1,14 @@
 //! `samples`: the chemistry for a table of water samples (bottle data, mooring records, what-if cases).
-//! A bad row is reported in its own status column and never stops the others.
+//! Each row gets a status naming the same reasons as the quality flag of grids; a bad row never
+//! stops the others.
 
 use crate::run_options::ConstantOptions;
-use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution};
+use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, Solution, Validity};
 use acidscape_gridio::seawater;
 use acidscape_gridio::units;
+use acidscape_pipeline::flags::{
+    error_flag, meanings_of, range_flag, Flag, FlagCounts, FLAG_BITS, MISSING_INPUT,
+};
 use clap::{Args, ValueEnum};
 use std::collections::BTreeMap;
 use std::error::Error;
@@ -441,25 +445,22 @@ const RESULT_COLUMNS: &[(&str, Field)] = &[
     }),
 ];
 
-/// Row outcome labels written in the `status` column.
-fn status_of(outcome: &Result<(RowInputs, Solution), RowFailure>) -> (&'static str, String) {
-    match outcome {
-        Ok((_, solution)) if solution.validity.is_material() => {
-            ("outside-validity-range", solution.validity.describe())
-        }
-        // Breaches that cannot move the results are still reported, as a note.
-        Ok((_, solution)) => ("ok", solution.validity.describe()),
-        Err(RowFailure::BadInput(why)) => ("bad-input", why.clone()),
-        Err(RowFailure::Chemistry(ChemError::NoSolution { .. }, why)) => {
-            ("no-solution", why.clone())
-        }
-        Err(RowFailure::Chemistry(_, why)) => ("bad-input", why.clone()),
-    }
+/// What became of one row: the same bits as the quality flag of grids, a plain-language
+/// detail, and the solution when there is one.
+struct RowOutcome {
+    flag: Flag,
+    detail: String,
+    solved: Option<(RowInputs, Solution)>,
 }
 
-enum RowFailure {
-    BadInput(String),
-    Chemistry(ChemError, String),
+impl RowOutcome {
+    /// The `status` column: the flag's meanings (space-separated), or `ok` when none is set.
+    fn status(&self) -> String {
+        match meanings_of(self.flag) {
+            none if none.is_empty() => "ok".to_string(),
+            meanings => meanings,
+        }
+    }
 }
 
 fn compute_row(
@@ -468,25 +469,47 @@ fn compute_row(
     pair: PairChoice,
     latitude: Option<f64>,
     choice: &ConstantChoice,
-) -> Result<(RowInputs, Solution), RowFailure> {
-    let inputs = row_inputs(record, columns, pair, latitude).map_err(RowFailure::BadInput)?;
-    match solve(inputs.pair, &inputs.conditions, choice) {
-        Ok(solution) => Ok((inputs, solution)),
+) -> RowOutcome {
+    let inputs = match row_inputs(record, columns, pair, latitude) {
+        Ok(inputs) => inputs,
+        Err(why) => {
+            return RowOutcome {
+                flag: MISSING_INPUT,
+                detail: why,
+                solved: None,
+            }
+        }
+    };
+    let c = &inputs.conditions;
+    let (t, s, p) = (c.temperature_c, c.salinity, c.pressure_dbar);
+    match solve(inputs.pair, c, choice) {
+        // Breaches that cannot move the results (KF's) set no bit but are still described.
+        Ok(solution) => RowOutcome {
+            flag: range_flag(solution.validity.out_of_range(t, s, p)),
+            detail: solution.validity.describe(),
+            solved: Some((inputs, solution)),
+        },
         Err(error) => {
-            let why = error.to_string();
-            Err(RowFailure::Chemistry(error, why))
+            let validity = Validity::assess(t, s, p, choice);
+            let detail = [error.to_string(), validity.describe()]
+                .into_iter()
+                .filter(|d| !d.is_empty())
+                .collect::<Vec<_>>()
+                .join("; ");
+            RowOutcome {
+                flag: error_flag(&error) | range_flag(validity.out_of_range(t, s, p)),
+                detail,
+                solved: None,
+            }
         }
     }
 }
-
-/// Counts of each status, for the closing summary.
-type StatusCounts = BTreeMap<&'static str, usize>;
 
 fn write_table(
     args: &SamplesArgs,
     destination: &Path,
     choice: &ConstantChoice,
-) -> Result<StatusCounts, Box<dyn Error>> {
+) -> Result<FlagCounts, Box<dyn Error>> {
     let mut reader = csv::ReaderBuilder::new()
         .flexible(true)
         .from_path(&args.input)
@@ -507,9 +530,9 @@ fn write_table(
     out_header.push("solver_iterations".into());
     writer.write_record(&out_header)?;
 
-    let mut counts = StatusCounts::new();
+    let mut counts = FlagCounts::default();
     for record in reader.records() {
-        // An unreadable row (e.g. invalid UTF-8) becomes an empty bad-input row; the rest go on.
+        // An unreadable row (e.g. invalid UTF-8) becomes an empty missing-input row; the rest go on.
         let (record, outcome) = match record {
             Ok(record) => {
                 let outcome = compute_row(&record, &columns, pair, args.latitude, choice);
@@ -517,16 +540,19 @@ fn write_table(
             }
             Err(e) => (
                 csv::StringRecord::from(vec![""; header.len()]),
-                Err(RowFailure::BadInput(format!("row cannot be read: {e}"))),
+                RowOutcome {
+                    flag: MISSING_INPUT,
+                    detail: format!("row cannot be read: {e}"),
+                    solved: None,
+                },
             ),
         };
-        let (status, detail) = status_of(&outcome);
-        *counts.entry(status).or_default() += 1;
+        counts.record(outcome.flag);
         let mut row: Vec<String> = record.iter().map(str::to_string).collect();
-        row.push(status.to_string());
-        row.push(detail);
-        match &outcome {
-            Ok((inputs, solution)) => {
+        row.push(outcome.status());
+        row.push(outcome.detail.clone());
+        match &outcome.solved {
+            Some((inputs, solution)) => {
                 row.push(format!("{:.3}", inputs.conditions.pressure_dbar));
                 row.extend(
                     RESULT_COLUMNS
@@ -535,7 +561,7 @@ fn write_table(
                 );
                 row.push(solution.iterations.to_string());
             }
-            Err(_) => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
+            None => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
         }
         writer.write_record(&row)?;
     }
@@ -598,11 +624,16 @@ pub fn run(args: &SamplesArgs) -> Result<(), Box<dyn Error>> {
         )
     })?;
 
-    let total: usize = counts.values().sum();
     let mut stdout = std::io::stdout().lock();
-    writeln!(stdout, "{total} samples -> {}", args.output.display())?;
-    for (status, count) in &counts {
-        writeln!(stdout, "  {status:<24}{count}")?;
+    writeln!(
+        stdout,
+        "{} samples -> {}",
+        counts.wet,
+        args.output.display()
+    )?;
+    writeln!(stdout, "  {:<34}{}", "ok", counts.no_flag)?;
+    for bit in FLAG_BITS {
+        writeln!(stdout, "  {:<34}{}", bit.meaning, counts.of(bit.mask))?;
     }
     writeln!(stdout, "constants: {}", choice.describe())?;
     Ok(())

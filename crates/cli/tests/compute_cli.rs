@@ -63,8 +63,8 @@ fn data_bits(path: &Path) -> Vec<(String, Vec<u32>)> {
                 .variable(name)
                 .unwrap_or_else(|| panic!("{} has no {name}", path.display()));
             let bits = if *name == "quality_flag" {
-                let values: Vec<i8> = variable.get_values(..).unwrap();
-                values.into_iter().map(|v| v as u8 as u32).collect()
+                let values: Vec<i16> = variable.get_values(..).unwrap();
+                values.into_iter().map(|v| v as u16 as u32).collect()
             } else {
                 let values: Vec<f32> = variable.get_values(..).unwrap();
                 values.into_iter().map(f32::to_bits).collect()
@@ -90,7 +90,7 @@ fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
-    assert!(String::from_utf8_lossy(&out.stdout).contains("quality flags"));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("quality_flag"));
 
     let pieces = dir.path().join("pieces.nc");
     let out = compute(
