@@ -34,9 +34,12 @@ impl Run {
                 });
             }
         }
-        // The reference file's coordinates and every file's time values are copied into the
-        // output when it is defined, before the first step.
-        read_at_every_step[self.grid_file] = true;
+        // The reference file's coordinates are copied into the output when it is defined,
+        // before the first step: it is read from step 0 on. (So is every file's time
+        // coordinate; a job compares the joined time axis itself.)
+        if let Some(range) = &mut steps[self.grid_file] {
+            range.start = 0;
+        }
         steps
             .into_iter()
             .enumerate()

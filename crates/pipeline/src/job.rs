@@ -243,35 +243,23 @@ pub fn run_job(
         );
     }
     let mut record = starting_record(run, &plan, options, resuming, progress)?;
-    // Kept, resumable state from here on when resuming; only once the record exists otherwise.
-    let interrupted = |cause: PipelineError, steps_done: usize| PipelineError::Interrupted {
-        cause: Box::new(cause),
-        steps_done,
+    let ended = Ending {
+        partial: &partial,
         steps_total: plan.steps,
-        partial: partial.clone(),
-    };
-    let before_output = |cause: PipelineError, steps_done| {
-        if resuming {
-            interrupted(cause, steps_done)
-        } else {
-            cause
-        }
+        resuming,
     };
     if let Some(signal) = options.stop.requested() {
-        return Err(before_output(
-            PipelineError::Signal { signal },
-            record.steps_done,
-        ));
+        return Err(ended.early(PipelineError::Signal { signal }, record.steps_done));
     }
     let first_step = record.steps_done.min(plan.steps);
     let mut slabs = plan.slabs(first_step);
-    check_writable(&partial, resuming).map_err(|e| before_output(e, first_step))?;
+    check_writable(&partial, resuming).map_err(|e| ended.early(e, first_step))?;
     // Read the first slab before any output exists: unreadable inputs fail cleanly.
     let read_started = Instant::now();
     let first = match slabs.next() {
         Some((step, rows)) => Some(
             run.read_raw_slab(step, rows)
-                .map_err(|e| before_output(e.into(), first_step))?,
+                .map_err(|e| ended.early(e.into(), first_step))?,
         ),
         None => None,
     };
@@ -279,16 +267,15 @@ pub fn run_job(
 
     let (mut file, layout) = if resuming {
         let opened = open_partial(&partial, &plan, &options.command_line);
-        opened.map_err(|e| interrupted(e, first_step))?
+        opened.map_err(|e| ended.kept(e, first_step))?
     } else {
-        let created = create_partial(run, &plan, &fields, options, &partial);
-        created?
+        create_partial(run, &plan, &fields, options, &partial)?
     };
     record
         .save(&record_path)
-        .map_err(|e| interrupted(e, first_step))?;
+        .map_err(|e| ended.kept(e, first_step))?;
     if options.stop_after_steps == Some(0) {
-        return Err(interrupted(PipelineError::StopHook, 0));
+        return Err(ended.kept(PipelineError::StopHook, 0));
     }
 
     let total_cells = plan.cells_per_step() * plan.steps as u64;
@@ -302,14 +289,14 @@ pub fn run_job(
     };
     let streamed = stream(run, &plan, &fields, options, first, slabs, sink, progress);
     progress.finish();
-    let times = streamed.map_err(|e| interrupted(e, record.steps_done))?;
+    let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
     if record.steps_done < plan.steps {
         return Err(PipelineError::Internal(format!(
             "only {} of {} time steps were written",
             record.steps_done, plan.steps
         )));
     }
-    finish_output(file, &partial, &output).map_err(|e| interrupted(e, plan.steps))?;
+    finish_output(file, &partial, &output).map_err(|e| ended.kept(e, plan.steps))?;
     let _ = fs::remove_file(&record_path);
     sync_parent(&output);
 
@@ -324,6 +311,35 @@ pub fn run_job(
         compute: times.compute,
         write: times.write,
     })
+}
+
+/// How a job that ends early reports it: once the partial output holds finished work (or
+/// when resuming one), the cause comes with what is kept and how to go on.
+struct Ending<'a> {
+    partial: &'a Path,
+    steps_total: usize,
+    resuming: bool,
+}
+
+impl Ending<'_> {
+    /// An end that leaves a resumable partial output with `steps_done` finished steps.
+    fn kept(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+        PipelineError::Interrupted {
+            cause: Box::new(cause),
+            steps_done,
+            steps_total: self.steps_total,
+            partial: self.partial.to_path_buf(),
+        }
+    }
+
+    /// An end before the output is opened: only a resumed job has kept work to speak of.
+    fn early(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+        if self.resuming {
+            self.kept(cause, steps_done)
+        } else {
+            cause
+        }
+    }
 }
 
 /// Creates and defines a new partial output, after removing what an earlier run left. A

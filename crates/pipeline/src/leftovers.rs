@@ -70,17 +70,16 @@ pub(crate) fn check_leftovers(
             "no interrupted run to continue ({} is not there); run without --resume",
             partial.display()
         ))),
-        (Leftovers::Interrupted, false) => {
-            let finished = match ProgressRecord::load(&record) {
-                Ok(r) => format!("{} of {steps_total} time steps finished", r.steps_done),
-                Err(_) => "its progress record is unreadable".to_string(),
-            };
-            Err(refuse(format!(
-                "an interrupted run left {} ({finished}); pass --resume to continue it or --overwrite to start over",
-                partial.display()
-            )))
-        }
-        (Leftovers::Interrupted, true) => Ok(()),
+        (Leftovers::Interrupted, _) => match ProgressRecord::load(&record) {
+            Ok(_) if resume => Ok(()),
+            Ok(r) => Err(refuse(format!(
+                "an interrupted run left {} ({} of {steps_total} time steps finished); pass --resume to continue it or --overwrite to start over",
+                partial.display(),
+                r.steps_done
+            ))),
+            // The record says why it cannot be used, and that --overwrite starts over.
+            Err(why) => Err(why),
+        },
         (Leftovers::Unstarted, false) => Err(refuse(format!(
             "an interrupted run left {} before finishing any time step (it stopped while setting up the output); pass --resume or --overwrite to start again",
             partial.display()

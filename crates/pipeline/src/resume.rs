@@ -10,6 +10,7 @@
 //! job grid 50 180 360 steps 12
 //! input 123456 9f0c1d2e3a4b5c6d 0-6 /data/run/dissic_201501-201506.nc
 //! input 34567 0a1b2c3d4e5f6a7b all /data/run/areacello.nc
+//! end
 //! ```
 //! `flag_counts` and each `checkpoint` hold [`FlagCounts::as_vec`]; a checkpoint holds the
 //! counts before its step, at each step where an input file's time steps begin, so a resume
@@ -234,6 +235,7 @@ impl ProgressRecord {
             text.push_str(&input.line());
             text.push('\n');
         }
+        text.push_str("end\n");
         let temporary = temporary_path(path);
         let mut file = fs::File::create(&temporary).map_err(io_error)?;
         file.write_all(text.as_bytes()).map_err(io_error)?;
@@ -278,7 +280,15 @@ impl ProgressRecord {
         let mut record = ProgressRecord::new(Vec::new(), Vec::new());
         let mut steps_seen = false;
         let mut counts_seen = false;
+        let mut ended = false;
         for line in lines {
+            if ended {
+                return Err(damaged());
+            }
+            if line == "end" {
+                ended = true;
+                continue;
+            }
             let (key, rest) = line.split_once(' ').ok_or_else(damaged)?;
             match key {
                 "steps_done" => {
@@ -304,7 +314,7 @@ impl ProgressRecord {
                 _ => return Err(damaged()),
             }
         }
-        if !(steps_seen && counts_seen) {
+        if !(steps_seen && counts_seen && ended) {
             return Err(damaged());
         }
         Ok(record)

@@ -3,7 +3,62 @@
 
 #![allow(dead_code)]
 
+use acidscape_chem::ConstantChoice;
+use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
+use acidscape_pipeline::{
+    ConcentrationUnit, Indicator, IndicatorChoice, JobOptions, PhScale, StopRequest,
+};
 use std::path::{Path, PathBuf};
+
+pub fn open_run(paths: &[PathBuf]) -> Run {
+    Run::open(&RunSpec {
+        inputs: paths.iter().map(|p| p.display().to_string()).collect(),
+        mapping: VariableMapping::default(),
+        density: DensityChoice::InSitu,
+    })
+    .unwrap()
+}
+
+pub fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
+    JobOptions {
+        output: output.to_path_buf(),
+        overwrite: false,
+        resume: false,
+        memory_budget_bytes: 1 << 30,
+        constants: ConstantChoice::default(),
+        indicators,
+        command_line: "acidscape compute (test)".into(),
+        deflate_level: 4,
+        stop_after_steps: None,
+        max_rows_per_slab: None,
+        stop: StopRequest::new(),
+    }
+}
+
+pub fn every_indicator() -> IndicatorChoice {
+    IndicatorChoice {
+        indicators: Indicator::ALL.to_vec(),
+        ph_scales: vec![PhScale::Total, PhScale::Free],
+        concentration_unit: ConcentrationUnit::MolPerCubicMetre,
+    }
+}
+
+/// Every value of every indicator and of the flag, bit for bit.
+pub fn assert_same_output(expected: &Path, actual: &Path) {
+    for field in every_indicator().fields().unwrap() {
+        let bits = |path: &Path| -> Vec<u32> {
+            read_f32(path, field.name)
+                .iter()
+                .map(|v| v.to_bits())
+                .collect()
+        };
+        assert_eq!(bits(expected), bits(actual), "{} differs", field.name);
+    }
+    assert_eq!(
+        read_i16(expected, "quality_flag"),
+        read_i16(actual, "quality_flag")
+    );
+}
 
 pub const LEVELS: usize = 4;
 pub const ROWS: usize = 4;
@@ -208,7 +263,8 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>, compressed: bool) {
     }
 }
 
-/// The synthetic value of `name` at `step` and flat cell index (level, row, col order).
+/// The synthetic value of `name` at `step` and flat cell index (level, row, col order). Every
+/// variable changes a little from step to step, so no two chunks of a variable are alike.
 pub fn value(name: &str, step: usize, cell: usize) -> f32 {
     let level = cell / (ROWS * COLS);
     let row = (cell / COLS) % ROWS;
@@ -222,15 +278,19 @@ pub fn value(name: &str, step: usize, cell: usize) -> f32 {
     match name {
         "thetao" if (level, row, col) == HOT_CELL => 40.0,
         // Cold deep water: 3.0 to 1.1 °C at 1000 m, 1.5 °C in the trench.
-        "thetao" => [24.0, 12.0, 3.0, 1.5][level] - [0.3, 0.3, 0.1, 0.0][level] * position,
+        "thetao" => {
+            [24.0, 12.0, 3.0, 1.5][level] - [0.3, 0.3, 0.1, 0.0][level] * position + 0.01 * trend
+        }
         "so" if (level, row, col) == SALTY_CELL => 50.0,
-        "so" => 34.5 + 0.05 * position,
+        "so" => 34.5 + 0.05 * position + 0.001 * trend,
         "dissic" if (level, row, col) == MISSING_DIC_CELL => FILL,
         "dissic" if (level, row, col) == NO_SOLUTION_CELL => per_volume(1e-3),
         "dissic" => per_volume([1950.0, 2100.0, 2250.0, 2260.0][level] + 2.0 * trend + position),
         "talk" if (level, row, col) == NEGATIVE_ALKALINITY_CELL => -0.5,
         "talk" if (level, row, col) == NO_SOLUTION_CELL => per_volume(49_000.0),
-        "talk" => per_volume([2300.0, 2330.0, 2360.0, 2365.0][level] + 0.5 * position),
+        "talk" => {
+            per_volume([2300.0, 2330.0, 2360.0, 2365.0][level] + 0.5 * position + 0.1 * trend)
+        }
         _ => panic!("no synthetic variable {name}"),
     }
 }
