@@ -58,10 +58,16 @@ fn main() -> ExitCode {
             let signal = error
                 .downcast_ref::<acidscape_pipeline::PipelineError>()
                 .and_then(|e| e.signal());
-            match signal.and_then(|s| u8::try_from(128 + s).ok()) {
-                Some(code) => ExitCode::from(code),
-                None => ExitCode::FAILURE,
-            }
+            let code = signal
+                .and_then(|s| i32::try_from(128 + s).ok())
+                .unwrap_or(1);
+            // Leave without running libhdf5's exit handler: after a failed write it can crash
+            // closing the output whose close already failed (seen with netCDF-C 4.9.0 and HDF5
+            // 1.10.8), turning a clear message into a segmentation fault. Every file is closed
+            // by now and every finished step durable; stdout and stderr are flushed first.
+            let _ = std::io::Write::flush(&mut std::io::stdout());
+            let _ = std::io::Write::flush(&mut std::io::stderr());
+            signal_hook::low_level::exit(code)
         }
     }
 }

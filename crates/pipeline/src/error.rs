@@ -17,7 +17,7 @@ pub enum PipelineError {
     #[error("output {path}: {message}")]
     Output { path: PathBuf, message: String },
     /// A NetCDF call on the output failed.
-    #[error("output {path}, {what}: {source}")]
+    #[error("output {path}, {what}: {source} (writing failed; a full disk, a quota or a file-size limit are common causes)")]
     Netcdf {
         path: PathBuf,
         what: String,

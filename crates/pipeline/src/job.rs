@@ -3,13 +3,15 @@
 //! Any failure once the partial output holds finished work leaves it resumable.
 
 use crate::error::nc;
-use crate::flags::FlagCounts;
+use crate::flags::{Flag, FlagCounts};
 use crate::indicators::{IndicatorChoice, OutputField};
 use crate::leftovers::{check_leftovers, remove_leftovers, Leftovers};
 use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
+    FLAG_VARIABLE,
 };
 use crate::plan::{plan_slabs, SlabPlan};
+use crate::repair::restore_cut_tail;
 use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
 use crate::stop::StopRequest;
 use crate::stream::{stream, sync_file, Sink};
@@ -266,8 +268,9 @@ pub fn run_job(
     let first_read = read_started.elapsed();
 
     let (mut file, layout) = if resuming {
-        let opened = open_partial(&partial, &plan, &options.command_line);
-        opened.map_err(|e| ended.kept(e, first_step))?
+        let opened = open_partial(&partial, &plan, first_step, &options.command_line, progress);
+        // A partial output that cannot be opened says so itself, with the way out.
+        opened?
     } else {
         create_partial(run, &plan, &fields, options, &partial)?
     };
@@ -367,26 +370,58 @@ fn create_partial(
         sync_file(partial)?;
         Ok((file, layout))
     })();
-    if defined.is_err() {
+    defined.map_err(|e| {
         let _ = fs::remove_file(partial);
-    }
-    defined
+        let cause = match e {
+            PipelineError::Grid(grid) => grid.to_string(),
+            PipelineError::Netcdf { what, source, .. } => format!("{what}: {source}"),
+            other => return other,
+        };
+        PipelineError::Output {
+            path: partial.to_path_buf(),
+            message: format!(
+                "setting up the output failed ({cause}; a full disk, a quota or a file-size limit are common causes); nothing was kept: run the same command again once the cause is dealt with"
+            ),
+        }
+    })
 }
 
-/// Opens an interrupted run's partial output to continue it.
+/// Opens an interrupted run's partial output to continue it after `steps_done` steps,
+/// mending it first when a failed write cut it short (see [`restore_cut_tail`]).
 fn open_partial(
     partial: &Path,
     plan: &SlabPlan,
+    steps_done: usize,
     command_line: &str,
+    progress: &mut dyn Progress,
 ) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
-    let mut file = netcdf::append(partial).map_err(|e| PipelineError::Resume {
+    let damaged = |why: String| PipelineError::Resume {
         path: partial.to_path_buf(),
         message: format!(
-            "cannot be opened ({e}); it may have been damaged when the run stopped: start over with --overwrite"
+            "{why}; it may have been damaged when the run stopped: start over with --overwrite"
         ),
-    })?;
-    append_history(&mut file, partial, command_line)?;
+    };
+    let mended = restore_cut_tail(partial)?;
+    if mended {
+        progress.note(&format!(
+            "{} was cut short by a failed write; its tail is filled in and the unfinished time steps are written again",
+            partial.display()
+        ));
+    }
+    let mut file =
+        netcdf::append(partial).map_err(|e| damaged(format!("cannot be opened ({e})")))?;
     let layout = OutputLayout::from_file(&file, partial, plan.shape[0], plan.steps)?;
+    if mended && steps_done > 0 {
+        // The finished steps must read back before any work is built on them.
+        let last = steps_done - 1;
+        let extents = layout.extents(last, 0..plan.shape[1], plan.shape);
+        let flag = file
+            .variable(FLAG_VARIABLE)
+            .ok_or_else(|| damaged(format!("it has no variable '{FLAG_VARIABLE}'")))?;
+        flag.get_values::<Flag, _>(extents)
+            .map_err(|e| damaged(format!("time step {} cannot be read back ({e})", last + 1)))?;
+    }
+    append_history(&mut file, partial, command_line)?;
     Ok((file, layout))
 }
 

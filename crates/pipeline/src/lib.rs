@@ -15,6 +15,7 @@ mod leftovers;
 pub mod memory;
 pub mod output;
 pub mod plan;
+mod repair;
 pub mod resume;
 pub mod stop;
 mod stream;
