@@ -63,7 +63,9 @@ pub struct ComputeArgs {
     #[arg(long, conflicts_with = "resume")]
     pub overwrite: bool,
 
-    /// Continue an interrupted run from its last finished time step
+    /// Continue an interrupted run (killed, stopped by SIGTERM at the wall-time limit, or ended
+    /// by a read or write error) from its last finished time step, with the same options; inputs
+    /// are recognised by content, so a copied or touched run still resumes
     #[arg(long)]
     pub resume: bool,
 }

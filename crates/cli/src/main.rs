@@ -13,7 +13,9 @@ use std::process::ExitCode;
 const CAUTIONS: &str = "\
 Cautions: indicators computed from model output are model-derived estimates, not \
 measurements. Every set of equilibrium constants has a published validity range \
-(temperature, salinity, pressure); values outside it are still computed but flagged. \
+(temperature, salinity, pressure); values outside it are still computed but flagged with \
+the reason. The default constants are fitted to water warmer than most of the deep ocean, \
+so deep cells mostly carry the temperature-below bit: weigh deep values accordingly. \
 Local decisions (aquaculture siting, monitoring, regulation) should rest on local \
 observations, the applicable codes and licensed professional practice.";
 
