@@ -11,6 +11,9 @@ For every file given (directories are searched recursively for *.nc):
   * xarray opens it with cftime decoding, each time coordinate decodes, is
     strictly increasing and lies inside its bounds, and every variable named in
     a `coordinates` attribute resolves to a coordinate of its data variable;
+  * every bit-field flag variable (CF 1.10 section 3.5, `flag_masks`) has one
+    meaning per mask, masks that are distinct single bits, a `_FillValue` that is
+    no combination of them, and values (first time step) that set no other bit;
   * the IOOS compliance-checker (`compliance-checker --test=cf:1.8 FILE`) reports
     no error-level finding (warnings are counted, not fatal); --skip-cf turns it off;
   * optional expectations: --expect-var NAME (present in every file) and
@@ -146,6 +149,29 @@ def check_references(nc, problems):
                                     "file nor in the global attribute external_variables")
 
 
+def check_flag_variables(nc, problems):
+    """Bit-field flags (`flag_masks`): sound masks, a fill that reads as no flag combination."""
+    for name, var in nc.variables.items():
+        if "flag_masks" not in var.ncattrs():
+            continue
+        masks = [int(m) for m in np.atleast_1d(var.getncattr("flag_masks"))]
+        meanings = str(var.getncattr("flag_meanings")).split() if "flag_meanings" in var.ncattrs() else []
+        if len(meanings) != len(masks):
+            problems.append(f"variable '{name}': {len(masks)} flag_masks but {len(meanings)} flag_meanings")
+        if any(m <= 0 or m & (m - 1) for m in masks) or len(set(masks)) != len(masks):
+            problems.append(f"variable '{name}': flag_masks {masks} are not distinct single bits")
+        declared = 0
+        for m in masks:
+            declared |= m
+        fill = var.getncattr("_FillValue") if "_FillValue" in var.ncattrs() else None
+        if fill is not None and 0 <= int(fill) <= declared:
+            problems.append(f"variable '{name}': _FillValue {int(fill)} reads as a combination of its flag bits")
+        data = var[0] if var.ndim >= 3 else var[...]
+        values = np.ma.compressed(np.ma.masked_invalid(data)).astype(np.int64)
+        if np.any(values & ~declared):
+            problems.append(f"variable '{name}': values set bits that flag_masks do not declare")
+
+
 def check_with_netcdf4(path, expect_vars, expect_units, problems):
     summary = {}
     with netCDF4.Dataset(path) as nc:
@@ -160,6 +186,7 @@ def check_with_netcdf4(path, expect_vars, expect_units, problems):
             if not first_step_has_values(var):
                 problems.append(f"data variable '{name}' has no valid (non-missing) value in its first time step")
         check_references(nc, problems)
+        check_flag_variables(nc, problems)
         for name in expect_vars:
             if name not in nc.variables:
                 problems.append(f"expected variable '{name}' is missing")
@@ -274,7 +301,7 @@ def check_file(path, args, expect_units):
 
 
 def write_probe(path, units="mol m-3", coordinates=None, time_units="days since 2000-01-01",
-                standard_name="sea_water_alkalinity_expressed_as_mole_equivalent"):
+                standard_name="sea_water_alkalinity_expressed_as_mole_equivalent", flag_fill=None):
     """A small CF file; the keyword arguments let the self-test break one thing at a time."""
     with netCDF4.Dataset(path, "w") as nc:
         nc.Conventions = "CF-1.8"
@@ -294,6 +321,12 @@ def write_probe(path, units="mol m-3", coordinates=None, time_units="days since 
         if coordinates is not None:
             var.coordinates = coordinates
         var[:] = np.full((2, 3), 2.3, dtype="f4")
+        if flag_fill is not None:
+            flag = nc.createVariable("talk_flag", "i2", ("time", "lat"), fill_value=np.int16(flag_fill))
+            flag.setncatts({"standard_name": "status_flag", "flag_masks": np.array([1, 2, 4], dtype="i2"),
+                            "flag_meanings": "too_low too_high unchecked"})
+            flag[:] = np.array([[0, 1, 5], [2, 0, 4]], dtype="i2")
+            var.ancillary_variables = "talk_flag"
 
 
 def self_test(skip_cf, cf_suite):
@@ -304,6 +337,8 @@ def self_test(skip_cf, cf_suite):
         ("an unresolved coordinates entry fails", {"coordinates": "nowhere"}, [], False, False),
         ("undecodable time units fail", {"time_units": "days since the flood"}, [], False, False),
         ("a missing expected variable fails", {}, ["ph"], False, False),
+        ("a bit-field flag with a fill outside its bits passes", {"flag_fill": -1}, [], True, False),
+        ("a flag fill that reads as a bit combination fails", {"flag_fill": 3}, [], False, False),
         ("an invalid standard_name fails the CF checker", {"standard_name": "alkalinity_of_the_gulf"}, [], False,
          True),
     ]

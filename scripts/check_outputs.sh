@@ -1,8 +1,10 @@
 #!/usr/bin/env bash
 # Runs `acidscape compute` on every sample run and checks each output with
 # scripts/check_external_readers.py: netCDF4 and xarray open it (units, coordinates,
-# decoded time) and the compliance-checker CF suites cf:1.8 and cf:1.10 (the version the
-# output declares) report no error; CDO and NCO read them (scripts/check_with_cdo_nco.sh).
+# decoded time), the quality flag is a sound CF bit field (flag_masks with flag_meanings, a
+# _FillValue that is no combination of bits, no undeclared bit set) and the compliance-checker
+# CF suites cf:1.8 and cf:1.10 (the version the output declares) report no error. The checker
+# first checks itself on sound and broken probe files. CDO and NCO read them (scripts/check_with_cdo_nco.sh).
 # Sample runs: sample-grids/<run>/<pathway>/ if present, else generated (small, SYNTHETIC)
 # into a temporary directory by scripts/make_sample_grids.py.
 # Usage: scripts/check_outputs.sh [--keep]   (--keep leaves the temporary directory)
@@ -22,6 +24,8 @@ if ! compgen -G "sample-grids/*/*/*.nc" >/dev/null; then
 fi
 
 failed=0
+echo "== the checker's own self-test"
+python3 scripts/check_external_readers.py --self-test --cf-suite cf:1.10 || failed=1
 outputs=()
 for run_dir in "$grids"/*/*/; do
     run=$(basename "$(dirname "$run_dir")")-$(basename "$run_dir")

@@ -36,7 +36,7 @@ pub use choice::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet, UnknownKe
 pub use constants::{equilibrium_constants, EquilibriumConstants};
 pub use error::ChemError;
 pub use speciation::solve;
-pub use validity::Validity;
+pub use validity::{OutOfRange, Validity};
 
 /// One sample's physical state. Concentrations µmol kg-1; in-situ temperature °C; practical
 /// salinity; sea pressure dbar (0 at surface).

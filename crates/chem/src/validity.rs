@@ -1,4 +1,5 @@
-//! Which published validity ranges a sample falls outside. The result is still computed.
+//! Which published validity ranges a sample falls outside, and which way. The result is still
+//! computed: these are notes on it, never reasons to change it.
 
 use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
 
@@ -21,6 +22,31 @@ impl Quantity {
             Quantity::Pressure => "pressure",
         }
     }
+
+    /// The [`OutOfRange`] bits for a value below and above a range of this quantity.
+    fn direction_bits(self) -> (u8, u8) {
+        match self {
+            Quantity::Temperature => (OutOfRange::TEMPERATURE_BELOW, OutOfRange::TEMPERATURE_ABOVE),
+            Quantity::Salinity => (OutOfRange::SALINITY_BELOW, OutOfRange::SALINITY_ABOVE),
+            Quantity::Pressure => (OutOfRange::PRESSURE_BELOW, OutOfRange::PRESSURE_ABOVE),
+        }
+    }
+}
+
+impl Range {
+    fn value(&self, temperature_c: f64, salinity: f64, pressure_dbar: f64) -> f64 {
+        match self.quantity {
+            Quantity::Temperature => temperature_c,
+            Quantity::Salinity => salinity,
+            Quantity::Pressure => pressure_dbar,
+        }
+    }
+
+    /// "2-35" reads well; "-1-40" does not, so negative minima get "to".
+    fn limits(&self) -> String {
+        let separator = if self.min < 0.0 { " to " } else { "-" };
+        format!("{}{separator}{}{}", self.min, self.max, self.unit)
+    }
 }
 
 /// One validity range: bit, what it covers, the variable, limits and units.
@@ -31,6 +57,8 @@ struct Range {
     max: f64,
     unit: &'static str,
     source: &'static str,
+    /// The constants the range belongs to.
+    constants: &'static str,
 }
 
 // Ranges as the papers state them (all `from memory`, except Lueker et al. 2000 which
@@ -43,6 +71,7 @@ const RANGES: &[Range] = &[
         max: 35.0,
         unit: " °C",
         source: "Lueker et al. 2000",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::LUEKER2000_SALINITY,
@@ -51,6 +80,7 @@ const RANGES: &[Range] = &[
         max: 43.0,
         unit: "",
         source: "Lueker et al. 2000",
+        constants: "K1, K2",
     },
     // Millero et al. 2006: "valid from S = 0 to 50 and t = 0 to 50 °C" (verified, abstract).
     Range {
@@ -60,6 +90,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: " °C",
         source: "Millero et al. 2006",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::MILLERO2006_SALINITY,
@@ -68,6 +99,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: "",
         source: "Millero et al. 2006",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::MILLERO2010_TEMPERATURE,
@@ -76,6 +108,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: " °C",
         source: "Millero 2010",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::MILLERO2010_SALINITY,
@@ -84,6 +117,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: "",
         source: "Millero 2010",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::WATERS2014_TEMPERATURE,
@@ -92,6 +126,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: " °C",
         source: "Waters, Millero & Woosley 2014",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::WATERS2014_SALINITY,
@@ -100,6 +135,7 @@ const RANGES: &[Range] = &[
         max: 50.0,
         unit: "",
         source: "Waters, Millero & Woosley 2014",
+        constants: "K1, K2",
     },
     Range {
         bit: Validity::PEREZ_FRAGA1987_TEMPERATURE,
@@ -108,6 +144,7 @@ const RANGES: &[Range] = &[
         max: 33.0,
         unit: " °C",
         source: "Perez & Fraga 1987",
+        constants: "KF",
     },
     Range {
         bit: Validity::PEREZ_FRAGA1987_SALINITY,
@@ -116,6 +153,7 @@ const RANGES: &[Range] = &[
         max: 40.0,
         unit: "",
         source: "Perez & Fraga 1987",
+        constants: "KF",
     },
     Range {
         bit: Validity::DICKSON_RILEY1979_TEMPERATURE,
@@ -124,6 +162,7 @@ const RANGES: &[Range] = &[
         max: 45.0,
         unit: " °C",
         source: "Dickson & Riley 1979",
+        constants: "KF",
     },
     Range {
         bit: Validity::DICKSON_RILEY1979_SALINITY,
@@ -132,6 +171,7 @@ const RANGES: &[Range] = &[
         max: 45.0,
         unit: "",
         source: "Dickson & Riley 1979",
+        constants: "KF",
     },
     Range {
         bit: Validity::WEISS1974_TEMPERATURE,
@@ -139,7 +179,8 @@ const RANGES: &[Range] = &[
         min: -1.0,
         max: 40.0,
         unit: " °C",
-        source: "Weiss 1974 (K0)",
+        source: "Weiss 1974",
+        constants: "K0",
     },
     Range {
         bit: Validity::WEISS1974_SALINITY,
@@ -147,7 +188,8 @@ const RANGES: &[Range] = &[
         min: 0.0,
         max: 40.0,
         unit: "",
-        source: "Weiss 1974 (K0)",
+        source: "Weiss 1974",
+        constants: "K0",
     },
     Range {
         bit: Validity::MINOR_ACIDS_TEMPERATURE,
@@ -155,7 +197,8 @@ const RANGES: &[Range] = &[
         min: 0.0,
         max: 45.0,
         unit: " °C",
-        source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)",
+        source: "Dickson 1990 and Millero 1995",
+        constants: "KB, KS, KW, phosphate, silicate",
     },
     Range {
         bit: Validity::MINOR_ACIDS_SALINITY,
@@ -163,7 +206,8 @@ const RANGES: &[Range] = &[
         min: 5.0,
         max: 45.0,
         unit: "",
-        source: "Dickson 1990 and Millero 1995 (KB, KS, KW, phosphate, silicate)",
+        source: "Dickson 1990 and Millero 1995",
+        constants: "KB, KS, KW, phosphate, silicate",
     },
     Range {
         bit: Validity::MUCCI1983_TEMPERATURE,
@@ -171,7 +215,8 @@ const RANGES: &[Range] = &[
         min: 5.0,
         max: 40.0,
         unit: " °C",
-        source: "Mucci 1983 (Ksp)",
+        source: "Mucci 1983",
+        constants: "Ksp",
     },
     Range {
         bit: Validity::MUCCI1983_SALINITY,
@@ -179,7 +224,8 @@ const RANGES: &[Range] = &[
         min: 5.0,
         max: 44.0,
         unit: "",
-        source: "Mucci 1983 (Ksp)",
+        source: "Mucci 1983",
+        constants: "Ksp",
     },
     Range {
         bit: Validity::PRESSURE,
@@ -187,7 +233,8 @@ const RANGES: &[Range] = &[
         min: 0.0,
         max: 10_000.0,
         unit: " dbar",
-        source: "Millero 1995 pressure corrections",
+        source: "Millero 1995",
+        constants: "pressure corrections",
     },
 ];
 
@@ -266,28 +313,20 @@ impl Validity {
             .iter()
             .filter(|range| self.contains(range.bit))
             .map(|range| {
-                // "2-35" reads well; "-1-40" does not, so negative minima get "to".
-                let separator = if range.min < 0.0 { " to " } else { "-" };
                 format!(
-                    "{} outside {}{separator}{}{} for {}",
+                    "{} outside {} for {} ({})",
                     range.quantity.name(),
-                    range.min,
-                    range.max,
-                    range.unit,
-                    range.source
+                    range.limits(),
+                    range.source,
+                    range.constants
                 )
             })
             .collect::<Vec<_>>()
             .join("; ")
     }
 
-    /// Checks a sample's temperature (°C), salinity and pressure (dbar) against the ranges of the chosen sets.
-    pub fn assess(
-        temperature_c: f64,
-        salinity: f64,
-        pressure_dbar: f64,
-        choice: &ConstantChoice,
-    ) -> Self {
+    /// The ranges that apply to the chosen sets (the others are never reported).
+    fn relevant(choice: &ConstantChoice) -> u32 {
         let (carbonic_t, carbonic_s) = match choice.carbonic {
             CarbonicSet::Lueker2000 => (Self::LUEKER2000_TEMPERATURE, Self::LUEKER2000_SALINITY),
             CarbonicSet::Millero2006 => (Self::MILLERO2006_TEMPERATURE, Self::MILLERO2006_SALINITY),
@@ -306,7 +345,7 @@ impl Validity {
                 Self::DICKSON_RILEY1979_SALINITY,
             ),
         };
-        let relevant = carbonic_t
+        carbonic_t
             | carbonic_s
             | fluoride_t
             | fluoride_s
@@ -316,17 +355,137 @@ impl Validity {
             | Self::MINOR_ACIDS_SALINITY
             | Self::MUCCI1983_TEMPERATURE
             | Self::MUCCI1983_SALINITY
-            | Self::PRESSURE;
+            | Self::PRESSURE
+    }
+
+    /// Checks a sample's temperature (°C), salinity and pressure (dbar) against the ranges of the chosen sets.
+    pub fn assess(
+        temperature_c: f64,
+        salinity: f64,
+        pressure_dbar: f64,
+        choice: &ConstantChoice,
+    ) -> Self {
         // Every range is checked without branching, then the ones of unused sets are masked off.
         let outside = RANGES.iter().fold(0, |bits, range| {
-            let value = match range.quantity {
-                Quantity::Temperature => temperature_c,
-                Quantity::Salinity => salinity,
-                Quantity::Pressure => pressure_dbar,
-            };
+            let value = range.value(temperature_c, salinity, pressure_dbar);
             let within = value >= range.min && value <= range.max;
             bits | (u32::from(!within) * range.bit)
         });
-        Validity(outside & relevant)
+        Validity(outside & Self::relevant(choice))
+    }
+
+    /// Which way the material breaches of `self` ([`Validity::MATERIAL`]) leave their ranges,
+    /// for the conditions `self` was assessed at. A NaN condition counts as neither below nor above.
+    pub fn out_of_range(self, temperature_c: f64, salinity: f64, pressure_dbar: f64) -> OutOfRange {
+        let material = self.0 & Self::MATERIAL;
+        let bits = RANGES
+            .iter()
+            .filter(|range| material & range.bit != 0)
+            .fold(0, |bits, range| {
+                let value = range.value(temperature_c, salinity, pressure_dbar);
+                let (below, above) = range.quantity.direction_bits();
+                bits | (u8::from(value < range.min) * below) | (u8::from(value > range.max) * above)
+            });
+        OutOfRange(bits)
+    }
+}
+
+/// Which way one sample's conditions leave the published ranges of the chosen constants that
+/// can move the indicators ([`Validity::MATERIAL`]): a bit set, empty when all are within. This
+/// is the per-cell check behind the quality flag of grids and the status of tables.
+///
+/// ```
+/// use acidscape_chem::{ConstantChoice, OutOfRange};
+/// // Deep water at 1.5 °C is below the 2-35 °C of Lueker et al. 2000 (the default K1, K2).
+/// let deep = OutOfRange::assess(1.5, 34.7, 4000.0, &ConstantChoice::default());
+/// assert_eq!(deep.bits(), OutOfRange::TEMPERATURE_BELOW);
+/// ```
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+pub struct OutOfRange(pub u8);
+
+impl OutOfRange {
+    /// Temperature below the lower limit of some material range.
+    pub const TEMPERATURE_BELOW: u8 = 1 << 0;
+    /// Temperature above the upper limit of some material range.
+    pub const TEMPERATURE_ABOVE: u8 = 1 << 1;
+    /// Salinity below the lower limit of some material range.
+    pub const SALINITY_BELOW: u8 = 1 << 2;
+    /// Salinity above the upper limit of some material range.
+    pub const SALINITY_ABOVE: u8 = 1 << 3;
+    /// Pressure below 0 dbar (not seawater; the chemistry refuses it).
+    pub const PRESSURE_BELOW: u8 = 1 << 4;
+    /// Pressure beyond the basis of the Millero 1995 pressure corrections (10000 dbar).
+    pub const PRESSURE_ABOVE: u8 = 1 << 5;
+    /// Every bit, in order.
+    pub const ALL: [u8; 6] = [
+        Self::TEMPERATURE_BELOW,
+        Self::TEMPERATURE_ABOVE,
+        Self::SALINITY_BELOW,
+        Self::SALINITY_ABOVE,
+        Self::PRESSURE_BELOW,
+        Self::PRESSURE_ABOVE,
+    ];
+
+    /// Checks one sample's in-situ temperature (°C), practical salinity and sea pressure (dbar)
+    /// against the material ranges of the chosen constants.
+    pub fn assess(
+        temperature_c: f64,
+        salinity: f64,
+        pressure_dbar: f64,
+        choice: &ConstantChoice,
+    ) -> OutOfRange {
+        Validity::assess(temperature_c, salinity, pressure_dbar, choice).out_of_range(
+            temperature_c,
+            salinity,
+            pressure_dbar,
+        )
+    }
+
+    /// The raw bits.
+    pub fn bits(self) -> u8 {
+        self.0
+    }
+
+    /// True when every bit of `flag` is set.
+    pub fn contains(self, flag: u8) -> bool {
+        self.0 & flag == flag
+    }
+
+    /// True when no material range is left.
+    pub fn is_empty(self) -> bool {
+        self.0 == 0
+    }
+
+    /// Which published limits of the chosen sets one bit stands for, the first crossed first:
+    /// for [`OutOfRange::TEMPERATURE_BELOW`] with the defaults "below 5 °C (Mucci 1983: Ksp);
+    /// below 2 °C (Lueker et al. 2000: K1, K2); ...". Empty for a bit no chosen range can set.
+    pub fn limits(bit: u8, choice: &ConstantChoice) -> String {
+        let relevant = Validity::relevant(choice) & Validity::MATERIAL;
+        let mut limits: Vec<(f64, String)> = RANGES
+            .iter()
+            .filter(|range| relevant & range.bit != 0)
+            .filter_map(|range| {
+                let (below, above) = range.quantity.direction_bits();
+                // Sort key: the limit a value crosses first comes first.
+                let (word, limit, key) = if bit == below {
+                    ("below", range.min, -range.min)
+                } else if bit == above {
+                    ("above", range.max, range.max)
+                } else {
+                    return None;
+                };
+                let text = format!(
+                    "{word} {limit}{} ({}: {})",
+                    range.unit, range.source, range.constants
+                );
+                Some((key, text))
+            })
+            .collect();
+        limits.sort_by(|a, b| a.0.total_cmp(&b.0));
+        limits
+            .into_iter()
+            .map(|(_, text)| text)
+            .collect::<Vec<_>>()
+            .join("; ")
     }
 }

@@ -1,10 +1,11 @@
 //! `compute`: indicator fields for a whole run, written as CF NetCDF-4.
 
 use crate::run_options::{ConstantOptions, RunOptions};
+use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
 use acidscape_pipeline::{
     format_bytes, parse_list, parse_memory_size, run_job, IndicatorChoice, JobOptions, JobSummary,
-    Progress,
+    Progress, StopRequest, FLAG_BITS,
 };
 use clap::Args;
 use indicatif::{ProgressBar, ProgressStyle};
@@ -62,7 +63,9 @@ pub struct ComputeArgs {
     #[arg(long, conflicts_with = "resume")]
     pub overwrite: bool,
 
-    /// Continue an interrupted run from its last finished time step
+    /// Continue an interrupted run (killed, stopped by SIGTERM at the wall-time limit, or ended
+    /// by a read or write error) from its last finished time step, with the same options; inputs
+    /// are recognised by content, so a copied or touched run still resumes
     #[arg(long)]
     pub resume: bool,
 }
@@ -93,6 +96,8 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
             .map_err(|e| format!("--threads: {e}"))?;
     }
 
+    // From here on SIGINT and SIGTERM stop the job cleanly (see stop_on_signals).
+    let stop = stop_on_signals()?;
     let run = Run::open(&args.run.spec()?)?;
     let options = JobOptions {
         output: args.output.clone(),
@@ -105,6 +110,7 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         deflate_level: args.deflate_level,
         stop_after_steps,
         max_rows_per_slab: None,
+        stop,
     };
     let mut progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {
         Box::new(BarProgress::default())
@@ -113,8 +119,28 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
     };
     let summary = run_job(&run, &options, progress.as_mut())?;
     // The output is complete; a closed stdout (e.g. piped into head) is not an error.
-    let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary));
+    let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary, &constants));
     Ok(())
+}
+
+/// SIGINT and SIGTERM (a scheduler's wall-time signal) ask the job to stop after the slab in
+/// hand; the handlers only store into atomics (async-signal-safe). A second one of either
+/// ends the process at once with 128 + its number, for a user who will not wait.
+fn stop_on_signals() -> Result<StopRequest, Box<dyn Error>> {
+    use signal_hook::consts::{SIGINT, SIGTERM};
+    let stop = StopRequest::new();
+    let armed = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
+    for signal in [SIGINT, SIGTERM] {
+        let register = || -> std::io::Result<()> {
+            // The shutdown goes first, so the first signal only arms it.
+            signal_hook::flag::register_conditional_shutdown(signal, 128 + signal, armed.clone())?;
+            signal_hook::flag::register(signal, armed.clone())?;
+            signal_hook::flag::register_usize(signal, stop.flag(), signal as usize)?;
+            Ok(())
+        };
+        register().map_err(|e| format!("cannot set up the handling of signal {signal}: {e}"))?;
+    }
+    Ok(stop)
 }
 
 /// The command line as typed, quoted where needed, for the history attribute.
@@ -132,9 +158,8 @@ fn command_line() -> String {
 }
 
 /// A one-screen account of the job.
-fn summary_text(summary: &JobSummary) -> String {
+fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
     let seconds = summary.wall.as_secs_f64().max(1e-9);
-    let counts = summary.counts;
     let output = summary.output.display();
     let resumed = if summary.first_step > 0 {
         format!(" (resumed at time step {})", summary.first_step + 1)
@@ -146,7 +171,7 @@ fn summary_text(summary: &JobSummary) -> String {
          cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
          wall time: {:.2} s; throughput {:.3e} cells/s\n\
          stage time (stages overlap): read {:.2} s, convert+solve {:.2} s, write {:.2} s\n\
-         quality flags (all steps): computed {}, outside validity range {}, no solution {}, missing input {}; land {}\n\
+         {}\n\
          peak memory estimate: {}\n\
          open it with: ncdump -h {output}   or   python3 -c \"import xarray; print(xarray.open_dataset('{output}'))\"",
         summary.cells_processed,
@@ -160,13 +185,36 @@ fn summary_text(summary: &JobSummary) -> String {
         summary.read.as_secs_f64(),
         summary.compute.as_secs_f64(),
         summary.write.as_secs_f64(),
-        counts.computed,
-        counts.outside_validity_range,
-        counts.no_solution,
-        counts.missing_input,
-        counts.land,
+        flag_summary(summary, constants),
         format_bytes(summary.plan.estimated_peak_bytes()),
     )
+}
+
+/// The quality flag's counts over all steps: one line per bit, with the limits behind it.
+fn flag_summary(summary: &JobSummary, constants: &ConstantChoice) -> String {
+    let counts = summary.counts;
+    let mut lines = vec![format!(
+        "quality_flag (cells, all steps): land {}; wet {}, of which {} with values and {} with no flag set",
+        counts.land,
+        counts.wet,
+        counts.with_values(),
+        counts.no_flag
+    )];
+    for bit in FLAG_BITS {
+        let limits = bit.limits(constants);
+        let why = if limits.is_empty() {
+            String::new()
+        } else {
+            format!(" ({limits})")
+        };
+        lines.push(format!(
+            "  {:>3} {:<34} {}{why}",
+            bit.mask,
+            bit.meaning,
+            counts.of(bit.mask)
+        ));
+    }
+    lines.join("\n")
 }
 
 const BAR_TEMPLATE: &str =
@@ -179,6 +227,12 @@ struct BarProgress {
 }
 
 impl Progress for BarProgress {
+    fn note(&mut self, text: &str) {
+        match &self.bar {
+            Some(bar) => bar.println(format!("acidscape: note: {text}")),
+            None => eprintln!("acidscape: note: {text}"),
+        }
+    }
     fn begin(&mut self, total_cells: u64, done_cells: u64) {
         let bar = ProgressBar::new(total_cells);
         let style = ProgressStyle::with_template(BAR_TEMPLATE)
@@ -247,6 +301,9 @@ impl LogProgress {
 }
 
 impl Progress for LogProgress {
+    fn note(&mut self, text: &str) {
+        eprintln!("acidscape: note: {text}");
+    }
     fn begin(&mut self, total_cells: u64, done_cells: u64) {
         self.total = total_cells.max(1);
         self.done = done_cells;

@@ -13,7 +13,9 @@ use std::process::ExitCode;
 const CAUTIONS: &str = "\
 Cautions: indicators computed from model output are model-derived estimates, not \
 measurements. Every set of equilibrium constants has a published validity range \
-(temperature, salinity, pressure); values outside it are still computed but flagged. \
+(temperature, salinity, pressure); values outside it are still computed but flagged with \
+the reason. The default constants are fitted to water warmer than most of the deep ocean, \
+so deep cells mostly carry the temperature-below bit: weigh deep values accordingly. \
 Local decisions (aquaculture siting, monitoring, regulation) should rest on local \
 observations, the applicable codes and licensed professional practice.";
 
@@ -54,7 +56,20 @@ fn main() -> ExitCode {
         Ok(()) => ExitCode::SUCCESS,
         Err(error) => {
             eprintln!("acidscape: error: {error}");
-            ExitCode::FAILURE
+            // A job stopped by a signal exits as the shell reports a signal: 128 + its number.
+            let signal = error
+                .downcast_ref::<acidscape_pipeline::PipelineError>()
+                .and_then(|e| e.signal());
+            let code = signal
+                .and_then(|s| i32::try_from(128 + s).ok())
+                .unwrap_or(1);
+            // Leave without running libhdf5's exit handler: after a failed write it can crash
+            // closing the output whose close already failed (seen with netCDF-C 4.9.0 and HDF5
+            // 1.10.8), turning a clear message into a segmentation fault. Every file is closed
+            // by now and every finished step durable; stdout and stderr are flushed first.
+            let _ = std::io::Write::flush(&mut std::io::stdout());
+            let _ = std::io::Write::flush(&mut std::io::stderr());
+            signal_hook::low_level::exit(code)
         }
     }
 }

@@ -1,11 +1,18 @@
 //! `samples`: the chemistry for a table of water samples (bottle data, mooring records, what-if cases).
-//! A bad row is reported in its own status column and never stops the others.
+//! Each row gets a status naming the same reasons as the quality flag of grids; a bad row never
+//! stops the others.
+
+mod columns;
 
 use crate::run_options::ConstantOptions;
-use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution};
+use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, Solution, Validity};
 use acidscape_gridio::seawater;
 use acidscape_gridio::units;
+use acidscape_pipeline::flags::{
+    error_flag, meanings_of, range_flag, Flag, FlagCounts, FLAG_BITS, MISSING_INPUT,
+};
 use clap::{Args, ValueEnum};
+use columns::{locate_columns, Column, Conversion, Role};
 use std::collections::BTreeMap;
 use std::error::Error;
 use std::fs;
@@ -95,189 +102,6 @@ impl PairChoice {
             },
         }
     }
-}
-
-/// What a column means to the chemistry.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
-enum Role {
-    Alkalinity,
-    Dic,
-    Ph,
-    Pco2,
-    Temperature,
-    Salinity,
-    Pressure,
-    Depth,
-    Latitude,
-    Phosphate,
-    Silicate,
-}
-
-impl Role {
-    const ALL: [Role; 11] = [
-        Role::Alkalinity,
-        Role::Dic,
-        Role::Ph,
-        Role::Pco2,
-        Role::Temperature,
-        Role::Salinity,
-        Role::Pressure,
-        Role::Depth,
-        Role::Latitude,
-        Role::Phosphate,
-        Role::Silicate,
-    ];
-
-    /// The role's key on the command line, then the header names recognised without a mapping.
-    fn names(self) -> &'static [&'static str] {
-        match self {
-            Role::Alkalinity => &["alkalinity", "ta", "talk", "total_alkalinity"],
-            Role::Dic => &["dic", "dissic", "tco2"],
-            Role::Ph => &["ph", "ph_total"],
-            Role::Pco2 => &["pco2"],
-            Role::Temperature => &["temperature", "temp", "t"],
-            Role::Salinity => &["salinity", "sal", "s", "so", "practical_salinity"],
-            Role::Pressure => &["pressure", "pres", "p"],
-            Role::Depth => &["depth"],
-            Role::Latitude => &["latitude", "lat"],
-            Role::Phosphate => &["phosphate", "po4"],
-            Role::Silicate => &["silicate", "si", "sio4"],
-        }
-    }
-
-    fn key(self) -> &'static str {
-        self.names()[0]
-    }
-
-    fn from_key(key: &str) -> Result<Role, String> {
-        let key = key.trim().to_ascii_lowercase();
-        Role::ALL
-            .into_iter()
-            .find(|role| role.key() == key)
-            .ok_or_else(|| {
-                let keys: Vec<&str> = Role::ALL.iter().map(|r| r.key()).collect();
-                format!("unknown role '{key}'; expected one of {}", keys.join(", "))
-            })
-    }
-
-    fn default_units(self) -> &'static str {
-        match self {
-            Role::Alkalinity | Role::Dic | Role::Phosphate | Role::Silicate => "umol/kg",
-            Role::Temperature => "degC",
-            Role::Salinity | Role::Ph | Role::Latitude => "1",
-            Role::Pressure => "dbar",
-            Role::Depth => "m",
-            Role::Pco2 => "uatm",
-        }
-    }
-}
-
-/// How to turn one column's text into the chemistry's units.
-#[derive(Clone, Copy, Debug)]
-enum Conversion {
-    Concentration(units::Concentration),
-    Temperature(units::TemperatureUnits),
-    Salinity(units::SalinityUnits),
-    Scale(f64),
-}
-
-/// A role found in the header: its column index and how to convert it.
-#[derive(Clone, Copy, Debug)]
-struct Column {
-    index: usize,
-    conversion: Conversion,
-}
-
-/// Splits `name [units]` or `name (units)` into its parts.
-fn split_header(header: &str) -> (String, Option<String>) {
-    let header = header.trim();
-    for (open, close) in [('[', ']'), ('(', ')')] {
-        if let (Some(start), true) = (header.find(open), header.ends_with(close)) {
-            let name = header[..start].trim().to_ascii_lowercase();
-            let unit = header[start + 1..header.len() - 1].trim().to_string();
-            return (name, Some(unit));
-        }
-    }
-    (header.to_ascii_lowercase(), None)
-}
-
-fn parse_pco2_units(text: &str) -> Result<f64, String> {
-    match text.trim().to_ascii_lowercase().as_str() {
-        "uatm" | "µatm" | "μatm" | "microatm" | "micro-atm" => Ok(1.0),
-        "atm" => Ok(1.0e6),
-        other => Err(format!(
-            "units '{other}' for pCO2 not understood; expected uatm (µatm) or atm"
-        )),
-    }
-}
-
-fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
-    let describe = |e: units::UnitsError| e.to_string();
-    Ok(match role {
-        Role::Alkalinity | Role::Dic | Role::Phosphate | Role::Silicate => {
-            Conversion::Concentration(units::parse_concentration(unit_text).map_err(describe)?)
-        }
-        Role::Temperature => {
-            Conversion::Temperature(units::parse_temperature(unit_text).map_err(describe)?)
-        }
-        Role::Salinity => Conversion::Salinity(units::parse_salinity(unit_text).map_err(describe)?),
-        Role::Pressure => {
-            Conversion::Scale(units::parse_pressure(unit_text).map_err(describe)?.to_dbar)
-        }
-        Role::Depth => Conversion::Scale(units::parse_length(unit_text).map_err(describe)?.to_m),
-        Role::Pco2 => Conversion::Scale(parse_pco2_units(unit_text)?),
-        Role::Ph | Role::Latitude => match unit_text.trim() {
-            "" | "1" => Conversion::Scale(1.0),
-            other => return Err(format!("{} takes no units, got '{other}'", role.key())),
-        },
-    })
-}
-
-/// Parses `ROLE=VALUE` options into a map.
-fn role_options(options: &[String], flag: &str) -> Result<BTreeMap<Role, String>, String> {
-    let mut map = BTreeMap::new();
-    for option in options {
-        let (role, value) = option
-            .split_once('=')
-            .ok_or_else(|| format!("{flag} expects ROLE=VALUE, got '{option}'"))?;
-        map.insert(Role::from_key(role)?, value.trim().to_string());
-    }
-    Ok(map)
-}
-
-/// Finds each role's column from the header, the mapping and the units options.
-fn locate_columns(
-    header: &csv::StringRecord,
-    args: &SamplesArgs,
-) -> Result<BTreeMap<Role, Column>, String> {
-    let renames = role_options(&args.columns, "--column")?;
-    let unit_overrides = role_options(&args.units, "--units")?;
-    let parsed: Vec<(String, Option<String>)> = header.iter().map(split_header).collect();
-    let mut found = BTreeMap::new();
-    for role in Role::ALL {
-        let wanted: Vec<String> = match renames.get(&role) {
-            Some(name) => vec![split_header(name).0],
-            None => role.names().iter().map(|n| n.to_string()).collect(),
-        };
-        let Some(index) = parsed.iter().position(|(name, _)| wanted.contains(name)) else {
-            if let Some(name) = renames.get(&role) {
-                return Err(format!(
-                    "--column {}={name}: the table has no column '{name}'",
-                    role.key()
-                ));
-            }
-            continue;
-        };
-        let unit_text = unit_overrides
-            .get(&role)
-            .cloned()
-            .or_else(|| parsed[index].1.clone())
-            .unwrap_or_else(|| role.default_units().to_string());
-        let conversion = conversion_for(role, &unit_text)
-            .map_err(|e| format!("column '{}': {e}", &header[index]))?;
-        found.insert(role, Column { index, conversion });
-    }
-    Ok(found)
 }
 
 fn choose_pair(args: &SamplesArgs, columns: &BTreeMap<Role, Column>) -> Result<PairChoice, String> {
@@ -441,25 +265,22 @@ const RESULT_COLUMNS: &[(&str, Field)] = &[
     }),
 ];
 
-/// Row outcome labels written in the `status` column.
-fn status_of(outcome: &Result<(RowInputs, Solution), RowFailure>) -> (&'static str, String) {
-    match outcome {
-        Ok((_, solution)) if solution.validity.is_material() => {
-            ("outside-validity-range", solution.validity.describe())
-        }
-        // Breaches that cannot move the results are still reported, as a note.
-        Ok((_, solution)) => ("ok", solution.validity.describe()),
-        Err(RowFailure::BadInput(why)) => ("bad-input", why.clone()),
-        Err(RowFailure::Chemistry(ChemError::NoSolution { .. }, why)) => {
-            ("no-solution", why.clone())
-        }
-        Err(RowFailure::Chemistry(_, why)) => ("bad-input", why.clone()),
-    }
+/// What became of one row: the same bits as the quality flag of grids, a plain-language
+/// detail, and the solution when there is one.
+struct RowOutcome {
+    flag: Flag,
+    detail: String,
+    solved: Option<(RowInputs, Solution)>,
 }
 
-enum RowFailure {
-    BadInput(String),
-    Chemistry(ChemError, String),
+impl RowOutcome {
+    /// The `status` column: the flag's meanings (space-separated), or `ok` when none is set.
+    fn status(&self) -> String {
+        match meanings_of(self.flag) {
+            none if none.is_empty() => "ok".to_string(),
+            meanings => meanings,
+        }
+    }
 }
 
 fn compute_row(
@@ -468,25 +289,47 @@ fn compute_row(
     pair: PairChoice,
     latitude: Option<f64>,
     choice: &ConstantChoice,
-) -> Result<(RowInputs, Solution), RowFailure> {
-    let inputs = row_inputs(record, columns, pair, latitude).map_err(RowFailure::BadInput)?;
-    match solve(inputs.pair, &inputs.conditions, choice) {
-        Ok(solution) => Ok((inputs, solution)),
+) -> RowOutcome {
+    let inputs = match row_inputs(record, columns, pair, latitude) {
+        Ok(inputs) => inputs,
+        Err(why) => {
+            return RowOutcome {
+                flag: MISSING_INPUT,
+                detail: why,
+                solved: None,
+            }
+        }
+    };
+    let c = &inputs.conditions;
+    let (t, s, p) = (c.temperature_c, c.salinity, c.pressure_dbar);
+    match solve(inputs.pair, c, choice) {
+        // Breaches that cannot move the results (KF's) set no bit but are still described.
+        Ok(solution) => RowOutcome {
+            flag: range_flag(solution.validity.out_of_range(t, s, p)),
+            detail: solution.validity.describe(),
+            solved: Some((inputs, solution)),
+        },
         Err(error) => {
-            let why = error.to_string();
-            Err(RowFailure::Chemistry(error, why))
+            let validity = Validity::assess(t, s, p, choice);
+            let detail = [error.to_string(), validity.describe()]
+                .into_iter()
+                .filter(|d| !d.is_empty())
+                .collect::<Vec<_>>()
+                .join("; ");
+            RowOutcome {
+                flag: error_flag(&error) | range_flag(validity.out_of_range(t, s, p)),
+                detail,
+                solved: None,
+            }
         }
     }
 }
-
-/// Counts of each status, for the closing summary.
-type StatusCounts = BTreeMap<&'static str, usize>;
 
 fn write_table(
     args: &SamplesArgs,
     destination: &Path,
     choice: &ConstantChoice,
-) -> Result<StatusCounts, Box<dyn Error>> {
+) -> Result<FlagCounts, Box<dyn Error>> {
     let mut reader = csv::ReaderBuilder::new()
         .flexible(true)
         .from_path(&args.input)
@@ -495,8 +338,8 @@ fn write_table(
         .headers()
         .map_err(|e| format!("{}: cannot read the header row: {e}", args.input.display()))?
         .clone();
-    let columns =
-        locate_columns(&header, args).map_err(|e| format!("{}: {e}", args.input.display()))?;
+    let columns = locate_columns(&header, &args.columns, &args.units)
+        .map_err(|e| format!("{}: {e}", args.input.display()))?;
     let pair = choose_pair(args, &columns).map_err(|e| format!("{}: {e}", args.input.display()))?;
 
     let mut writer = csv::Writer::from_path(destination)
@@ -507,9 +350,9 @@ fn write_table(
     out_header.push("solver_iterations".into());
     writer.write_record(&out_header)?;
 
-    let mut counts = StatusCounts::new();
+    let mut counts = FlagCounts::default();
     for record in reader.records() {
-        // An unreadable row (e.g. invalid UTF-8) becomes an empty bad-input row; the rest go on.
+        // An unreadable row (e.g. invalid UTF-8) becomes an empty missing-input row; the rest go on.
         let (record, outcome) = match record {
             Ok(record) => {
                 let outcome = compute_row(&record, &columns, pair, args.latitude, choice);
@@ -517,16 +360,19 @@ fn write_table(
             }
             Err(e) => (
                 csv::StringRecord::from(vec![""; header.len()]),
-                Err(RowFailure::BadInput(format!("row cannot be read: {e}"))),
+                RowOutcome {
+                    flag: MISSING_INPUT,
+                    detail: format!("row cannot be read: {e}"),
+                    solved: None,
+                },
             ),
         };
-        let (status, detail) = status_of(&outcome);
-        *counts.entry(status).or_default() += 1;
+        counts.record(outcome.flag);
         let mut row: Vec<String> = record.iter().map(str::to_string).collect();
-        row.push(status.to_string());
-        row.push(detail);
-        match &outcome {
-            Ok((inputs, solution)) => {
+        row.push(outcome.status());
+        row.push(outcome.detail.clone());
+        match &outcome.solved {
+            Some((inputs, solution)) => {
                 row.push(format!("{:.3}", inputs.conditions.pressure_dbar));
                 row.extend(
                     RESULT_COLUMNS
@@ -535,7 +381,7 @@ fn write_table(
                 );
                 row.push(solution.iterations.to_string());
             }
-            Err(_) => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
+            None => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
         }
         writer.write_record(&row)?;
     }
@@ -598,11 +444,16 @@ pub fn run(args: &SamplesArgs) -> Result<(), Box<dyn Error>> {
         )
     })?;
 
-    let total: usize = counts.values().sum();
     let mut stdout = std::io::stdout().lock();
-    writeln!(stdout, "{total} samples -> {}", args.output.display())?;
-    for (status, count) in &counts {
-        writeln!(stdout, "  {status:<24}{count}")?;
+    writeln!(
+        stdout,
+        "{} samples -> {}",
+        counts.wet,
+        args.output.display()
+    )?;
+    writeln!(stdout, "  {:<34}{}", "ok", counts.no_flag)?;
+    for bit in FLAG_BITS {
+        writeln!(stdout, "  {:<34}{}", bit.meaning, counts.of(bit.mask))?;
     }
     writeln!(stdout, "constants: {}", choice.describe())?;
     Ok(())

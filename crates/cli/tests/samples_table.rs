@@ -22,6 +22,17 @@ fn read_table(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
     (header, rows)
 }
 
+/// Statuses whose rows carry no computed values.
+fn rows_without_values(status: &str) -> bool {
+    [
+        "input_outside_seawater_limits",
+        "no_physical_solution",
+        "missing_input",
+    ]
+    .iter()
+    .any(|word| status.split(' ').any(|w| w == *word))
+}
+
 fn column(header: &[String], name: &str) -> usize {
     header
         .iter()
@@ -49,15 +60,15 @@ fn every_row_gets_a_status_and_bad_rows_do_not_stop_the_others() {
     let ph_col = column(&header, "ph_total");
     let statuses: Vec<&str> = rows.iter().map(|r| r[status_col].as_str()).collect();
     // Rows 8 and 10 of the synthetic table are broken on purpose (no temperature; negative DIC).
-    assert_eq!(statuses[7], "bad-input");
-    assert_eq!(statuses[9], "bad-input");
+    assert_eq!(statuses[7], "missing_input");
+    assert_eq!(statuses[9], "input_outside_seawater_limits");
     assert!(rows[7][ph_col].is_empty() && rows[9][ph_col].is_empty());
     // Row 9 is at 37.5 °C, above the 35 °C limit of Lueker et al. 2000 (check-values.md).
-    assert_eq!(statuses[8], "outside-validity-range");
+    assert_eq!(statuses[8], "temperature_above_validity_range");
     assert!(rows[8][column(&header, "status_detail")].contains("Lueker"));
     // Every other row has a plausible seawater pH (common practice: 7.3-8.5 in the open ocean).
     for (row, status) in rows.iter().zip(&statuses) {
-        if *status != "bad-input" {
+        if !rows_without_values(status) {
             let ph: f64 = row[ph_col].parse().unwrap();
             assert!((7.3..8.5).contains(&ph), "pH {ph} implausible");
         }
@@ -241,4 +252,89 @@ fn other_pairs_and_renamed_columns_reproduce_the_alkalinity_dic_result() {
         .unwrap();
     // pH printed to 6 decimals: 1e-6 in pH moves TA by well under 0.01 µmol kg-1.
     assert!((ta - 2340.0).abs() < 0.02, "alkalinity {ta}");
+}
+
+/// The status names the same bits as the grid flag (README, "Quality flag"): one row per
+/// reason, each known to breach one published range or to have no solution. Ranges: Lueker et
+/// al. 2000, 2-35 °C and S 19-43 (check-values.md); Mucci 1983 from 5 °C, Millero 1995
+/// pressure corrections to 1000 bar, Perez & Fraga 1987 KF from 9 °C (from memory).
+#[test]
+fn statuses_name_each_reason_and_the_summary_counts_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = dir.path().join("reasons.csv");
+    std::fs::write(
+        &table,
+        "case,temperature,salinity,pressure,alkalinity,dic\n\
+         typical,18,35,100,2300,2050\n\
+         cold-deep,1.5,34.7,4000,2350,2250\n\
+         brine,20,50,0,2300,2000\n\
+         hot,40,35,0,2300,2000\n\
+         trench,6,34.7,10500,2350,2250\n\
+         negative-alkalinity,10,35,0,-5,2000\n\
+         missing-dic,10,35,0,2300,\n\
+         no-solution,10,35,100,49000,0.001\n\
+         kf-only,7,35,0,2300,2100\n",
+    )
+    .unwrap();
+    let out = dir.path().join("reasons.out.csv");
+    let run = acidscape()
+        .arg("samples")
+        .args([&table, Path::new("-o"), &out])
+        .output()
+        .unwrap();
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let (header, rows) = read_table(&out);
+    let (status, detail, ph) = (
+        column(&header, "status"),
+        column(&header, "status_detail"),
+        column(&header, "ph_total"),
+    );
+    let expected = [
+        ("typical", "ok"),
+        ("cold-deep", "temperature_below_validity_range"),
+        ("brine", "salinity_above_validity_range"),
+        ("hot", "temperature_above_validity_range"),
+        ("trench", "pressure_above_validity_range"),
+        ("negative-alkalinity", "input_outside_seawater_limits"),
+        ("missing-dic", "missing_input"),
+        ("no-solution", "no_physical_solution"),
+        ("kf-only", "ok"),
+    ];
+    for (row, (case, want)) in rows.iter().zip(expected) {
+        assert_eq!(row[0], case);
+        assert_eq!(row[status], want, "{case}: {}", row[detail]);
+        // Flags never change values: flagged rows that were solved keep their numbers.
+        assert_eq!(row[ph].is_empty(), rows_without_values(want), "{case}");
+    }
+    // KF's range (Perez & Fraga 1987) is noted but sets no bit: its alkalinity term is negligible.
+    for (row, words) in [
+        (1, "Lueker et al. 2000 (K1, K2)"),
+        (4, "Millero 1995"),
+        (5, "alkalinity"),
+        (6, "dic is missing"),
+        (8, "Perez & Fraga 1987"),
+    ] {
+        assert!(rows[row][detail].contains(words), "{}", rows[row][detail]);
+    }
+
+    let summary = String::from_utf8_lossy(&run.stdout);
+    assert!(summary.contains("9 samples"), "{summary}");
+    for (word, count) in [
+        ("ok", 2),
+        ("temperature_below_validity_range", 1),
+        ("salinity_above_validity_range", 1),
+        ("input_outside_seawater_limits", 1),
+        ("no_physical_solution", 1),
+        ("missing_input", 1),
+    ] {
+        let line = summary
+            .lines()
+            .find(|l| l.split_whitespace().next() == Some(word))
+            .unwrap_or_else(|| panic!("no line for {word} in {summary}"));
+        assert!(line.trim_end().ends_with(&format!(" {count}")), "{line}");
+    }
 }

@@ -16,6 +16,7 @@ mod error;
 mod mapping;
 mod output;
 mod report;
+mod resume_facts;
 mod roles;
 mod run;
 mod source;

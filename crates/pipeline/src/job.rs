@@ -1,21 +1,25 @@
-//! A compute job: checks, then read → solve → write with the three stages overlapping,
-//! durable progress after every time step, and the final rename.
+//! A compute job: checks, then read → solve → write with the three stages overlapping
+//! (see [`crate::stream`]), durable progress after every time step, and the final rename.
+//! Any failure once the partial output holds finished work leaves it resumable.
 
-use crate::cells::{solve_slab, FlagCounts, SlabResult};
 use crate::error::nc;
+use crate::flags::{Flag, FlagCounts};
 use crate::indicators::{IndicatorChoice, OutputField};
+use crate::leftovers::{check_leftovers, remove_leftovers, Leftovers};
 use crate::output::{
-    define_output, partial_path, progress_path, utc_timestamp, write_slab, OutputLayout,
-    OutputMetadata,
+    define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
+    FLAG_VARIABLE,
 };
 use crate::plan::{plan_slabs, SlabPlan};
-use crate::resume::{file_identity, sync_parent, ProgressRecord};
+use crate::repair::restore_cut_tail;
+use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
+use crate::stop::StopRequest;
+use crate::stream::{stream, sync_file, Sink};
 use crate::PipelineError;
 use acidscape_chem::ConstantChoice;
-use acidscape_gridio::{GridError, RawSlab, Run};
+use acidscape_gridio::Run;
 use std::fs;
 use std::path::{Path, PathBuf};
-use std::sync::mpsc::sync_channel;
 use std::time::{Duration, Instant};
 
 /// Receives progress from a running job (always on the thread that called [`run_job`]).
@@ -26,6 +30,8 @@ pub trait Progress {
     fn advance(&mut self, _cells: u64) {}
     /// Called after every time step made durable.
     fn step_finished(&mut self, _steps_done: usize, _steps_total: usize) {}
+    /// A remark the user should see (e.g. where a resumed job starts, and why).
+    fn note(&mut self, _text: &str) {}
     /// Called once when the job ends, successfully or not.
     fn finish(&mut self) {}
 }
@@ -47,10 +53,13 @@ pub struct JobOptions {
     pub command_line: String,
     /// Deflate level 0-9 (0: no compression).
     pub deflate_level: i32,
-    /// Stop (as if interrupted) once this many time steps are finished; for tests.
+    /// Stop (as if interrupted) once this many time steps are finished (0: right after the
+    /// output is set up); for tests.
     pub stop_after_steps: Option<usize>,
     /// Upper limit on rows per slab, below what the budget allows (tests, tuning).
     pub max_rows_per_slab: Option<usize>,
+    /// Set from outside (signal handlers) to stop after the current slab.
+    pub stop: StopRequest,
 }
 
 /// What a finished job did.
@@ -97,13 +106,13 @@ pub fn plan_job(
     if let Some(limit) = options.max_rows_per_slab {
         plan.limit_rows_per_slab(limit);
     }
-    check_output_path(run, options)?;
+    check_output_path(run, options, plan.steps)?;
     Ok((plan, fields))
 }
 
-/// Refuses outputs that would overwrite an input, an existing file (without `--overwrite`),
-/// or an interrupted run's partial file (without `--resume` or `--overwrite`).
-fn check_output_path(run: &Run, options: &JobOptions) -> Result<(), PipelineError> {
+/// Refuses outputs that would overwrite an input, and leftovers the user did not say what
+/// to do with (see [`check_leftovers`]).
+fn check_output_path(run: &Run, options: &JobOptions, steps: usize) -> Result<(), PipelineError> {
     let output = &options.output;
     let refuse = |message: String| PipelineError::Output {
         path: output.clone(),
@@ -134,39 +143,22 @@ fn check_output_path(run: &Run, options: &JobOptions) -> Result<(), PipelineErro
             )));
         }
     }
-    if output.exists() && !options.overwrite && !options.resume {
-        return Err(refuse(
-            "already exists; pass --overwrite to replace it".into(),
-        ));
-    }
-    let partial = partial_path(output);
-    if options.resume {
-        if !partial.exists() || !progress_path(output).exists() {
-            return Err(PipelineError::Resume {
-                path: output.clone(),
-                message: format!(
-                    "no interrupted run to continue ({} or its progress record is missing); run without --resume",
-                    partial.display()
-                ),
-            });
-        }
-    } else if (partial.exists() || progress_path(output).exists()) && !options.overwrite {
-        return Err(refuse(format!(
-            "an interrupted run left {}; pass --resume to continue it or --overwrite to start over",
-            partial.display()
-        )));
-    }
-    Ok(())
+    check_leftovers(output, options.resume, options.overwrite, steps)
 }
 
-/// Lines describing everything that decides the output's values (see [`ProgressRecord`]).
+/// Lines describing everything but the inputs' content that decides the output's values
+/// (see [`ProgressRecord`]).
 fn job_description(run: &Run, plan: &SlabPlan, options: &JobOptions) -> Vec<String> {
     let mut job = vec![format!("acidscape {}", env!("CARGO_PKG_VERSION"))];
-    job.extend(run.input_files().iter().map(|p| file_identity(p)));
     job.push(format!(
         "grid {} {} {} steps {}",
         plan.shape[0], plan.shape[1], plan.shape[2], plan.steps
     ));
+    let mut time = Fnv1a64::default();
+    for value in run.time_values() {
+        time.update(&value.to_le_bytes());
+    }
+    job.push(format!("time axis {:016x}", time.finish()));
     job.push(format!("constants {}", options.constants.describe()));
     job.push(options.indicators.describe());
     job.extend(
@@ -175,6 +167,63 @@ fn job_description(run: &Run, plan: &SlabPlan, options: &JobOptions) -> Vec<Stri
             .map(|(key, value)| format!("processing {key}: {}", value.replace('\n', " "))),
     );
     job
+}
+
+/// Each input file's identity and the time steps that read it.
+fn input_records(run: &Run) -> Result<Vec<InputRecord>, PipelineError> {
+    run.input_files()
+        .iter()
+        .zip(run.steps_of_files())
+        .map(|(path, steps)| InputRecord::of(path, steps))
+        .collect()
+}
+
+/// The progress record a job continues or starts, with a note for the user when a resume
+/// does not start where the interrupted run stopped.
+fn starting_record(
+    run: &Run,
+    plan: &SlabPlan,
+    options: &JobOptions,
+    resuming: bool,
+    progress: &mut dyn Progress,
+) -> Result<ProgressRecord, PipelineError> {
+    let job = job_description(run, plan, options);
+    let inputs = input_records(run)?;
+    let output = &options.output;
+    if !resuming {
+        let mut record = ProgressRecord::new(job, inputs);
+        record.finish_steps(0);
+        return Ok(record);
+    }
+    let refuse = |message: String| PipelineError::Resume {
+        path: output.clone(),
+        message,
+    };
+    let mut record = ProgressRecord::load(&progress_path(output))?;
+    if let Some(why) = record.job_difference(&job) {
+        return Err(refuse(format!(
+            "the options or the run differ from the interrupted run: {why}; rerun with the same options, or start over with --overwrite"
+        )));
+    }
+    let point = record.resume_point(&inputs).map_err(refuse)?;
+    for path in &point.replaced {
+        progress.note(&format!(
+            "{} differs from the file the interrupted run read; it had not been read in full, so it is used as it is now",
+            path.display()
+        ));
+    }
+    if point.step < record.steps_done {
+        progress.note(&format!(
+            "time steps {} to {} read a replaced file and are computed again",
+            point.step + 1,
+            record.steps_done
+        ));
+    }
+    record.steps_done = point.step;
+    record.counts = point.counts;
+    record.checkpoints.retain(|(step, _)| *step <= point.step);
+    record.inputs = inputs;
+    Ok(record)
 }
 
 /// Runs a compute job to completion (or to a clean stop), writing `options.output`.
@@ -187,199 +236,209 @@ pub fn run_job(
     let (plan, fields) = plan_job(run, options)?;
     let output = options.output.clone();
     let partial = partial_path(&output);
-    let progress_file = progress_path(&output);
-    let job = job_description(run, &plan, options);
-
-    let mut record = if options.resume {
-        let record = ProgressRecord::load(&progress_file)?;
-        if let Some(why) = record.job_difference(&job) {
-            return Err(PipelineError::Resume {
-                path: output.clone(),
-                message: format!("the inputs or options differ from the interrupted run: {why}"),
-            });
-        }
-        record
-    } else {
-        ProgressRecord {
-            steps_done: 0,
-            counts: FlagCounts::default(),
-            job,
-        }
+    let record_path = progress_path(&output);
+    let leftovers = Leftovers::of(&output);
+    let resuming = options.resume && leftovers == Leftovers::Interrupted;
+    if options.resume && leftovers == Leftovers::Unstarted {
+        progress.note(
+            "the interrupted run had not finished any time step: starting from the beginning",
+        );
+    }
+    let mut record = starting_record(run, &plan, options, resuming, progress)?;
+    let ended = Ending {
+        partial: &partial,
+        steps_total: plan.steps,
+        resuming,
     };
+    if let Some(signal) = options.stop.requested() {
+        return Err(ended.early(PipelineError::Signal { signal }, record.steps_done));
+    }
     let first_step = record.steps_done.min(plan.steps);
     let mut slabs = plan.slabs(first_step);
-
-    check_writable(&partial, options.resume)?;
+    check_writable(&partial, resuming).map_err(|e| ended.early(e, first_step))?;
     // Read the first slab before any output exists: unreadable inputs fail cleanly.
-    let mut read_time = Duration::ZERO;
+    let read_started = Instant::now();
     let first = match slabs.next() {
-        Some((step, rows)) => {
-            let t = Instant::now();
-            let slab = run.read_raw_slab(step, rows)?;
-            read_time += t.elapsed();
-            Some(slab)
-        }
+        Some((step, rows)) => Some(
+            run.read_raw_slab(step, rows)
+                .map_err(|e| ended.early(e.into(), first_step))?,
+        ),
         None => None,
     };
+    let first_read = read_started.elapsed();
 
-    let mut file = if options.resume {
-        let mut file = netcdf::append(&partial).map_err(|e| PipelineError::Resume {
-            path: output.clone(),
-            message: format!(
-                "{} cannot be opened ({e}); it may have been damaged when the run stopped: start over with --overwrite",
-                partial.display()
-            ),
-        })?;
-        append_history(&mut file, &partial, &options.command_line)?;
-        file
+    let (mut file, layout) = if resuming {
+        let opened = open_partial(&partial, &plan, first_step, &options.command_line, progress);
+        // A partial output that cannot be opened says so itself, with the way out.
+        opened?
     } else {
-        for stale in [&partial, &progress_file] {
-            if stale.exists() {
-                fs::remove_file(stale).map_err(|e| PipelineError::Output {
-                    path: stale.clone(),
-                    message: format!("cannot remove the interrupted run's file: {e}"),
-                })?;
-            }
-        }
-        nc(netcdf::create(&partial), &partial, || {
-            "creating the file (is the directory writable?)".into()
-        })?
+        create_partial(run, &plan, &fields, options, &partial)?
     };
-    let layout = if options.resume {
-        OutputLayout::from_file(&file, &partial, plan.shape[0], plan.steps)?
-    } else {
-        let meta = OutputMetadata {
-            command_line: options.command_line.clone(),
-            constants: options.constants,
-            indicators: options.indicators.clone(),
-            deflate_level: options.deflate_level,
-        };
-        let layout = define_output(&mut file, &partial, run, &plan, &fields, &meta)?;
-        nc(file.sync(), &partial, || "flushing definitions".into())?;
-        record.save(&progress_file)?;
-        layout
-    };
+    record
+        .save(&record_path)
+        .map_err(|e| ended.kept(e, first_step))?;
+    if options.stop_after_steps == Some(0) {
+        return Err(ended.kept(PipelineError::StopHook, 0));
+    }
 
     let total_cells = plan.cells_per_step() * plan.steps as u64;
     progress.begin(total_cells, plan.cells_per_step() * first_step as u64);
-    let mut cells_processed = 0u64;
-    let mut write_time = Duration::ZERO;
-    let constants = options.constants;
-    let fields_ref = &fields;
-
-    let outcome = std::thread::scope(|scope| -> Result<(Duration, Duration), PipelineError> {
-        // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
-        // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
-        let (input_tx, input_rx) = sync_channel::<Result<RawSlab, GridError>>(1);
-        let (result_tx, result_rx) = sync_channel::<Result<SlabResult, GridError>>(1);
-        let reader = scope.spawn(move || {
-            let mut busy = Duration::ZERO;
-            if let Some(slab) = first {
-                if input_tx.send(Ok(slab)).is_err() {
-                    return busy;
-                }
-            }
-            for (step, rows) in slabs {
-                let t = Instant::now();
-                let slab = run.read_raw_slab(step, rows);
-                busy += t.elapsed();
-                let failed = slab.is_err();
-                if input_tx.send(slab).is_err() || failed {
-                    break;
-                }
-            }
-            busy
-        });
-        let solver = scope.spawn(move || {
-            let mut busy = Duration::ZERO;
-            for item in input_rx {
-                let item = item.map(|inputs| {
-                    let t = Instant::now();
-                    let result = solve_slab(&run.convert_slab(inputs), fields_ref, &constants);
-                    busy += t.elapsed();
-                    result
-                });
-                let failed = item.is_err();
-                if result_tx.send(item).is_err() || failed {
-                    break;
-                }
-            }
-            busy
-        });
-
-        let written = (|| -> Result<(), PipelineError> {
-            for item in result_rx {
-                let result = item?;
-                let t = Instant::now();
-                write_slab(&mut file, &partial, &layout, &fields, &result)?;
-                write_time += t.elapsed();
-                let cells = result.flags.len() as u64;
-                cells_processed += cells;
-                record.counts += result.counts;
-                progress.advance(cells);
-                if result.rows.end == plan.shape[1] {
-                    // A finished time step: make it durable, then record it.
-                    let t = Instant::now();
-                    nc(file.sync(), &partial, || {
-                        format!("flushing time step {}", result.step)
-                    })?;
-                    sync_file(&partial)?;
-                    record.steps_done = result.step + 1;
-                    record.save(&progress_file)?;
-                    write_time += t.elapsed();
-                    progress.step_finished(record.steps_done, plan.steps);
-                    if options.stop_after_steps == Some(record.steps_done)
-                        && record.steps_done < plan.steps
-                    {
-                        return Err(PipelineError::Stopped {
-                            steps_done: record.steps_done,
-                            steps_total: plan.steps,
-                            partial: partial.clone(),
-                        });
-                    }
-                }
-            }
-            Ok(())
-        })();
-        let read_busy = reader
-            .join()
-            .map_err(|_| PipelineError::Internal("the reader thread panicked".into()))?;
-        let solve_busy = solver
-            .join()
-            .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
-        written.map(|()| (read_busy, solve_busy))
-    });
+    let sink = Sink {
+        file: &mut file,
+        partial: &partial,
+        layout: &layout,
+        record: &mut record,
+        record_path: &record_path,
+    };
+    let streamed = stream(run, &plan, &fields, options, first, slabs, sink, progress);
     progress.finish();
-    let (read_busy, compute) = outcome?;
+    let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
     if record.steps_done < plan.steps {
         return Err(PipelineError::Internal(format!(
             "only {} of {} time steps were written",
             record.steps_done, plan.steps
         )));
     }
-
-    nc(file.close(), &partial, || "closing the file".into())?;
-    sync_file(&partial)?;
-    fs::rename(&partial, &output).map_err(|e| PipelineError::Output {
-        path: output.clone(),
-        message: format!(
-            "cannot rename the finished {} into place: {e}",
-            partial.display()
-        ),
-    })?;
-    let _ = fs::remove_file(&progress_file);
+    finish_output(file, &partial, &output).map_err(|e| ended.kept(e, plan.steps))?;
+    let _ = fs::remove_file(&record_path);
     sync_parent(&output);
 
     Ok(JobSummary {
         output,
         plan,
         first_step,
-        cells_processed,
+        cells_processed: times.cells,
         counts: record.counts,
         wall: started.elapsed(),
-        read: read_time + read_busy,
-        compute,
-        write: write_time,
+        read: first_read + times.read,
+        compute: times.compute,
+        write: times.write,
+    })
+}
+
+/// How a job that ends early reports it: once the partial output holds finished work (or
+/// when resuming one), the cause comes with what is kept and how to go on.
+struct Ending<'a> {
+    partial: &'a Path,
+    steps_total: usize,
+    resuming: bool,
+}
+
+impl Ending<'_> {
+    /// An end that leaves a resumable partial output with `steps_done` finished steps.
+    fn kept(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+        PipelineError::Interrupted {
+            cause: Box::new(cause),
+            steps_done,
+            steps_total: self.steps_total,
+            partial: self.partial.to_path_buf(),
+        }
+    }
+
+    /// An end before the output is opened: only a resumed job has kept work to speak of.
+    fn early(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+        if self.resuming {
+            self.kept(cause, steps_done)
+        } else {
+            cause
+        }
+    }
+}
+
+/// Creates and defines a new partial output, after removing what an earlier run left. A
+/// failure removes the half-defined file: nothing of value is lost.
+fn create_partial(
+    run: &Run,
+    plan: &SlabPlan,
+    fields: &[OutputField],
+    options: &JobOptions,
+    partial: &Path,
+) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+    remove_leftovers(&options.output)?;
+    let defined = (|| {
+        let mut file = nc(netcdf::create(partial), partial, || {
+            "creating the file (is the directory writable?)".into()
+        })?;
+        let meta = OutputMetadata {
+            command_line: options.command_line.clone(),
+            constants: options.constants,
+            indicators: options.indicators.clone(),
+            deflate_level: options.deflate_level,
+        };
+        let layout = define_output(&mut file, partial, run, plan, fields, &meta)?;
+        nc(file.sync(), partial, || "flushing definitions".into())?;
+        sync_file(partial)?;
+        Ok((file, layout))
+    })();
+    defined.map_err(|e| {
+        let _ = fs::remove_file(partial);
+        let cause = match e {
+            PipelineError::Grid(grid) => grid.to_string(),
+            PipelineError::Netcdf { what, source, .. } => format!("{what}: {source}"),
+            other => return other,
+        };
+        PipelineError::Output {
+            path: partial.to_path_buf(),
+            message: format!(
+                "setting up the output failed ({cause}; a full disk, a quota or a file-size limit are common causes); nothing was kept: run the same command again once the cause is dealt with"
+            ),
+        }
+    })
+}
+
+/// Opens an interrupted run's partial output to continue it after `steps_done` steps,
+/// mending it first when a failed write cut it short (see [`restore_cut_tail`]).
+fn open_partial(
+    partial: &Path,
+    plan: &SlabPlan,
+    steps_done: usize,
+    command_line: &str,
+    progress: &mut dyn Progress,
+) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+    let damaged = |why: String| PipelineError::Resume {
+        path: partial.to_path_buf(),
+        message: format!(
+            "{why}; it may have been damaged when the run stopped: start over with --overwrite"
+        ),
+    };
+    let mended = restore_cut_tail(partial)?;
+    if mended {
+        progress.note(&format!(
+            "{} was cut short by a failed write; its tail is filled in and the unfinished time steps are written again",
+            partial.display()
+        ));
+    }
+    let mut file =
+        netcdf::append(partial).map_err(|e| damaged(format!("cannot be opened ({e})")))?;
+    let layout = OutputLayout::from_file(&file, partial, plan.shape[0], plan.steps)?;
+    if mended && steps_done > 0 {
+        // The finished steps must read back before any work is built on them.
+        let last = steps_done - 1;
+        let extents = layout.extents(last, 0..plan.shape[1], plan.shape);
+        let flag = file
+            .variable(FLAG_VARIABLE)
+            .ok_or_else(|| damaged(format!("it has no variable '{FLAG_VARIABLE}'")))?;
+        flag.get_values::<Flag, _>(extents)
+            .map_err(|e| damaged(format!("time step {} cannot be read back ({e})", last + 1)))?;
+    }
+    append_history(&mut file, partial, command_line)?;
+    Ok((file, layout))
+}
+
+/// Closes the finished partial output, makes it durable and renames it into place.
+fn finish_output(
+    file: netcdf::FileMut,
+    partial: &Path,
+    output: &Path,
+) -> Result<(), PipelineError> {
+    nc(file.close(), partial, || "closing the file".into())?;
+    sync_file(partial)?;
+    fs::rename(partial, output).map_err(|e| PipelineError::Output {
+        path: output.to_path_buf(),
+        message: format!(
+            "cannot rename the finished {} into place: {e}",
+            partial.display()
+        ),
     })
 }
 
@@ -407,15 +466,6 @@ fn check_writable(partial: &Path, resume: bool) -> Result<(), PipelineError> {
         }
     }
     Ok(())
-}
-
-fn sync_file(path: &Path) -> Result<(), PipelineError> {
-    fs::File::open(path)
-        .and_then(|f| f.sync_all())
-        .map_err(|e| PipelineError::Output {
-            path: path.to_path_buf(),
-            message: format!("cannot flush to disk: {e}"),
-        })
 }
 
 /// Adds the resuming command line to the history attribute.

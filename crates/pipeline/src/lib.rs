@@ -8,15 +8,21 @@
 
 pub mod cells;
 mod error;
+pub mod flags;
 pub mod indicators;
 pub mod job;
+mod leftovers;
 pub mod memory;
 pub mod output;
 pub mod plan;
+mod repair;
 pub mod resume;
+pub mod stop;
+mod stream;
 
-pub use cells::{CellFlag, FlagCounts, FLAG_FILL, FLAG_MEANINGS, FLAG_VALUES, VALUE_FILL};
+pub use cells::VALUE_FILL;
 pub use error::PipelineError;
+pub use flags::{Flag, FlagBit, FlagCounts, FLAG_BITS, FLAG_FILL};
 pub use indicators::{
     parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale,
 };
@@ -24,3 +30,4 @@ pub use job::{plan_job, run_job, JobOptions, JobSummary, NoProgress, Progress};
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};
 pub use plan::{plan_slabs, SlabPlan};
+pub use stop::{signal_name, StopRequest};

@@ -1,7 +1,8 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
-use crate::cells::{SlabResult, FLAG_FILL, FLAG_MEANINGS, FLAG_VALUES, VALUE_FILL};
+use crate::cells::{SlabResult, VALUE_FILL};
 use crate::error::nc;
+use crate::flags::{flag_masks, flag_meanings, Flag, ALL_FLAG_BITS, FLAG_BITS, FLAG_FILL};
 use crate::indicators::{IndicatorChoice, OutputField};
 use crate::plan::SlabPlan;
 use crate::PipelineError;
@@ -179,55 +180,7 @@ pub fn define_output(
         })?;
     }
 
-    let mut flag = nc(file.add_variable::<i8>(FLAG_VARIABLE, &dims), path, || {
-        format!("defining variable '{FLAG_VARIABLE}'")
-    })?;
-    let what = || format!("setting up variable '{FLAG_VARIABLE}'");
-    nc(flag.set_chunking(&chunk), path, what)?;
-    if meta.deflate_level > 0 {
-        nc(flag.set_compression(meta.deflate_level, true), path, what)?;
-    }
-    nc(flag.set_fill_value(FLAG_FILL), path, what)?;
-    nc(
-        flag.put_attribute("standard_name", "status_flag"),
-        path,
-        what,
-    )?;
-    nc(
-        flag.put_attribute("long_name", "Quality of the computed indicators"),
-        path,
-        what,
-    )?;
-    nc(
-        flag.put_attribute("flag_values", FLAG_VALUES.to_vec()),
-        path,
-        what,
-    )?;
-    nc(
-        flag.put_attribute("flag_meanings", FLAG_MEANINGS),
-        path,
-        what,
-    )?;
-    nc(
-        flag.put_attribute("valid_range", vec![FLAG_VALUES[0], FLAG_VALUES[3]]),
-        path,
-        what,
-    )?;
-    nc(flag.put_attribute("comment", FLAG_COMMENT), path, what)?;
-    if let Some(coordinates) = &axes.coordinates_attr {
-        nc(
-            flag.put_attribute("coordinates", coordinates.as_str()),
-            path,
-            what,
-        )?;
-    }
-    if let Some(grid_mapping) = &axes.grid_mapping {
-        nc(
-            flag.put_attribute("grid_mapping", grid_mapping.as_str()),
-            path,
-            what,
-        )?;
-    }
+    define_flag(file, path, &dims, &chunk, &axes, meta)?;
 
     for (name, value) in global_attributes(run, meta) {
         nc(file.add_attribute(&name, value), path, || {
@@ -261,12 +214,72 @@ fn input_cell_methods(files: &[PathBuf]) -> Option<String> {
     found
 }
 
-const FLAG_COMMENT: &str = "computed: solved with every input inside the constants' validity ranges; \
-outside_validity_range: solved, but some input lies outside the published range of a constant that matters \
-for the indicators (K0, K1, K2, KB, KW, KS, phosphate and silicate constants, Ksp, pressure correction; \
-not KF, whose alkalinity term stays below 0.01 umol kg-1) - values kept, use with care; \
-no_solution: the inputs admit no physical solution (indicators missing); \
-missing_input: a wet cell with some input missing (indicators missing). Land is _FillValue.";
+/// Defines the quality flag: a CF bit field (`flag_masks`, `flag_meanings`; CF 1.10 section 3.5).
+fn define_flag(
+    file: &mut FileMut,
+    path: &Path,
+    dims: &[&str],
+    chunk: &[usize],
+    axes: &acidscape_gridio::OutputAxes,
+    meta: &OutputMetadata,
+) -> Result<(), PipelineError> {
+    let mut flag = nc(file.add_variable::<Flag>(FLAG_VARIABLE, dims), path, || {
+        format!("defining variable '{FLAG_VARIABLE}'")
+    })?;
+    let what = || format!("setting up variable '{FLAG_VARIABLE}'");
+    nc(flag.set_chunking(chunk), path, what)?;
+    if meta.deflate_level > 0 {
+        nc(flag.set_compression(meta.deflate_level, true), path, what)?;
+    }
+    nc(flag.set_fill_value(FLAG_FILL), path, what)?;
+    let mut texts = vec![
+        ("standard_name", "status_flag".to_string()),
+        (
+            "long_name",
+            "Why the computed indicators deserve care (bit field; 0: none)".to_string(),
+        ),
+        ("flag_meanings", flag_meanings()),
+        ("comment", flag_comment(&meta.constants)),
+    ];
+    if let Some(coordinates) = &axes.coordinates_attr {
+        texts.push(("coordinates", coordinates.clone()));
+    }
+    if let Some(grid_mapping) = &axes.grid_mapping {
+        texts.push(("grid_mapping", grid_mapping.clone()));
+    }
+    for (name, value) in texts {
+        nc(flag.put_attribute(name, value), path, what)?;
+    }
+    nc(flag.put_attribute("flag_masks", flag_masks()), path, what)?;
+    nc(
+        flag.put_attribute("valid_range", vec![0, ALL_FLAG_BITS]),
+        path,
+        what,
+    )?;
+    Ok(())
+}
+
+/// What each bit means, with the published limits of the chosen constants behind it.
+fn flag_comment(constants: &ConstantChoice) -> String {
+    let bits: Vec<String> = FLAG_BITS
+        .iter()
+        .map(|bit| {
+            let limits = bit.limits(constants);
+            if limits.is_empty() {
+                format!("{} ({}): {}", bit.meaning, bit.mask, bit.note)
+            } else {
+                format!("{} ({}): {}: {limits}", bit.meaning, bit.mask, bit.note)
+            }
+        })
+        .collect();
+    format!(
+        "Bits are added: test a bit with (quality_flag AND mask) != 0. 0: computed, every constant \
+         inside its published range. Flags never change a value. {}. Range bits describe the \
+         cell's temperature, salinity and pressure whenever they are known; KF's range sets no bit \
+         (its alkalinity term stays below 0.01 umol kg-1). Land is _FillValue (-1).",
+        bits.join("; ")
+    )
+}
 
 fn global_attributes(run: &Run, meta: &OutputMetadata) -> Vec<(String, String)> {
     let inputs = run.input_files();

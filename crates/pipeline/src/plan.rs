@@ -6,7 +6,7 @@
 //!   alkalinity, phosphate, silicate, density, depth) = 72 B per cell, plus an allowance
 //!   of 72 B per cell for the reader's own scratch while it converts units; up to
 //!   [`INPUT_SLABS_IN_FLIGHT`] slabs exist at once (one being read, one queued, one being solved);
-//! - outputs: 4 B per cell per indicator (f32) + 1 B quality flag; up to
+//! - outputs: 4 B per cell per indicator (f32) + 2 B quality flag (i16); up to
 //!   [`OUTPUT_SLABS_IN_FLIGHT`] at once (one being filled, one queued, one being written);
 //! - a fixed [`FIXED_OVERHEAD_BYTES`] for the libraries, HDF5 chunk caches and threads.
 
@@ -127,7 +127,8 @@ impl fmt::Display for SlabPlan {
 
 fn bytes_per_cell(output_fields: usize) -> u64 {
     INPUT_SLABS_IN_FLIGHT * (INPUT_BYTES_PER_CELL + READ_SCRATCH_BYTES_PER_CELL)
-        + OUTPUT_SLABS_IN_FLIGHT * (4 * output_fields as u64 + 1)
+        + OUTPUT_SLABS_IN_FLIGHT
+            * (4 * output_fields as u64 + std::mem::size_of::<crate::flags::Flag>() as u64)
 }
 
 /// Splits a run of `shape` = [levels, rows, cols] and `steps` time steps into slabs that

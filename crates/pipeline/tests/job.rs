@@ -4,38 +4,15 @@
 
 mod common;
 
-use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair};
-use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
+use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, OutOfRange};
+use acidscape_gridio::Run;
 use acidscape_pipeline::{
-    partial_path, progress_path, run_job, ConcentrationUnit, Indicator, IndicatorChoice,
-    JobOptions, NoProgress, PhScale, PipelineError, FLAG_FILL, VALUE_FILL,
+    partial_path, progress_path, run_job, IndicatorChoice, JobOptions, NoProgress, PipelineError,
+    FLAG_BITS, FLAG_FILL, VALUE_FILL,
 };
 use common::*;
-use std::path::{Path, PathBuf};
-
-fn open_run(paths: &[PathBuf]) -> Run {
-    Run::open(&RunSpec {
-        inputs: paths.iter().map(|p| p.display().to_string()).collect(),
-        mapping: VariableMapping::default(),
-        density: DensityChoice::InSitu,
-    })
-    .unwrap()
-}
-
-fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
-    JobOptions {
-        output: output.to_path_buf(),
-        overwrite: false,
-        resume: false,
-        memory_budget_bytes: 1 << 30,
-        constants: ConstantChoice::default(),
-        indicators,
-        command_line: "acidscape compute (test)".into(),
-        deflate_level: 4,
-        stop_after_steps: None,
-        max_rows_per_slab: None,
-    }
-}
+use std::collections::{BTreeMap, BTreeSet};
+use std::path::Path;
 
 /// The message of a job that must fail.
 fn refusal(run: &Run, options: &JobOptions) -> String {
@@ -44,16 +21,52 @@ fn refusal(run: &Run, options: &JobOptions) -> String {
         .to_string()
 }
 
-fn every_indicator() -> IndicatorChoice {
-    IndicatorChoice {
-        indicators: Indicator::ALL.to_vec(),
-        ph_scales: vec![PhScale::Total, PhScale::Free],
-        concentration_unit: ConcentrationUnit::MolPerCubicMetre,
-    }
+/// Each bit's meaning as the output file declares it (`flag_masks`, `flag_meanings`), so the
+/// flags are decoded as a user of the file would decode them (CF 1.10 section 3.5).
+fn declared_bits(path: &Path) -> Vec<(i16, String)> {
+    let file = netcdf::open(path).unwrap();
+    let flag = file.variable("quality_flag").unwrap();
+    let masks = match flag.attribute_value("flag_masks") {
+        Some(Ok(netcdf::AttributeValue::Shorts(m))) => m,
+        other => panic!("flag_masks is {other:?}"),
+    };
+    let meanings = match flag.attribute_value("flag_meanings") {
+        Some(Ok(netcdf::AttributeValue::Str(m))) => m,
+        other => panic!("flag_meanings is {other:?}"),
+    };
+    let words: Vec<String> = meanings.split(' ').map(String::from).collect();
+    assert_eq!(words.len(), masks.len());
+    masks.into_iter().zip(words).collect()
 }
 
+fn decode(flag: i16, bits: &[(i16, String)]) -> BTreeSet<String> {
+    bits.iter()
+        .filter(|(mask, _)| flag & mask != 0)
+        .map(|(_, meaning)| meaning.clone())
+        .collect()
+}
+
+fn set(meanings: &[&str]) -> BTreeSet<String> {
+    meanings.iter().map(|m| m.to_string()).collect()
+}
+
+/// The chemistry's directions and the words the output must use for them.
+const DIRECTIONS: [(u8, &str); 5] = [
+    (
+        OutOfRange::TEMPERATURE_BELOW,
+        "temperature_below_validity_range",
+    ),
+    (
+        OutOfRange::TEMPERATURE_ABOVE,
+        "temperature_above_validity_range",
+    ),
+    (OutOfRange::SALINITY_BELOW, "salinity_below_validity_range"),
+    (OutOfRange::SALINITY_ABOVE, "salinity_above_validity_range"),
+    (OutOfRange::PRESSURE_ABOVE, "pressure_above_validity_range"),
+];
+
 #[test]
-fn output_equals_the_solver_and_flags_mark_the_bad_cells() {
+fn output_equals_the_solver_and_flags_say_why() {
     let dir = tempfile::tempdir().unwrap();
     let inputs = write_cmip_style_run(dir.path(), 2, 2);
     let run = open_run(&inputs);
@@ -64,36 +77,56 @@ fn output_equals_the_solver_and_flags_mark_the_bad_cells() {
     assert!(!partial_path(&output).exists() && !progress_path(&output).exists());
 
     let fields = choice.fields().unwrap();
-    let flags = read_i8(&output, "quality_flag");
+    let flags = read_i16(&output, "quality_flag");
+    let bits = declared_bits(&output);
     let cells = LEVELS * ROWS * COLS;
     assert_eq!(flags.len(), 2 * cells);
-    let mut computed = 0;
+    let stored: Vec<Vec<f32>> = fields.iter().map(|f| read_f32(&output, f.name)).collect();
+    let mut seen = BTreeMap::<String, u64>::new();
     for step in 0..2 {
         let slab = run.read_slab(step, 0..ROWS).unwrap();
-        let stored: Vec<Vec<f32>> = fields.iter().map(|f| read_f32(&output, f.name)).collect();
         for cell in 0..cells {
             let at = step * cells + cell;
             let (level, row, col) = (cell / (ROWS * COLS), (cell / COLS) % ROWS, cell % COLS);
             let flag = flags[at];
-            if (row, col) == LAND_COLUMN {
+            let rock = level == 3 && (row, col) != TRENCH_COLUMN;
+            if (row, col) == LAND_COLUMN || rock {
                 assert_eq!(flag, FLAG_FILL, "land at {cell}");
                 assert!(stored.iter().all(|v| v[at] == VALUE_FILL));
                 continue;
             }
-            if (level, row, col) == MISSING_DIC_CELL {
-                assert_eq!(flag, 3, "missing DIC -> missing_input");
-                assert!(stored.iter().all(|v| v[at] == VALUE_FILL));
-                continue;
+            let meanings = decode(flag, &bits);
+            for meaning in &meanings {
+                *seen.entry(meaning.clone()).or_default() += 1;
             }
-            if (level, row, col) == NEGATIVE_ALKALINITY_CELL {
-                assert_eq!(flag, 2, "negative alkalinity -> no_solution");
+            let (t, s, p) = (
+                slab.temperature_c[cell],
+                slab.salinity[cell],
+                slab.pressure_dbar[cell],
+            );
+            let ranges: BTreeSet<String> = DIRECTIONS
+                .iter()
+                .filter(|(bit, _)| {
+                    OutOfRange::assess(t, s, p, &ConstantChoice::default()).contains(*bit)
+                })
+                .map(|(_, meaning)| meaning.to_string())
+                .collect();
+            let without_values = [
+                (MISSING_DIC_CELL, "missing_input"),
+                (NEGATIVE_ALKALINITY_CELL, "input_outside_seawater_limits"),
+                (NO_SOLUTION_CELL, "no_physical_solution"),
+            ];
+            if let Some((_, why)) = without_values.iter().find(|(c, _)| *c == (level, row, col)) {
+                let mut expected = ranges.clone();
+                expected.insert(why.to_string());
+                assert_eq!(meanings, expected, "step {step} cell {cell}");
                 assert!(stored.iter().all(|v| v[at] == VALUE_FILL));
                 continue;
             }
             let conditions = Conditions {
-                temperature_c: slab.temperature_c[cell],
-                salinity: slab.salinity[cell],
-                pressure_dbar: slab.pressure_dbar[cell],
+                temperature_c: t,
+                salinity: s,
+                pressure_dbar: p,
                 phosphate: slab.phosphate[cell],
                 silicate: slab.silicate[cell],
             };
@@ -102,6 +135,7 @@ fn output_equals_the_solver_and_flags_mark_the_bad_cells() {
                 dic: slab.dic[cell],
             };
             let solution = solve(pair, &conditions, &ConstantChoice::default()).unwrap();
+            // Flags never change a value: flagged cells hold the solver's numbers too.
             for (field, values) in fields.iter().zip(&stored) {
                 let expected = field.value(&solution, slab.density_kg_m3[cell]) as f32;
                 assert_eq!(
@@ -110,25 +144,56 @@ fn output_equals_the_solver_and_flags_mark_the_bad_cells() {
                     field.name
                 );
             }
-            let expected_flag = if solution.validity.is_material() {
-                1
-            } else {
-                0
-            };
-            assert_eq!(flag, expected_flag, "flag at step {step} cell {cell}");
-            if [HOT_CELL, SALTY_CELL].contains(&(level, row, col)) {
-                assert_eq!(flag, 1, "40 °C or S = 50 is outside the constants' ranges");
+            assert_eq!(meanings, ranges, "flag at step {step} cell {cell}");
+            // The cells made to breach one range each (Lueker et al. 2000: 2-35 °C, S 19-43;
+            // Millero 1995 pressure corrections to 1000 bar).
+            let cell_id = (level, row, col);
+            if cell_id == HOT_CELL {
+                assert_eq!(meanings, set(&["temperature_above_validity_range"]));
             }
-            computed += usize::from(flag == 0);
+            if cell_id == SALTY_CELL {
+                assert_eq!(meanings, set(&["salinity_above_validity_range"]));
+            }
+            if level == 2 {
+                assert!(
+                    meanings.contains("temperature_below_validity_range"),
+                    "{cell_id:?} is below 5 °C"
+                );
+            }
+            if (row, col) == TRENCH_COLUMN && level == 3 {
+                assert_eq!(
+                    meanings,
+                    set(&[
+                        "temperature_below_validity_range",
+                        "pressure_above_validity_range"
+                    ])
+                );
+            }
         }
     }
-    assert!(computed > 0);
     let counts = summary.counts;
-    assert_eq!(counts.land, 2 * LEVELS as u64);
-    assert_eq!(counts.missing_input, 2);
-    assert_eq!(counts.no_solution, 2);
-    assert_eq!(counts.computed as usize, computed);
-    assert_eq!(counts.wet() + counts.land, 2 * cells as u64);
+    assert_eq!(counts.land, 2 * (LEVELS + ROWS * COLS - 2) as u64);
+    assert_eq!(counts.land + counts.wet, 2 * cells as u64);
+    assert_eq!(
+        counts.no_flag,
+        flags.iter().filter(|f| **f == 0).count() as u64
+    );
+    assert!(counts.no_flag > 0);
+    for bit in FLAG_BITS {
+        let in_file = seen.get(bit.meaning).copied().unwrap_or(0);
+        assert_eq!(counts.of(bit.mask), in_file, "{}", bit.meaning);
+    }
+    assert_eq!(counts.of(acidscape_pipeline::flags::MISSING_INPUT), 2);
+    assert_eq!(
+        counts.of(acidscape_pipeline::flags::NO_PHYSICAL_SOLUTION),
+        2
+    );
+    assert_eq!(
+        counts.of(acidscape_pipeline::flags::INPUT_OUTSIDE_SEAWATER_LIMITS),
+        2
+    );
+    assert_eq!(counts.of(acidscape_pipeline::flags::PRESSURE_ABOVE), 2);
+    assert_eq!(counts.with_values(), counts.wet - 6);
 }
 
 #[test]
@@ -167,7 +232,38 @@ fn output_carries_cf_attributes() {
     assert_eq!(text(Some("quality_flag"), "standard_name"), "status_flag");
     assert_eq!(
         text(Some("quality_flag"), "flag_meanings"),
-        "computed outside_validity_range no_solution missing_input"
+        "temperature_below_validity_range temperature_above_validity_range \
+         salinity_below_validity_range salinity_above_validity_range \
+         pressure_above_validity_range input_outside_seawater_limits no_physical_solution \
+         missing_input"
+    );
+    // A bit field: one distinct bit per meaning, a signed type CF 1.8 allows, a fill outside
+    // the valid range of bit combinations.
+    let flag = file.variable("quality_flag").unwrap();
+    assert_eq!(
+        flag.vartype(),
+        netcdf::types::NcVariableType::Int(netcdf::types::IntType::I16)
+    );
+    assert_eq!(
+        declared_bits(&output)
+            .iter()
+            .map(|(m, _)| *m)
+            .collect::<Vec<_>>(),
+        [1, 2, 4, 8, 16, 32, 64, 128]
+    );
+    assert!(matches!(
+        flag.attribute_value("_FillValue"),
+        Some(Ok(netcdf::AttributeValue::Short(-1)))
+    ));
+    assert!(matches!(
+        flag.attribute_value("valid_range"),
+        Some(Ok(netcdf::AttributeValue::Shorts(r))) if r == [0, 255]
+    ));
+    assert!(flag.attribute_value("flag_values").is_none());
+    let comment = text(Some("quality_flag"), "comment");
+    assert!(
+        comment.contains("below 2 °C (Lueker et al. 2000: K1, K2)"),
+        "{comment}"
     );
     assert_eq!(
         text(Some("ph"), "cell_methods"),
@@ -191,8 +287,22 @@ fn an_interrupted_job_resumes_to_identical_values() {
     stopping.max_rows_per_slab = Some(3);
     let err = run_job(&run, &stopping, &mut NoProgress).unwrap_err();
     assert!(
-        matches!(err, PipelineError::Stopped { steps_done: 2, .. }),
+        matches!(
+            err,
+            PipelineError::Interrupted {
+                steps_done: 2,
+                steps_total: 4,
+                ..
+            }
+        ),
         "{err}"
+    );
+    let message = err.to_string();
+    assert!(
+        message.contains("2 of 4 time steps are finished")
+            && message.contains("--resume")
+            && message.contains("--overwrite"),
+        "{message}"
     );
     assert!(
         !pieces.exists(),
@@ -210,21 +320,7 @@ fn an_interrupted_job_resumes_to_identical_values() {
     let resumed = run_job(&run, &resuming, &mut NoProgress).unwrap();
     assert_eq!(resumed.first_step, 2);
     assert_eq!(resumed.counts, full.counts);
-    for field in every_indicator().fields().unwrap() {
-        let a: Vec<u32> = read_f32(&whole, field.name)
-            .iter()
-            .map(|v| v.to_bits())
-            .collect();
-        let b: Vec<u32> = read_f32(&pieces, field.name)
-            .iter()
-            .map(|v| v.to_bits())
-            .collect();
-        assert_eq!(a, b, "{} differs after resume", field.name);
-    }
-    assert_eq!(
-        read_i8(&whole, "quality_flag"),
-        read_i8(&pieces, "quality_flag")
-    );
+    assert_same_output(&whole, &pieces);
 }
 
 #[test]
