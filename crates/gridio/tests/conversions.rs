@@ -4,6 +4,7 @@
 use acidscape_gridio::calendar::{
     join_time_parts, Calendar, CalendarError, DateTime, TimeAxis, TimePart,
 };
+use acidscape_gridio::sampling::{check_sampling, Sampling};
 use acidscape_gridio::seawater::{
     absolute_from_practical, adiabatic_lapse_rate_ipts68, density_from_conservative,
     depth_from_sea_pressure, in_situ_density, in_situ_from_conservative, in_situ_from_potential,
@@ -424,10 +425,12 @@ fn joining_monthly_noleap_files_finds_gaps_and_overlaps() {
     let joined = join_time_parts(&parts).unwrap();
     assert_eq!(joined.part_order, vec![1, 2, 0]);
     assert_eq!(joined.values.len(), 36);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.sampling, Sampling::Months(1));
     assert!(
-        joined.gaps.is_empty(),
+        check.breaks.is_empty(),
         "28-31 day months are not gaps: {:?}",
-        joined.gaps
+        check.breaks
     );
     // First value: 14.5 days after 1850-01-01 (15 January, 12:00).
     close(joined.values[0], 14.5, 1e-12, "mid-January");
@@ -446,10 +449,11 @@ fn joining_monthly_noleap_files_finds_gaps_and_overlaps() {
         },
     ])
     .unwrap();
-    assert_eq!(joined.gaps.len(), 1);
-    let gap = &joined.gaps[0];
-    assert_eq!(a.to_datetime(gap.after).unwrap().month, 7);
-    assert!(gap.after - gap.before > 58.0);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.breaks.len(), 1);
+    let after = joined.values[check.breaks[0].index];
+    assert_eq!(a.to_datetime(after).unwrap().month, 7);
+    assert!(check.breaks[0].found.contains("2 calendar month"));
 
     // The same year twice is an overlap, named by file.
     let err = join_time_parts(&[
@@ -491,7 +495,7 @@ fn joining_monthly_360_day_files() {
         },
     ])
     .unwrap();
-    assert!(joined.gaps.is_empty());
+    assert!(check_sampling(&a, &joined.values, None).breaks.is_empty());
     // Every step is exactly 30 days in the 360_day calendar.
     assert!(joined
         .values
@@ -510,14 +514,16 @@ fn joining_monthly_360_day_files() {
         },
     ])
     .unwrap();
-    assert_eq!(joined.gaps.len(), 1);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.sampling, Sampling::Months(1));
+    assert_eq!(check.breaks.len(), 1);
+    let i = check.breaks[0].index;
     close(
-        joined.gaps[0].after - joined.gaps[0].before,
+        joined.values[i] - joined.values[i - 1],
         60.0,
         1e-12,
         "gap length",
     );
-    close(joined.gaps[0].median_step, 30.0, 1e-12, "median step");
 }
 
 // ---------------------------------------------------------------- seawater

@@ -316,6 +316,7 @@ pub fn spec(inputs: Vec<String>) -> acidscape_gridio::RunSpec {
         inputs,
         mapping: Default::default(),
         density: acidscape_gridio::DensityChoice::Reference(1025.0),
+        ..Default::default()
     }
 }
 
