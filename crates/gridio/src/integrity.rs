@@ -81,11 +81,9 @@ pub(crate) fn expected_length(path: &Path) -> Result<Expected, String> {
     };
     if actual < expected.length {
         return Err(format!(
-            "{} of {} bytes: the {} header describes {} bytes; the file was cut short (an interrupted copy or write?)",
-            actual,
+            "it holds {actual} of the {} bytes its {} header describes: it was cut short (an interrupted copy or write?) or its header is damaged",
             expected.length,
-            expected.format.label(),
-            expected.length
+            expected.format.label()
         ));
     }
     Ok(expected)

@@ -188,7 +188,13 @@ impl VarSource {
         };
         let path = &paths[piece.file];
         // netCDF-C fills the missing bytes of a cut classic file with zeros: check first.
-        crate::catalog::still_complete(path, piece.expected_len)?;
+        crate::catalog::still_complete(path, piece.expected_len).map_err(|e| match e {
+            GridError::Damaged { path, message } => GridError::Damaged {
+                path,
+                message: format!("reading variable '{}': {message}", self.name),
+            },
+            other => other,
+        })?;
         let mut data = self
             .data
             .0
