@@ -212,9 +212,12 @@ pub(crate) fn meanings(
                 first.describe_briefly()
             ))
         })?;
+        // Standard names may differ between files only among those of the role (another
+        // temperature kind, per-volume or per-mass); a file without one is read by its
+        // units and name.
         let known = |s: &Option<String>| {
             s.as_deref()
-                .is_some_and(|s| role.standard_names().contains(&s))
+                .is_none_or(|s| role.standard_names().contains(&s))
         };
         if meaning.standard_name != first.standard_name
             && !(known(&meaning.standard_name) && known(&first.standard_name))

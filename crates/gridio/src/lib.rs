@@ -34,6 +34,7 @@ pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
+
 pub use slab::RawSlab;
 
 use std::ops::Range;
