@@ -13,28 +13,8 @@ const STEPS: usize = 4;
 
 /// A CMIP-style run of 4 monthly steps, two files per variable; `alter` may rewrite the
 /// second file's variable (steps 2 and 3).
-fn split_run(dir: &Path, alter: &dyn Fn(&str, Var) -> Var) {
-    let times = noleap_months(STEPS);
-    for var in REQUIRED {
-        for (tag, steps) in [("a", 0..2), ("b", 2..STEPS)] {
-            let mut vars = coordinates(
-                GRID,
-                &times[steps.clone()],
-                "days since 2015-01-01",
-                "noleap",
-            );
-            let mut data = cmip_var(var, "tzyx", steps.clone(), GRID);
-            if tag == "b" {
-                data = alter(var, data);
-            }
-            vars.push(data);
-            write_nc(
-                &dir.join(format!("{var}_{tag}.nc")),
-                &dims(GRID, steps.len()),
-                &vars,
-            );
-        }
-    }
+fn split(dir: &Path, alter: &dyn Fn(&str, Var) -> Var) {
+    split_run(dir, &REQUIRED, STEPS, alter);
 }
 
 fn open(dir: &Path) -> Result<Run, String> {
@@ -44,7 +24,7 @@ fn open(dir: &Path) -> Result<Run, String> {
 /// The slab of step 3 of a run whose files all agree.
 fn reference_slab() -> SlabInputs {
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|_, v| v);
+    split(dir.path(), &|_, v| v);
     open(dir.path()).unwrap().read_slab(3, 0..4).unwrap()
 }
 
@@ -59,9 +39,7 @@ fn assert_close(a: &[f64], b: &[f64], tolerance: f64, what: &str) {
 type Rewrite = Box<dyn Fn(Var) -> Var>;
 
 fn scaled(v: Var, f: impl Fn(f64) -> f64) -> Var {
-    let mut v = v;
-    v.values.iter_mut().for_each(|x| *x = f(*x));
-    v
+    map_values(v, f)
 }
 
 #[test]
@@ -114,13 +92,7 @@ fn other_units_in_one_year_are_converted_file_by_file() {
     ];
     for (what, name, rewrite, field, tolerance) in variants {
         let dir = tempdir().unwrap();
-        split_run(dir.path(), &|var, v| {
-            if var == name {
-                rewrite(v)
-            } else {
-                v
-            }
-        });
+        split(dir.path(), &only(name, &rewrite));
         let run = open(dir.path()).unwrap_or_else(|e| panic!("{what}: {e}"));
         let slab = run.read_slab(3, 0..4).unwrap();
         assert_close(field(&slab), field(&reference), tolerance, what);
@@ -142,7 +114,7 @@ fn another_temperature_kind_in_one_file_is_converted_by_its_own_kind() {
     let reference = reference_slab();
     let dir = tempdir().unwrap();
     // The second file holds Conservative Temperature (TEOS-10 CT_from_pt of the same water).
-    split_run(dir.path(), &|var, v| {
+    split(dir.path(), &|var, v| {
         if var != "thetao" {
             return v;
         }
@@ -195,13 +167,7 @@ fn a_file_that_does_not_say_what_it_holds_is_refused_naming_both_files() {
     ];
     for (what, name, rewrite, says) in variants {
         let dir = tempdir().unwrap();
-        split_run(dir.path(), &|var, v| {
-            if var == name {
-                rewrite(v)
-            } else {
-                v
-            }
-        });
+        split(dir.path(), &only(name, &rewrite));
         let e = open(dir.path())
             .err()
             .unwrap_or_else(|| panic!("{what}: opened"));
@@ -221,7 +187,7 @@ fn a_temperature_whose_kind_one_file_does_not_state_is_refused_naming_both_files
     // Temperature under a name of no convention: only its standard_name says the kind,
     // and the second file has none.
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|_, v| v);
+    split(dir.path(), &|_, v| v);
     let times = noleap_months(STEPS);
     for (tag, steps) in [("a", 0..2), ("b", 2..STEPS)] {
         std::fs::remove_file(dir.path().join(format!("thetao_{tag}.nc"))).unwrap();
@@ -249,7 +215,7 @@ fn a_temperature_whose_kind_one_file_does_not_state_is_refused_naming_both_files
     );
     // A thetao file without standard_name is potential temperature by its CMIP name.
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|var, v| {
+    split(dir.path(), &|var, v| {
         if var == "thetao" {
             v.without("standard_name")
         } else {
@@ -263,7 +229,7 @@ fn a_temperature_whose_kind_one_file_does_not_state_is_refused_naming_both_files
 fn fill_values_and_packing_are_read_per_file() {
     let reference = reference_slab();
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|var, v| match var {
+    split(dir.path(), &|var, v| match var {
         // The second DIC file marks two cells with its own missing_value and no _FillValue.
         "dissic" => {
             let mut v = v.without("_FillValue").attr("missing_value", -999.0_f32);
@@ -299,7 +265,7 @@ fn fill_values_and_packing_are_read_per_file() {
 fn another_dimension_order_is_read_in_that_order() {
     let reference = reference_slab();
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|var, v| {
+    split(dir.path(), &|var, v| {
         if var == "so" {
             let mut w = cmip_var("so", "txyz", 2..STEPS, GRID);
             w.attrs = v.attrs;
@@ -315,7 +281,7 @@ fn another_dimension_order_is_read_in_that_order() {
 #[test]
 fn other_dimension_names_are_refused_naming_both_files() {
     let dir = tempdir().unwrap();
-    split_run(dir.path(), &|_, v| v);
+    split(dir.path(), &|_, v| v);
     // The second DIC file puts its levels on a dimension called `depth`.
     let times = noleap_months(STEPS);
     let mut vars = coordinates(GRID, &times[2..], "days since 2015-01-01", "noleap");

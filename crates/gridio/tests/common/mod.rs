@@ -397,3 +397,41 @@ pub fn cmip_run(dir: &Path, n: usize, calendar: &str) -> Vec<PathBuf> {
     }
     out
 }
+
+/// A run of `steps` monthly steps, two files per variable (`<var>_a.nc`, `<var>_b.nc`, the
+/// second from step 2); `alter` may rewrite each second file's variable.
+pub fn split_run(dir: &Path, variables: &[&str], steps: usize, alter: &dyn Fn(&str, Var) -> Var) {
+    let times = noleap_months(steps);
+    for var in variables {
+        for (tag, range) in [("a", 0..2), ("b", 2..steps)] {
+            let mut vars = coordinates(
+                GRID,
+                &times[range.clone()],
+                "days since 2015-01-01",
+                "noleap",
+            );
+            let mut data = cmip_var(var, "tzyx", range.clone(), GRID);
+            if tag == "b" {
+                data = alter(var, data);
+            }
+            vars.push(data);
+            write_nc(
+                &dir.join(format!("{var}_{tag}.nc")),
+                &dims(GRID, range.len()),
+                &vars,
+            );
+        }
+    }
+}
+
+/// An `alter` for [`split_run`] that rewrites only variable `name`.
+pub fn only<'a>(name: &'a str, rewrite: &'a dyn Fn(Var) -> Var) -> impl Fn(&str, Var) -> Var + 'a {
+    move |var, v| if var == name { rewrite(v) } else { v }
+}
+
+/// A variable with every value mapped by `f`.
+pub fn map_values(v: Var, f: impl Fn(f64) -> f64) -> Var {
+    let mut v = v;
+    v.values.iter_mut().for_each(|x| *x = f(*x));
+    v
+}
