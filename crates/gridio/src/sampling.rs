@@ -172,11 +172,10 @@ pub fn check_sampling(axis: &TimeAxis, values: &[f64], bounds: Option<&[f64]>) -
                     }
                     _ => (b.year - a.year, i64::from(n), "year(s)"),
                 };
-                (span != want).then(|| format!("{span} calendar {unit} apart"))
+                (span != want).then(|| format!("the steps are {span} calendar {unit} apart"))
             }
-            Sampling::Days(d) => {
-                ((step - d).abs() > 1e-3 * d + tolerance / day).then(|| describe_days(*step))
-            }
+            Sampling::Days(d) => ((step - d).abs() > 1e-3 * d + tolerance / day)
+                .then(|| format!("the steps are {} apart", describe_days(*step))),
             Sampling::Single => None,
         };
         if let Some(found) = found {

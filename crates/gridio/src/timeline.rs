@@ -207,7 +207,7 @@ pub(crate) fn check_gaps(
         before: file_at(i - 1),
         after: file_at(i),
         message: format!(
-            "the run is sampled {}{}, but from {} to {} {}{}; a file or time steps are missing. If the run is irregular on purpose, give --irregular-time",
+            "the run is sampled {}{}, but between {} and {} {}{}; a file or time steps are missing. If the run is irregular on purpose, give --irregular-time",
             check.sampling,
             if check.from_bounds { " (by its time bounds)" } else { "" },
             date(joined.values[i - 1]),

@@ -3,7 +3,7 @@
 
 mod common;
 
-use acidscape_gridio::{InputChecks, Run, RunSpec};
+use acidscape_gridio::{InputChecks, Run};
 use common::*;
 use std::path::Path;
 use tempfile::tempdir;
@@ -22,14 +22,13 @@ fn run_with(dir: &Path, alter: &dyn Fn(&str, Var) -> Var) {
 }
 
 fn open(dir: &Path, accept: bool) -> Result<Run, String> {
-    let spec = RunSpec {
-        checks: InputChecks {
+    open_dir(
+        dir,
+        InputChecks {
             accept_implausible: accept,
             ..Default::default()
         },
-        ..spec(vec![format!("{}/*.nc", dir.display())])
-    };
-    Run::open(&spec).map_err(|e| e.to_string())
+    )
 }
 
 fn each(v: Var, f: impl Fn(f64) -> f64) -> Var {

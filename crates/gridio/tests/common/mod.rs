@@ -6,6 +6,7 @@ use netcdf::AttributeValue;
 use std::path::{Path, PathBuf};
 
 /// A variable to write: name, dimension names, attributes, values in file order.
+#[derive(Clone)]
 pub struct Var {
     pub name: String,
     pub dims: Vec<String>,
@@ -434,4 +435,16 @@ pub fn map_values(v: Var, f: impl Fn(f64) -> f64) -> Var {
     let mut v = v;
     v.values.iter_mut().for_each(|x| *x = f(*x));
     v
+}
+
+/// Opens every `.nc` file of `dir` with the given accepted checks; the error as text.
+pub fn open_dir(
+    dir: &Path,
+    checks: acidscape_gridio::InputChecks,
+) -> Result<acidscape_gridio::Run, String> {
+    let spec = acidscape_gridio::RunSpec {
+        checks,
+        ..spec(vec![format!("{}/*.nc", dir.display())])
+    };
+    acidscape_gridio::Run::open(&spec).map_err(|e| e.to_string())
 }
