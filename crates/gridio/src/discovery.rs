@@ -139,7 +139,7 @@ fn find_role(
         [] => Ok(Ok(None)),
         [one] => Ok(Ok(Some(Found {
             name: one.to_string(),
-            found_by: format!("{}-family name", native::families(role, one)),
+            found_by: format!("{} native name", native::families(role, one)),
             holders: holders(catalog, one),
         }))),
         many => Ok(Err(many.iter().map(|s| s.to_string()).collect())),

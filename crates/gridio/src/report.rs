@@ -80,7 +80,7 @@ pub(crate) fn report(run: &Run) -> String {
             first.units
         );
         let _ = writeln!(out, "  {:<16}   files: {}", "", file_list(&holders));
-        if input.found_by.ends_with("-family name") {
+        if input.found_by.ends_with("native name") {
             let _ = writeln!(
                 out,
                 "  {:<16}   native name as documented in: {}",

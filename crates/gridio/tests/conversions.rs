@@ -49,6 +49,80 @@ fn concentration_2_1_mol_per_m3_at_1025_is_2048_78_umol_per_kg() {
 }
 
 #[test]
+fn unit_strings_that_ocean_models_write() {
+    // (as written, where it is written, mol m-3 or mol kg-1 per unit, per volume?)
+    let rows: [(&str, &str, f64, bool); 12] = [
+        (
+            "mmol/m3",
+            "NEMO PISCES field_def_nemo-pisces.xml",
+            1e-3,
+            true,
+        ),
+        ("millimole meter-3", "long unit words (UDUNITS)", 1e-3, true),
+        (
+            "millimole_carbon meter-3",
+            "ROMS varinfo.yaml TIC",
+            1e-3,
+            true,
+        ),
+        ("millimole_PO4 meter-3", "ROMS varinfo.yaml PO4", 1e-3, true),
+        (
+            "millimole_silica meter-3",
+            "ROMS varinfo.yaml SiOH4",
+            1e-3,
+            true,
+        ),
+        ("millimole_DIC meter-3", "ROMS varinfo.yaml DIC", 1e-3, true),
+        (
+            "milliequivalents meter-3",
+            "ROMS varinfo.yaml alkalinity",
+            1e-3,
+            true,
+        ),
+        ("meq m-3", "equivalents for alkalinity", 1e-3, true),
+        ("meq/m^3", "equivalents for alkalinity", 1e-3, true),
+        ("mol/L", "per litre", 1e3, true),
+        ("mol/kg", "GFDL COBALT generic_COBALT.F90", 1.0, false),
+        ("mol m-3", "CMIP6/OMIP dissic, talk", 1.0, true),
+    ];
+    for (units, written_by, to_mol, per_volume) in rows {
+        let c = parse_concentration(units).unwrap_or_else(|e| panic!("{written_by}: {e}"));
+        let basis = if per_volume {
+            ConcentrationBasis::PerVolume
+        } else {
+            ConcentrationBasis::PerMass
+        };
+        assert_eq!(c.basis, basis, "{units} ({written_by})");
+        close(c.to_mol, to_mol, to_mol * 1e-12, units);
+    }
+    // An annotation does not make an amount of what is not one.
+    for units in [
+        "millimole_carbon",
+        "carbon_millimole meter-3",
+        "meter_carbon meter-3",
+    ] {
+        assert!(parse_concentration(units).is_err(), "{units}");
+    }
+    // ROMS writes salinity as "nondimensional", temperature as "Celsius"; NEMO 3 "PSU".
+    for units in ["nondimensional", "PSU", "1e-3"] {
+        assert_eq!(
+            parse_salinity(units).unwrap(),
+            SalinityUnits::Practical,
+            "{units}"
+        );
+    }
+    for units in ["Celsius", "degC", "degree_Celsius"] {
+        assert_eq!(
+            parse_temperature(units).unwrap(),
+            TemperatureUnits::Celsius,
+            "{units}"
+        );
+    }
+    // MOM6 writes depth in "meters".
+    close(parse_length("meters").unwrap().to_m, 1.0, 0.0, "meters");
+}
+
+#[test]
 fn per_mass_concentrations_ignore_density() {
     for units in [
         "umol/kg",

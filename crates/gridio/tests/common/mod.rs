@@ -378,6 +378,18 @@ pub fn noleap_months(n: usize) -> Vec<f64> {
         .collect()
 }
 
+/// Bounds (start, end of each month) of [`noleap_months`], days since 2015-01-01.
+pub fn noleap_month_bounds(n: usize) -> Vec<f64> {
+    const LENGTHS: [f64; 12] = [31., 28., 31., 30., 31., 30., 31., 31., 30., 31., 30., 31.];
+    let mut start = 0.0;
+    let mut out = Vec::with_capacity(2 * n);
+    for m in 0..n {
+        out.extend([start, start + LENGTHS[m % 12]]);
+        start += LENGTHS[m % 12];
+    }
+    out
+}
+
 pub fn spec(inputs: Vec<String>) -> acidscape_gridio::RunSpec {
     acidscape_gridio::RunSpec {
         inputs,
