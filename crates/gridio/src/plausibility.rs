@@ -360,27 +360,43 @@ impl Run {
                 }
             }
             let cells = values[required[0]].as_ref().map_or(0, Vec::len);
-            let judged: Vec<(&Conversion, &Plausible)> = checked
+            // Raw-value limits of each checked input for salinity scales 1 and 1000 (every
+            // conversion is increasing and affine, so the range maps onto raw values).
+            let density = self.rough_density();
+            let limits: Vec<[(f64, f64); 2]> = checked
                 .iter()
                 .map(|&i| {
                     let range = plausible(self.inputs[i].role).expect("checked roles have ranges");
-                    (&self.inputs[i].meaning_at(step).conversion, range)
+                    let conversion = &self.inputs[i].meaning_at(step).conversion;
+                    [1.0, 1000.0].map(|scale| raw_limits(conversion, density, scale, range))
                 })
                 .collect();
-            let density = self.rough_density();
+            // Bit k set when required input k is present; an input's own bit counts as set
+            // when judging whether the others are present.
+            let full = (1u8 << required.len()) - 1;
+            let own_bit: Vec<u8> = checked
+                .iter()
+                .map(|i| required.iter().position(|r| r == i).map_or(0, |k| 1 << k))
+                .collect();
+            let columns: Vec<&Vec<f64>> = required
+                .iter()
+                .filter_map(|&r| values[r].as_ref())
+                .collect();
+            let checked_values: Vec<&Vec<f64>> =
+                checked.iter().filter_map(|&i| values[i].as_ref()).collect();
             for c in 0..cells {
-                let present = |i: usize| values[i].as_ref().is_some_and(|v| v[c].is_finite());
-                let all_required = required.iter().all(|&r| present(r));
-                wet += u64::from(all_required);
-                for ((tally, &i), (conversion, range)) in
-                    tallies.iter_mut().zip(checked).zip(&judged)
+                let bits = columns
+                    .iter()
+                    .enumerate()
+                    .fold(0u8, |b, (k, v)| b | (u8::from(v[c].is_finite()) << k));
+                wet += u64::from(bits == full);
+                for (((tally, v), own), limits) in tallies
+                    .iter_mut()
+                    .zip(&checked_values)
+                    .zip(&own_bit)
+                    .zip(&limits)
                 {
-                    let others = required.iter().filter(|&&r| r != i).all(|&r| present(r));
-                    let v = values[i].as_ref().map_or(f64::NAN, |v| v[c]);
-                    tally.count(v, others, |scale| {
-                        let x = conversion.rough_value(v, density, scale);
-                        !(range.low..=range.high).contains(&x)
-                    });
+                    tally.count(v[c], bits | own == full, limits);
                 }
             }
             row = rows.end;
@@ -390,9 +406,8 @@ impl Run {
 }
 
 impl Tally {
-    /// Counts one raw value `v`; `outside(scale)` tells whether it lies outside the range
-    /// once converted with salinity scale 1 or 1000.
-    fn count(&mut self, v: f64, others: bool, outside: impl Fn(f64) -> bool) {
+    /// Counts one raw value `v`, judged against raw limits for salinity scales 1 and 1000.
+    fn count(&mut self, v: f64, others: bool, limits: &[(f64, f64); 2]) {
         if v.is_finite() {
             self.finite += 1;
         }
@@ -408,13 +423,23 @@ impl Tally {
         self.sum += v;
         self.min = self.min.min(v);
         self.max = self.max.max(v);
-        for (k, scale) in [1.0, 1000.0].into_iter().enumerate() {
-            self.outside[k] += u64::from(outside(scale));
+        for (outside, (low, high)) in self.outside.iter_mut().zip(limits) {
+            *outside += u64::from(!(*low..=*high).contains(&v));
         }
         if self.sample.len() < MEDIAN_SAMPLE {
             self.sample.push(v);
         }
     }
+}
+
+/// The raw values that convert into `range` (conversions are increasing affine maps).
+fn raw_limits(conversion: &Conversion, density: f64, scale: f64, range: &Plausible) -> (f64, f64) {
+    let at0 = conversion.rough_value(0.0, density, scale);
+    let slope = conversion.rough_value(1.0, density, scale) - at0;
+    if !(slope.is_finite() && slope > 0.0) {
+        return (f64::NEG_INFINITY, f64::INFINITY);
+    }
+    ((range.low - at0) / slope, (range.high - at0) / slope)
 }
 
 /// Why one sampled step of `input` is implausible, if it is.
