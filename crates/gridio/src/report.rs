@@ -204,14 +204,26 @@ fn sampling_line(run: &Run) -> String {
 
 fn checks_section(run: &Run, out: &mut String) {
     let _ = writeln!(out, "Checks:");
-    let mut formats: Vec<&str> = run.formats.iter().map(|f| f.label()).collect();
+    let other = crate::integrity::Format::Other;
+    let mut formats: Vec<&str> = run
+        .formats
+        .iter()
+        .filter(|f| **f != other)
+        .map(|f| f.label())
+        .collect();
     formats.sort_unstable();
     formats.dedup();
+    let checked = run.formats.iter().filter(|f| **f != other).count();
     let _ = writeln!(
         out,
-        "  files: {} checked against the sizes their headers describe ({}): complete",
+        "  files: {checked} of {} complete, as long as their headers describe ({}){}",
         run.paths.len(),
-        formats.join(", ")
+        formats.join(", "),
+        if checked < run.paths.len() {
+            "; the others are of a format read by libnetcdf alone"
+        } else {
+            ""
+        }
     );
     let _ = writeln!(
         out,

@@ -44,7 +44,11 @@ fn complete_files_of_every_format_read_the_same() {
     for format in ALL_FORMATS {
         let path = one_file_run(dir.path(), format);
         let run = open(&path).unwrap_or_else(|e| panic!("{format:?}: {e}"));
-        assert!(run.report().contains("complete"), "{}", run.report());
+        assert!(
+            run.report().contains("files: 1 of 1 complete"),
+            "{}",
+            run.report()
+        );
         slabs.push((format, run.read_slab(1, 0..4).unwrap()));
     }
     for (format, slab) in &slabs[1..] {
