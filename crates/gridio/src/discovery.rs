@@ -243,6 +243,82 @@ fn describe_candidate(c: &Candidate, catalog: &[Candidate], files: &[InputFile])
     format!("  {}: {}; {place}", c.name, parts.join(", "))
 }
 
+/// How one problem is told: its line, the role key reported, the command-line options
+/// and the mapping-file line proposed.
+struct Told {
+    line: String,
+    role: String,
+    options: Vec<String>,
+    toml: String,
+}
+
+fn tell(problem: &Problem, candidates: &[&Candidate]) -> Told {
+    let (role, hit) = match problem {
+        Problem::KindUnstated(role, hit) => (*role, hit),
+        Problem::Missing(role) | Problem::Ambiguous(role, _) => {
+            return tell_missing(*role, problem, candidates)
+        }
+    };
+    Told {
+        line: format!(
+            "  {}: variable '{}' (found by {}) does not say whether it holds potential, conservative or in-situ temperature: neither its standard_name nor its long_name says, and its model family writes both kinds",
+            role.key(),
+            hit.name,
+            hit.found_by
+        ),
+        role: format!("{}.kind", role.key()),
+        options: vec!["--variable temperature.kind=potential".to_string()],
+        toml: "temperature = { kind = \"potential\" }".to_string(),
+    }
+}
+
+fn tell_missing(role: Role, problem: &Problem, candidates: &[&Candidate]) -> Told {
+    let (detail, proposed) = match problem {
+        Problem::Ambiguous(_, names) => (
+            format!(
+                "several variables could be it ({}); name the right one",
+                names.join(", ")
+            ),
+            names.first().cloned(),
+        ),
+        _ => (
+            format!(
+                "no {} variable found (looked for {})",
+                role.key(),
+                looked_for(role)
+            ),
+            proposal(role, candidates).map(|c| c.name.clone()),
+        ),
+    };
+    let name = proposed.unwrap_or_else(|| "NAME".to_string());
+    let units = candidates
+        .iter()
+        .find(|c| c.name == name)
+        .and_then(|c| c.units.clone())
+        .unwrap_or_else(|| role.example_units().to_string());
+    let mut options = vec![
+        format!("--variable {}={name}", role.key()),
+        format!("--variable {}.units='{units}'", role.key()),
+    ];
+    let kind = match role {
+        Role::Temperature => {
+            options.push("--variable temperature.kind=potential".to_string());
+            ", kind = \"potential\""
+        }
+        Role::Salinity => ", kind = \"practical\"",
+        _ => "",
+    };
+    Told {
+        line: format!("  {}: {detail}", role.key()),
+        role: role.key().to_string(),
+        options,
+        toml: format!(
+            "{} = {{ name = \"{name}\", units = \"{units}\"{kind} }}",
+            role.key()
+        ),
+    }
+}
+
 /// The single message for everything that keeps the run's roles from being read.
 fn missing_roles_error(
     problems: &[Problem],
@@ -260,69 +336,13 @@ fn missing_roles_error(
             candidates.push(c);
         }
     }
-    let mut roles = Vec::new();
-    let mut text = String::new();
-    let _ = writeln!(
-        text,
-        "the run cannot be read yet: {} input(s) missing or not fully described:",
+    let told: Vec<Told> = problems.iter().map(|p| tell(p, &candidates)).collect();
+    let mut text = format!(
+        "the run cannot be read yet: {} input(s) missing or not fully described:\n",
         problems.len()
     );
-    let mut command_line = Vec::new();
-    let mut toml = Vec::new();
-    for problem in problems {
-        match problem {
-            Problem::Missing(role) | Problem::Ambiguous(role, _) => {
-                roles.push(role.key().to_string());
-                let detail = match problem {
-                    Problem::Ambiguous(_, names) => format!(
-                        "several variables could be it ({}); name the right one",
-                        names.join(", ")
-                    ),
-                    _ => format!(
-                        "no {} variable found (looked for {})",
-                        role.key(),
-                        looked_for(*role)
-                    ),
-                };
-                let _ = writeln!(text, "  {}: {detail}", role.key());
-                let proposed = match problem {
-                    Problem::Ambiguous(_, names) => names.first().cloned(),
-                    _ => proposal(*role, &candidates).map(|c| c.name.clone()),
-                };
-                let name = proposed.unwrap_or_else(|| "NAME".to_string());
-                let units = candidates
-                    .iter()
-                    .find(|c| c.name == name)
-                    .and_then(|c| c.units.clone())
-                    .unwrap_or_else(|| role.example_units().to_string());
-                command_line.push(format!("--variable {}={name}", role.key()));
-                command_line.push(format!("--variable {}.units='{units}'", role.key()));
-                let kind = match role {
-                    Role::Temperature => ", kind = \"potential\"",
-                    Role::Salinity => ", kind = \"practical\"",
-                    _ => "",
-                };
-                if matches!(role, Role::Temperature) {
-                    command_line.push("--variable temperature.kind=potential".to_string());
-                }
-                toml.push(format!(
-                    "{} = {{ name = \"{name}\", units = \"{units}\"{kind} }}",
-                    role.key()
-                ));
-            }
-            Problem::KindUnstated(role, hit) => {
-                roles.push(format!("{}.kind", role.key()));
-                let _ = writeln!(
-                    text,
-                    "  {}: variable '{}' (found by {}) does not say whether it holds potential, conservative or in-situ temperature: neither its standard_name nor its long_name says, and its model family writes both kinds",
-                    role.key(),
-                    hit.name,
-                    hit.found_by
-                );
-                command_line.push("--variable temperature.kind=potential".to_string());
-                toml.push("temperature = { kind = \"potential\" }".to_string());
-            }
-        }
+    for t in &told {
+        let _ = writeln!(text, "{}", t.line);
     }
     let used_text: Vec<String> = found
         .iter()
@@ -343,22 +363,28 @@ fn missing_roles_error(
             let _ = writeln!(text, "  ... and {} more", candidates.len() - SHOWN);
         }
     }
-    let _ = writeln!(text, "Name them on the command line:");
-    let _ = writeln!(text, "  {}", command_line.join(" "));
+    let options: Vec<&str> = told
+        .iter()
+        .flat_map(|t| t.options.iter().map(String::as_str))
+        .collect();
     let _ = writeln!(
         text,
-        "or in a mapping file given with --variables FILE.toml:"
+        "Name them on the command line:\n  {}",
+        options.join(" ")
     );
-    let _ = writeln!(text, "  [variables]");
-    for line in &toml {
-        let _ = writeln!(text, "  {line}");
+    let _ = writeln!(
+        text,
+        "or in a mapping file given with --variables FILE.toml:\n  [variables]"
+    );
+    for t in &told {
+        let _ = writeln!(text, "  {}", t.toml);
     }
     let _ = write!(
         text,
         "(units only where a file's units attribute is missing or wrong; temperature kind: potential, conservative or in-situ; salinity kind: practical or absolute; a kind alone, e.g. --variable temperature.kind=conservative, is enough when the variable itself was found)"
     );
     GridError::MissingRoles {
-        roles,
+        roles: told.into_iter().map(|t| t.role).collect(),
         message: text,
     }
 }

@@ -264,52 +264,7 @@ fn classic_data_end(reader: &mut impl Read, version: u8, file_len: u64) -> Resul
     let mut vars = Vec::new();
     if let Some(n) = h.list(NC_VARIABLE, "variable")? {
         for _ in 0..n {
-            let name = h.name()?;
-            let ndims = h.count()?;
-            if ndims > 1024 {
-                return Err(format!(
-                    "the header is damaged: variable '{name}' has {ndims} dimensions"
-                ));
-            }
-            let mut shape = Vec::with_capacity(ndims as usize);
-            for _ in 0..ndims {
-                let id = h.count()?;
-                let len = *dims.get(id as usize).ok_or_else(|| {
-                    format!(
-                        "the header is damaged: variable '{name}' names dimension {id} of {}",
-                        dims.len()
-                    )
-                })?;
-                shape.push(len);
-            }
-            h.attributes()?;
-            let size = type_size(h.u32()?, version == 5)?;
-            let vsize = h.count()?;
-            let begin = if version == 1 {
-                h.u32()?.into()
-            } else {
-                h.u64()?
-            };
-            let record = shape.first() == Some(&0);
-            let values = shape
-                .iter()
-                .skip(usize::from(record))
-                .try_fold(1u64, |acc, len| acc.checked_mul(*len));
-            let bytes = values.and_then(|v| v.checked_mul(size)).ok_or_else(|| {
-                format!("the header is damaged: variable '{name}' is too large to exist")
-            })?;
-            // vsize is the padded size; it saturates at 2^32 - 1 in CDF-1/2 for huge variables.
-            if vsize != pad4(bytes) && !(version != 5 && vsize == 0xFFFF_FFFF) && bytes > 0 {
-                return Err(format!(
-                    "the header is damaged: variable '{name}' declares {vsize} bytes but its shape needs {}",
-                    pad4(bytes)
-                ));
-            }
-            vars.push(ClassicVar {
-                begin,
-                bytes,
-                record,
-            });
+            vars.push(classic_variable(&mut h, &dims, version)?);
         }
     }
     let header_end = h.at;
@@ -340,6 +295,61 @@ fn classic_data_end(reader: &mut impl Read, version: u8, file_len: u64) -> Resul
         end = end.max(var_end.ok_or("the header is damaged: data end beyond any possible file")?);
     }
     Ok(end)
+}
+
+/// One variable entry of a classic header: name, dimension ids, attributes, type, vsize
+/// and begin (NetCDF classic format specification, `var`).
+fn classic_variable<R: Read>(
+    h: &mut Header<'_, R>,
+    dims: &[u64],
+    version: u8,
+) -> Result<ClassicVar, String> {
+    let name = h.name()?;
+    let ndims = h.count()?;
+    if ndims > 1024 {
+        return Err(format!(
+            "the header is damaged: variable '{name}' has {ndims} dimensions"
+        ));
+    }
+    let mut shape = Vec::with_capacity(ndims as usize);
+    for _ in 0..ndims {
+        let id = h.count()?;
+        let len = *dims.get(id as usize).ok_or_else(|| {
+            format!(
+                "the header is damaged: variable '{name}' names dimension {id} of {}",
+                dims.len()
+            )
+        })?;
+        shape.push(len);
+    }
+    h.attributes()?;
+    let size = type_size(h.u32()?, version == 5)?;
+    let vsize = h.count()?;
+    let begin = if version == 1 {
+        h.u32()?.into()
+    } else {
+        h.u64()?
+    };
+    let record = shape.first() == Some(&0);
+    let values = shape
+        .iter()
+        .skip(usize::from(record))
+        .try_fold(1u64, |acc, len| acc.checked_mul(*len));
+    let bytes = values
+        .and_then(|v| v.checked_mul(size))
+        .ok_or_else(|| format!("the header is damaged: variable '{name}' is too large to exist"))?;
+    // vsize is the padded size; it saturates at 2^32 - 1 in CDF-1/2 for huge variables.
+    if vsize != pad4(bytes) && !(version != 5 && vsize == 0xFFFF_FFFF) && bytes > 0 {
+        return Err(format!(
+            "the header is damaged: variable '{name}' declares {vsize} bytes but its shape needs {}",
+            pad4(bytes)
+        ));
+    }
+    Ok(ClassicVar {
+        begin,
+        bytes,
+        record,
+    })
 }
 
 /// The HDF5 superblock's end of file, when the file is HDF5 (signature at 0, 512, 1024, ...).

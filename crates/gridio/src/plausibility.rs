@@ -113,6 +113,49 @@ pub(crate) struct ValueCheck {
     pub refusal: Option<String>,
 }
 
+impl ValueCheck {
+    fn new(input: &Input) -> ValueCheck {
+        let range = plausible(input.role).expect("only inputs with a range are checked");
+        ValueCheck {
+            role: input.role,
+            name: input.name.clone(),
+            low: range.low,
+            high: range.high,
+            unit: range.unit,
+            steps: 0,
+            values: 0,
+            outside: 0,
+            others_present: 0,
+            missing: 0,
+            min: f64::INFINITY,
+            max: f64::NEG_INFINITY,
+            refusal: None,
+        }
+    }
+
+    /// Adds one sampled step's tally (`rough` converts a raw value), keeping the first refusal.
+    fn add(
+        &mut self,
+        tally: &Tally,
+        scale: f64,
+        refusal: Option<String>,
+        rough: impl Fn(f64) -> f64,
+    ) {
+        self.steps += 1;
+        self.values += tally.present;
+        self.outside += tally.outside[usize::from(scale != 1.0)];
+        self.others_present += tally.others_present;
+        self.missing += tally.missing;
+        if tally.present > 0 {
+            self.min = self.min.min(rough(tally.min));
+            self.max = self.max.max(rough(tally.max));
+        }
+        if self.refusal.is_none() {
+            self.refusal = refusal;
+        }
+    }
+}
+
 /// One step's tally of one input (raw values).
 #[derive(Clone)]
 struct Tally {
@@ -238,25 +281,7 @@ impl Run {
             .collect();
         let mut checks: Vec<ValueCheck> = checked
             .iter()
-            .map(|&i| {
-                let input = &self.inputs[i];
-                let range = plausible(input.role).expect("filtered above");
-                ValueCheck {
-                    role: input.role,
-                    name: input.name.clone(),
-                    low: range.low,
-                    high: range.high,
-                    unit: range.unit,
-                    steps: 0,
-                    values: 0,
-                    outside: 0,
-                    others_present: 0,
-                    missing: 0,
-                    min: f64::INFINITY,
-                    max: f64::NEG_INFINITY,
-                    refusal: None,
-                }
-            })
+            .map(|&i| ValueCheck::new(&self.inputs[i]))
             .collect();
         let mut sampled_salinity = vec![false; self.required(Role::Salinity).meanings.len()];
         for &step in &steps {
@@ -271,26 +296,11 @@ impl Run {
                     self.inputs[i].meanings[piece].salinity_scale = scale;
                     sampled_salinity[piece] = true;
                 }
-                let input = &self.inputs[i];
-                let refusal = judge(self, input, step, &mut tally, scale);
-                let meaning = input.meaning_at(step);
-                let rough = |v: f64| {
-                    meaning
-                        .conversion
-                        .rough_value(v, self.rough_density(), scale)
-                };
-                check.steps += 1;
-                check.values += tally.present;
-                check.outside += tally.outside[usize::from(scale != 1.0)];
-                check.others_present += tally.others_present;
-                check.missing += tally.missing;
-                if tally.present > 0 {
-                    check.min = check.min.min(rough(tally.min));
-                    check.max = check.max.max(rough(tally.max));
-                }
-                if check.refusal.is_none() {
-                    check.refusal = refusal;
-                }
+                let refusal = judge(self, &self.inputs[i], step, &mut tally, scale);
+                let conversion = &self.inputs[i].meaning_at(step).conversion;
+                check.add(&tally, scale, refusal, |v| {
+                    conversion.rough_value(v, self.rough_density(), scale)
+                });
             }
         }
         // Salinity files not sampled share their variable's first file's scale.

@@ -277,20 +277,7 @@ impl Run {
             checks: spec.checks,
         };
         let mut time: Option<RunTime> = None;
-        let mut inputs: Vec<Input> = Vec::new();
-        for (role, hit) in &found {
-            let spans = context.spans(&hit.name, &hit.holders, &mut time)?;
-            let source = VarSource::new(&hit.name, &spans, &files)?;
-            let files_of: Vec<&InputFile> = source.pieces.iter().map(|p| &files[p.file]).collect();
-            let meanings = meanings(*role, &hit.name, spec.mapping.get(role.key()), &files_of)?;
-            inputs.push(Input {
-                role: *role,
-                name: hit.name.clone(),
-                found_by: hit.found_by.clone(),
-                meanings,
-                source,
-            });
-        }
+        let inputs = locate_inputs(spec, &found, &context, &mut time)?;
 
         // 3. Grid: every input on the reference grid, with the same coordinates.
         let grid = GridLengths {
@@ -422,6 +409,31 @@ impl Run {
         let files = crate::catalog::open_paths(&self.paths)?;
         crate::output::write_coordinates(self, &files, out, steps)
     }
+}
+
+/// Every input's time spans, files and what each file holds.
+fn locate_inputs(
+    spec: &RunSpec,
+    found: &[(Role, Found)],
+    context: &TimeContext,
+    time: &mut Option<RunTime>,
+) -> Result<Vec<Input>> {
+    let files = context.files;
+    let mut inputs = Vec::with_capacity(found.len());
+    for (role, hit) in found {
+        let spans = context.spans(&hit.name, &hit.holders, time)?;
+        let source = VarSource::new(&hit.name, &spans, files)?;
+        let files_of: Vec<&InputFile> = source.pieces.iter().map(|p| &files[p.file]).collect();
+        let meanings = meanings(*role, &hit.name, spec.mapping.get(role.key()), &files_of)?;
+        inputs.push(Input {
+            role: *role,
+            name: hit.name.clone(),
+            found_by: hit.found_by.clone(),
+            meanings,
+            source,
+        });
+    }
+    Ok(inputs)
 }
 
 /// The vertical coordinate of the reference variable; parametric terms are located in
