@@ -18,7 +18,12 @@ pub struct DescribeArgs {
 
 pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     let budget = parse_memory_size(&args.memory_budget)?;
-    let run = Run::open(&args.run.spec()?)?;
+    // Implausible inputs are opened anyway, so the whole report shows what compute would
+    // refuse; the verdict comes at the end.
+    let mut spec = args.run.spec()?;
+    let accepted = spec.checks.accept_implausible;
+    spec.checks.accept_implausible = true;
+    let run = Run::open(&spec)?;
     println!("{}", run.report());
     let shape = run.shape();
     let fields = IndicatorChoice::default().fields()?.len();
@@ -30,5 +35,13 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     )?;
     println!("Work split for `compute` with its default indicators:");
     println!("{plan}");
+    let implausible = run.implausible_inputs();
+    if !implausible.is_empty() && !accepted {
+        return Err(format!(
+            "compute would refuse this run: {} input(s) have implausible values (see Checks above); fix the units or the variable mapping, or give --accept-implausible-inputs if the values are what you mean to process",
+            implausible.len()
+        )
+        .into());
+    }
     Ok(())
 }

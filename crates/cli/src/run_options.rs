@@ -1,7 +1,7 @@
 //! Options shared by several subcommands: which run to read and which constants to use.
 
 use acidscape_chem::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet};
-use acidscape_gridio::{DensityChoice, RunSpec, VariableMapping};
+use acidscape_gridio::{DensityChoice, InputChecks, RunSpec, VariableMapping};
 use clap::Args;
 use std::error::Error;
 use std::path::PathBuf;
@@ -18,8 +18,10 @@ pub struct RunOptions {
     #[arg(long, value_name = "FILE")]
     pub variables: Option<PathBuf>,
 
-    /// Map one role to a variable name, e.g. --variable dic=DIC --variable alkalinity=ALK
-    /// (overrides the mapping file)
+    /// Map one role to a variable name, e.g. --variable dic=DIC --variable alkalinity=ALK,
+    /// or set its units or kind: --variable alkalinity.units='mmol m-3',
+    /// --variable temperature.kind=potential (a kind or units alone apply to the variable
+    /// found for that role); overrides the mapping file
     #[arg(long = "variable", value_name = "ROLE=NAME")]
     pub variable_overrides: Vec<String>,
 
@@ -27,6 +29,17 @@ pub struct RunOptions {
     /// as a Boussinesq model does, instead of the in-situ TEOS-10 density
     #[arg(long, value_name = "KG_M3")]
     pub reference_density: Option<f64>,
+
+    /// Process inputs whose sampled values look implausible for their role (entirely missing
+    /// over the wet cells, or far outside the plausible range over a large part of the grid);
+    /// without it such a run is refused before any work. Recorded in the output's metadata
+    #[arg(long)]
+    pub accept_implausible_inputs: bool,
+
+    /// The run's time steps are irregular on purpose: accept missing steps, uneven steps and
+    /// time bounds that do not meet instead of refusing them as gaps
+    #[arg(long)]
+    pub irregular_time: bool,
 }
 
 impl RunOptions {
@@ -58,6 +71,10 @@ impl RunOptions {
             inputs: self.inputs.clone(),
             mapping,
             density,
+            checks: InputChecks {
+                accept_implausible: self.accept_implausible_inputs,
+                irregular_time: self.irregular_time,
+            },
         })
     }
 }

@@ -2,6 +2,8 @@
 //! sample run (sample-grids/cmip-style/pathway-moderate: 12 monthly steps in two files per
 //! variable), with outputs compared value by value at full float precision.
 
+mod common;
+
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
@@ -17,26 +19,10 @@ const VARIABLES: [&str; 6] = [
 ];
 const SAMPLE_STEPS: usize = 12;
 
-fn repository() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
-
 /// Copies the bundled cmip-style run (one pathway) into `dir` and returns the copies, so a test
 /// that tries to write over an input can only ever touch a copy.
 fn sample_run(dir: &Path) -> Vec<PathBuf> {
-    let folder = repository().join("sample-grids/cmip-style/pathway-moderate");
-    let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|e| e == "nc"))
-        .map(|source| {
-            let copy = dir.join(source.file_name().unwrap());
-            std::fs::copy(&source, &copy).unwrap();
-            copy
-        })
-        .collect();
-    files.sort();
-    files
+    common::copy_sample_run(dir)
 }
 
 fn compute(inputs: &[PathBuf], output: &Path, extra: &[&str], env: &[(&str, &str)]) -> Output {

@@ -22,6 +22,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         inputs,
         mapping: VariableMapping::default(),
         density: DensityChoice::InSitu,
+        ..Default::default()
     };
     let run = Run::open(&spec)?;
     let shape = run.shape();

@@ -1,6 +1,7 @@
 //! Which dimension of a variable is time, vertical, Y or X — from CF attributes of
 //! coordinate variables (`axis`, `positive`, `standard_name`, `units`, `formula_terms`),
-//! auxiliary coordinates (`coordinates`), and only last from common dimension names.
+//! auxiliary coordinates (`coordinates`), and only last from the dimension names that model
+//! families write (`native.rs`).
 
 use crate::catalog::{attr_text, dim_names, read_all, InputFile};
 use crate::error::{GridError, Result};
@@ -36,7 +37,7 @@ const VERTICAL_STANDARD_NAMES: [&str; 8] = [
     "ocean_sigma_z_coordinate",
 ];
 
-fn is_degrees(units: &str, north: bool) -> bool {
+pub(crate) fn is_degrees(units: &str, north: bool) -> bool {
     let u = units.to_ascii_lowercase().replace(' ', "_");
     let list: &[&str] = if north {
         &[
@@ -62,7 +63,8 @@ fn is_degrees(units: &str, north: bool) -> bool {
 
 /// Axis of a coordinate variable from its CF attributes alone (CF sections 4.1-4.4).
 pub(crate) fn axis_of_coordinate(var: &netcdf::Variable) -> Option<Axis> {
-    if let Some(axis) = attr_text(var, "axis") {
+    // `cartesian_axis` is what FMS-based models (MOM) write instead of `axis` (from memory).
+    if let Some(axis) = attr_text(var, "axis").or_else(|| attr_text(var, "cartesian_axis")) {
         match axis.to_ascii_uppercase().as_str() {
             "T" => return Some(Axis::T),
             "Z" => return Some(Axis::Z),
@@ -99,40 +101,6 @@ pub(crate) fn axis_of_coordinate(var: &netcdf::Variable) -> Option<Axis> {
         return Some(Axis::X);
     }
     None
-}
-
-/// Axis guessed from a dimension name (common practice in ocean models); last resort.
-fn axis_from_name(name: &str) -> Option<Axis> {
-    let n = name.to_ascii_lowercase();
-    const T: [&str; 4] = ["time", "t", "ocean_time", "time_counter"];
-    const Z: [&str; 11] = [
-        "lev", "olevel", "depth", "deptht", "z", "s_rho", "level", "levels", "nz", "zt", "sigma",
-    ];
-    const Y: [&str; 9] = [
-        "y", "j", "nj", "lat", "latitude", "eta_rho", "nlat", "rlat", "ny",
-    ];
-    const X: [&str; 9] = [
-        "x",
-        "i",
-        "ni",
-        "lon",
-        "longitude",
-        "xi_rho",
-        "nlon",
-        "rlon",
-        "nx",
-    ];
-    if T.contains(&n.as_str()) {
-        Some(Axis::T)
-    } else if Z.contains(&n.as_str()) {
-        Some(Axis::Z)
-    } else if Y.contains(&n.as_str()) {
-        Some(Axis::Y)
-    } else if X.contains(&n.as_str()) {
-        Some(Axis::X)
-    } else {
-        None
-    }
 }
 
 /// Names listed in a variable's `coordinates` attribute that exist in the file.
@@ -176,7 +144,7 @@ pub(crate) fn classify_dims(file: &InputFile, var: &netcdf::Variable) -> Result<
     }
     for (i, d) in names.iter().enumerate() {
         if axes[i].is_none() {
-            axes[i] = axis_from_name(d);
+            axes[i] = crate::native::axis_of_dimension(d);
         }
     }
     let mut out = Vec::with_capacity(names.len());

@@ -593,17 +593,6 @@ pub struct TimePart {
     pub values: Vec<f64>,
 }
 
-/// A step much longer than usual between two consecutive values.
-#[derive(Debug, Clone, PartialEq)]
-pub struct TimeGap {
-    /// Index in the joined series of the value after the gap.
-    pub index: usize,
-    pub before: f64,
-    pub after: f64,
-    /// Median step of the joined series, for comparison.
-    pub median_step: f64,
-}
-
 /// The joined time series.
 #[derive(Debug, Clone, PartialEq)]
 pub struct JoinedTime {
@@ -611,15 +600,11 @@ pub struct JoinedTime {
     pub values: Vec<f64>,
     /// Indices into the input parts, in time order.
     pub part_order: Vec<usize>,
-    /// Steps longer than 1.5 times the median step (a missing file is the usual cause).
-    pub gaps: Vec<TimeGap>,
 }
 
-/// Joins per-file time values: orders parts by their first value, requires values to
-/// increase strictly within and across parts (else [`CalendarError::Overlap`]) and
-/// reports steps longer than 1.5 × the median step as gaps. The 1.5 factor lets
-/// monthly means of real calendars (28–31 days) pass while a missing month (≈ 59–62
-/// days) is reported.
+/// Joins per-file time values: orders parts by their first value and requires values to
+/// increase strictly within and across parts (else [`CalendarError::Overlap`]). Gaps are
+/// found afterwards, in the run's calendar (`crate::sampling::check_sampling`).
 pub fn join_time_parts(parts: &[TimePart]) -> Result<JoinedTime, CalendarError> {
     for part in parts {
         if let Some(&value) = part.values.iter().find(|v| !v.is_finite()) {
@@ -648,32 +633,9 @@ pub fn join_time_parts(parts: &[TimePart]) -> Result<JoinedTime, CalendarError> 
             previous = Some((value, index));
         }
     }
-    let mut steps: Vec<f64> = values.windows(2).map(|w| w[1] - w[0]).collect();
-    let mut gaps = Vec::new();
-    if !steps.is_empty() {
-        let unsorted = steps.clone();
-        steps.sort_by(f64::total_cmp);
-        let mid = steps.len() / 2;
-        let median_step = if steps.len() % 2 == 1 {
-            steps[mid]
-        } else {
-            0.5 * (steps[mid - 1] + steps[mid])
-        };
-        for (i, step) in unsorted.iter().enumerate() {
-            if *step > 1.5 * median_step {
-                gaps.push(TimeGap {
-                    index: i + 1,
-                    before: values[i],
-                    after: values[i + 1],
-                    median_step,
-                });
-            }
-        }
-    }
     Ok(JoinedTime {
         values,
         part_order: order,
-        gaps,
     })
 }
 

@@ -38,6 +38,8 @@ pub fn silence_hdf5_diagnostics() {
 pub(crate) struct InputFile {
     pub path: PathBuf,
     pub nc: netcdf::File,
+    /// Format and least length its header promises (checked when opened).
+    pub expected: crate::integrity::Expected,
 }
 
 /// Expands paths and glob patterns (in the order given, each pattern's matches sorted),
@@ -85,11 +87,17 @@ pub(crate) fn open_inputs(inputs: &[String]) -> Result<Vec<InputFile>> {
     open_paths(&paths)
 }
 
-/// Opens files already found (again, for metadata after [`open_inputs`]'s handles closed).
+/// Opens files already found (again, for metadata after [`open_inputs`]'s handles closed),
+/// each checked first against the length its header promises (`integrity.rs`).
 pub(crate) fn open_paths(paths: &[PathBuf]) -> Result<Vec<InputFile>> {
     paths
         .iter()
         .map(|path| {
+            let expected =
+                crate::integrity::expected_length(path).map_err(|message| GridError::Damaged {
+                    path: path.clone(),
+                    message,
+                })?;
             let nc = netcdf::open(path).map_err(|e| GridError::Unreadable {
                 path: path.clone(),
                 message: e.to_string(),
@@ -97,9 +105,29 @@ pub(crate) fn open_paths(paths: &[PathBuf]) -> Result<Vec<InputFile>> {
             Ok(InputFile {
                 path: path.clone(),
                 nc,
+                expected,
             })
         })
         .collect()
+}
+
+/// Refuses a file that has become shorter than its header promises since it was opened.
+pub(crate) fn still_complete(path: &Path, expected_len: u64) -> Result<()> {
+    let len = std::fs::metadata(path)
+        .map_err(|e| GridError::Unreadable {
+            path: path.to_path_buf(),
+            message: e.to_string(),
+        })?
+        .len();
+    if len < expected_len {
+        return Err(GridError::Damaged {
+            path: path.to_path_buf(),
+            message: format!(
+                "it now holds {len} of the {expected_len} bytes its header describes (it was cut short after the run was opened)"
+            ),
+        });
+    }
+    Ok(())
 }
 
 /// A text attribute of a variable, trimmed; None when absent or not text.

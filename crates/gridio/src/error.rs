@@ -21,6 +21,28 @@ pub enum GridError {
     #[error("input file {path}: cannot be opened as NetCDF ({message}); expected a readable, complete NetCDF-3 or NetCDF-4 file")]
     Unreadable { path: PathBuf, message: String },
 
+    /// The file is shorter than its header says, or its header is damaged.
+    #[error("input file {path}: damaged or truncated: {message}; expected a complete file (copy it again from the model's output, or leave it out of the run)")]
+    Damaged { path: PathBuf, message: String },
+
+    /// Required inputs (or what they hold) could not be found: one message lists every one,
+    /// the candidates in the files and how to name them.
+    #[error("{message}")]
+    MissingRoles { roles: Vec<String>, message: String },
+
+    /// Two files of one variable say different things that cannot both be honoured.
+    #[error("variable '{variable}': {first} and {second} disagree: {message}")]
+    FilesDisagree {
+        variable: String,
+        first: PathBuf,
+        second: PathBuf,
+        message: String,
+    },
+
+    /// Inputs whose values are implausible for their role (checked before any long work).
+    #[error("{message}")]
+    Implausible { message: String },
+
     /// A required variable was not found by standard name, CMIP/OMIP name or mapping.
     #[error("no {role} variable found in the run (looked for {looked_for}). Variables present: {present}. Map it with a variable mapping file entry `{role} = \"NAME\"` or the option --variable {role}=NAME")]
     MissingVariable {

@@ -7,18 +7,26 @@
 //! Missing and land values are `f64::NAN`.
 
 pub mod calendar;
+pub mod sampling;
 pub mod seawater;
 pub mod units;
 
 mod axes;
 mod catalog;
+mod conversion;
+mod discovery;
 mod error;
+mod grid;
+mod integrity;
 mod mapping;
+mod native;
 mod output;
+mod plausibility;
 mod report;
 mod resume_facts;
 mod roles;
 mod run;
+mod slab;
 mod source;
 mod timeline;
 mod vertical;
@@ -26,7 +34,9 @@ mod vertical;
 pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
-pub use run::{RawSlab, Run};
+pub use run::Run;
+
+pub use slab::RawSlab;
 
 use std::ops::Range;
 
@@ -39,6 +49,31 @@ pub struct RunSpec {
     pub mapping: VariableMapping,
     /// How per-volume concentrations become per-mass.
     pub density: DensityChoice,
+    /// Which failed checks the user accepts; default none.
+    pub checks: InputChecks,
+}
+
+impl Default for RunSpec {
+    fn default() -> Self {
+        RunSpec {
+            inputs: Vec::new(),
+            mapping: VariableMapping::default(),
+            density: DensityChoice::InSitu,
+            checks: InputChecks::default(),
+        }
+    }
+}
+
+/// Checks of a run the user states are to be accepted rather than refused.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct InputChecks {
+    /// Process inputs whose sampled values are implausible for their role (entirely
+    /// missing over the wet cells, or far outside the plausible range over a large part of
+    /// the grid); the finding is kept in the output's metadata.
+    pub accept_implausible: bool,
+    /// Accept time steps that break the run's sampling (missing or uneven steps, time
+    /// bounds that do not meet): the run is irregular on purpose.
+    pub irregular_time: bool,
 }
 
 /// Density used to turn per-volume concentrations (mol m-3) into per-mass (µmol kg-1).

@@ -18,6 +18,9 @@ use std::path::Path;
 #[derive(Default, Clone, Debug, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct MappedVariable {
+    /// Empty when only units or kind are given: the variable is then found as usual
+    /// (standard name, CMIP/OMIP or native name) and the units or kind applied to it.
+    #[serde(default)]
     pub name: String,
     /// Replaces the file's `units` attribute (for files with missing or wrong units).
     #[serde(default)]
@@ -128,7 +131,8 @@ impl VariableMapping {
     }
 
     /// Sets one override from the command line: `role` is a role name (`dic`), or
-    /// `role.units` / `role.kind` to set those fields of an already named role.
+    /// `role.units` / `role.kind` to set those fields (of a named role, or of the variable
+    /// found for that role when no name is given).
     pub fn set(&mut self, role: &str, value: &str) -> Result<()> {
         let bad = |message: String| GridError::Mapping {
             source_name: "override".to_string(),
@@ -153,11 +157,10 @@ impl VariableMapping {
                 entry.name = value.to_string();
             }
             Some(field @ ("units" | "kind")) => {
-                let entry = slot.as_mut().ok_or_else(|| {
-                    bad(format!(
-                        "set {role_name}=NAME before {role_name}.{field}=..."
-                    ))
-                })?;
+                if value.is_empty() {
+                    return Err(bad(format!("empty value for {role_name}.{field}")));
+                }
+                let entry = slot.get_or_insert_with(MappedVariable::default);
                 if field == "units" {
                     entry.units = Some(value.to_string());
                 } else {
@@ -335,6 +338,12 @@ mod tests {
             Some("mmol m-3")
         );
         assert!(m.set("ph", "x").is_err());
-        assert!(m.set("dic.units", "mol m-3").is_err());
+        // A kind or units alone apply to the variable found for the role.
+        m.set("temperature.kind", "conservative").unwrap();
+        assert_eq!(m.temperature.as_ref().unwrap().name, "");
+        assert!(m.set("temperature.kind", "lukewarm").is_err());
+        let m =
+            VariableMapping::from_toml_str("temperature = { kind = \"potential\" }", "t").unwrap();
+        assert_eq!(m.temperature.unwrap().kind.as_deref(), Some("potential"));
     }
 }

@@ -79,6 +79,9 @@ impl Role {
                 "sea_water_practical_salinity",
                 "sea_water_salinity",
                 "sea_water_absolute_salinity",
+                // Written by NEMO 4 in TEOS-10 runs (field_def_nemo-oce.xml); SR is what
+                // acidscape takes for SA anyway (see seawater.rs).
+                "sea_water_reference_salinity",
             ],
             Role::Phosphate => &[
                 "mole_concentration_of_dissolved_inorganic_phosphorus_in_sea_water",
@@ -93,6 +96,34 @@ impl Role {
             Role::Pressure => &["sea_water_pressure_due_to_sea_water", "sea_water_pressure"],
             Role::CellArea => &["cell_area"],
             Role::SeaFloorDepth => &["sea_floor_depth_below_geoid"],
+        }
+    }
+
+    /// Fragments of variable names and long names that suggest this role, for proposing a
+    /// mapping when nothing identifies the role (common practice in model output).
+    pub fn hints(self) -> &'static [&'static str] {
+        match self {
+            Role::Dic => &["dic", "tco2", "inorganic carbon", "dissic"],
+            Role::Alkalinity => &["alk", "talk"],
+            Role::Temperature => &["temp", "theta", "thetao"],
+            Role::Salinity => &["sal", "so"],
+            Role::Phosphate => &["po4", "phosph"],
+            Role::Silicate => &["silic", "sio", "si"],
+            Role::Pressure => &["pres"],
+            Role::CellArea => &["area"],
+            Role::SeaFloorDepth => &["bathy", "deptho"],
+        }
+    }
+
+    /// An example of the units a user would give for this role.
+    pub fn example_units(self) -> &'static str {
+        match self {
+            Role::Dic | Role::Alkalinity | Role::Phosphate | Role::Silicate => "mmol m-3",
+            Role::Temperature => "degC",
+            Role::Salinity => "1e-3",
+            Role::Pressure => "dbar",
+            Role::CellArea => "m2",
+            Role::SeaFloorDepth => "m",
         }
     }
 

@@ -17,7 +17,7 @@
 //!   (EOS-80) also when the input is TEOS-10 Conservative Temperature: CT is first
 //!   turned into TEOS-10 potential temperature by inverting gsw `ct_from_pt`, then
 //!   taken to in-situ temperature with the EOS-80 lapse rate. On the TEOS-10
-//!   example cast (gsw_t_from_CT documentation, 10–1000 dbar) the chain differs
+//!   example cast (TEOS-10 help page gsw_t_from_CT, 10–1000 dbar) the chain differs
 //!   from the exact TEOS-10 result by at most 2.2e-4 °C, and in-situ density from
 //!   (SP, t, p) differs from the exact-Gibbs gsw_rho(SA, t, p) by at most
 //!   5.2e-4 kg m-3 (measured in tests/conversions.rs).
@@ -116,7 +116,7 @@ pub fn practical_from_absolute(absolute_g_kg: f64) -> f64 {
 /// Adiabatic lapse rate \[°C/dbar\], Fofonoff & Millard 1983 ATG; S practical, t IPTS-68 °C, p dbar.
 ///
 /// ```
-/// // Fofonoff & Millard 1983 check value: ATG(40, 40 °C, 10000 dbar) = 3.255976e-4 °C/dbar.
+/// // Fofonoff & Millard 1983 check value (printed with its ATG; from memory): ATG(40, 40 °C, 10000 dbar) = 3.255976e-4 °C/dbar.
 /// let atg = acidscape_gridio::seawater::adiabatic_lapse_rate_ipts68(40.0, 40.0, 10000.0);
 /// assert!((atg - 3.255976e-4).abs() < 5e-11);
 /// ```
@@ -136,7 +136,7 @@ pub fn adiabatic_lapse_rate_ipts68(s: f64, t68: f64, p: f64) -> f64 {
 /// Potential temperature \[IPTS-68 °C\], Fofonoff & Millard 1983 THETA (4th-order Runge–Kutta, Gill's coefficients).
 ///
 /// ```
-/// // Fofonoff & Millard 1983 check value: THETA(40, 40 °C, 10000 dbar, 0) = 36.89073 °C.
+/// // Fofonoff & Millard 1983 check value (printed with its THETA; from memory): THETA(40, 40 °C, 10000 dbar, 0) = 36.89073 °C.
 /// let theta = acidscape_gridio::seawater::potential_temperature_ipts68(40.0, 40.0, 10000.0, 0.0);
 /// assert!((theta - 36.89073).abs() < 5e-6);
 /// ```
@@ -276,7 +276,7 @@ pub fn in_situ_from_conservative(
 /// In-situ density \[kg m-3\] from absolute salinity and Conservative Temperature (TEOS-10 75-term gsw rho).
 ///
 /// ```
-/// // gsw_rho documentation example (TEOS-10 v3.05): rho(34.7118, 28.8099, 10) = 1021.839935738108.
+/// // TEOS-10 help page gsw_rho (v3.05): rho(34.7118, 28.8099, 10) = 1021.839935738108.
 /// let rho = acidscape_gridio::seawater::density_from_conservative(34.7118, 28.8099, 10.0).unwrap();
 /// assert!((rho - 1021.839935738108).abs() < 1e-9);
 /// ```

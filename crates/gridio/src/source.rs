@@ -11,13 +11,31 @@ use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
 
-/// One file's part of a variable.
+/// One file's part of a variable, with that file's own layout and mask.
 #[derive(Clone, Debug)]
 pub(crate) struct Piece {
     pub file: usize,
     pub first_step: usize,
     pub steps: usize,
     pub mask: MaskRule,
+    /// Axes in this file's dimension order.
+    pub axes: Vec<Axis>,
+    /// Bytes the file's header promises (re-checked before each read).
+    pub expected_len: u64,
+}
+
+impl Piece {
+    /// A piece of one step in one file (static variables, coordinates).
+    pub fn whole(file: &InputFile, index: usize, var: &netcdf::Variable, axes: Vec<Axis>) -> Piece {
+        Piece {
+            file: index,
+            first_step: 0,
+            steps: 1,
+            mask: MaskRule::of(var),
+            axes,
+            expected_len: file.expected.length,
+        }
+    }
 }
 
 /// A variable located in the run's files.
@@ -56,17 +74,38 @@ impl std::fmt::Debug for DataHandle {
 
 impl VarSource {
     /// Locates `name` in the files of `spans` (time-dependent) or in `file` (static),
-    /// checking every file gives it the same axes and non-time lengths.
+    /// checking every file gives it the same dimension names and non-time lengths; each
+    /// file keeps its own dimension order and mask.
     pub fn new(name: &str, spans: &[TimeSpan], files: &[InputFile]) -> Result<VarSource> {
         let mut pieces = Vec::with_capacity(spans.len());
         let mut first: Option<(Vec<Axis>, Vec<usize>, usize)> = None;
+        let mut first_dims: Option<Vec<String>> = None;
         for span in spans {
             let file = &files[span.file];
             let var = crate::catalog::require_var(file, name, "the run")?;
             let axes = classify_dims(file, &var)?;
             let lens = dim_lens(&var);
+            let mut dims = crate::catalog::dim_names(&var);
+            dims.sort();
+            match &first_dims {
+                None => first_dims = Some(dims),
+                Some(want) if *want != dims => {
+                    let file0 = first.as_ref().map_or(span.file, |f| f.2);
+                    return Err(GridError::FilesDisagree {
+                        variable: name.to_string(),
+                        first: files[file0].path.clone(),
+                        second: file.path.clone(),
+                        message: format!(
+                            "dimensions ({}) in the first, ({}) in the second; expected every file of a variable on the same dimensions",
+                            want.join(", "),
+                            dims.join(", ")
+                        ),
+                    });
+                }
+                Some(_) => {}
+            }
             match &first {
-                None => first = Some((axes, lens, span.file)),
+                None => first = Some((axes.clone(), lens, span.file)),
                 Some((axes0, lens0, file0)) => {
                     let strip = |a: &[Axis], l: &[usize]| -> Vec<(Axis, usize)> {
                         a.iter()
@@ -98,6 +137,8 @@ impl VarSource {
                 first_step: span.first_step,
                 steps: span.steps,
                 mask: MaskRule::of(&var),
+                axes,
+                expected_len: file.expected.length,
             });
         }
         let (axes, lens, _) = first.ok_or_else(|| GridError::OutOfRange {
@@ -121,28 +162,39 @@ impl VarSource {
         self.axes.contains(&Axis::T)
     }
 
+    /// Index of the piece holding `step` (the only piece of a static variable).
+    pub fn piece_index(&self, step: usize) -> Option<usize> {
+        if !self.has_time() {
+            return Some(0);
+        }
+        let i = self
+            .pieces
+            .partition_point(|p| p.first_step <= step)
+            .checked_sub(1)?;
+        (step < self.pieces[i].first_step + self.pieces[i].steps).then_some(i)
+    }
+
     /// Reads one time step (ignored for static variables), all levels, rows `rows`, all
     /// columns; result in canonical order over the axes the variable has (Z, Y, X),
     /// masked to NaN and unpacked.
     pub fn read(&self, paths: &[PathBuf], step: usize, rows: &Range<usize>) -> Result<Vec<f64>> {
-        let piece = if self.has_time() {
-            let i = self.pieces.partition_point(|p| p.first_step <= step);
-            let piece = i.checked_sub(1).map(|i| &self.pieces[i]);
-            match piece {
-                Some(p) if step < p.first_step + p.steps => p,
-                _ => {
-                    return Err(GridError::OutOfRange {
-                        message: format!(
-                            "time step {step} not in any file of variable {}",
-                            self.name
-                        ),
-                    })
-                }
+        let piece = match self.piece_index(step) {
+            Some(i) => &self.pieces[i],
+            None => {
+                return Err(GridError::OutOfRange {
+                    message: format!("time step {step} not in any file of variable {}", self.name),
+                })
             }
-        } else {
-            &self.pieces[0]
         };
         let path = &paths[piece.file];
+        // netCDF-C fills the missing bytes of a cut classic file with zeros: check first.
+        crate::catalog::still_complete(path, piece.expected_len).map_err(|e| match e {
+            GridError::Damaged { path, message } => GridError::Damaged {
+                path,
+                message: format!("reading variable '{}': {message}", self.name),
+            },
+            other => other,
+        })?;
         let mut data = self
             .data
             .0
@@ -180,9 +232,16 @@ impl VarSource {
                 .to_string(),
         })?;
         let lens = dim_lens(&var);
-        let mut extents = Vec::with_capacity(self.axes.len());
-        let mut sizes = Vec::with_capacity(self.axes.len());
-        for (axis, len) in self.axes.iter().zip(&lens) {
+        if lens.len() != piece.axes.len() {
+            return Err(GridError::Metadata {
+                file: path.to_path_buf(),
+                variable: self.name.clone(),
+                message: "the variable's dimensions changed after the run was opened".to_string(),
+            });
+        }
+        let mut extents = Vec::with_capacity(piece.axes.len());
+        let mut sizes = Vec::with_capacity(piece.axes.len());
+        for (axis, len) in piece.axes.iter().zip(&lens) {
             let (extent, size) = match axis {
                 Axis::T => (
                     Extent::SliceCount {
@@ -225,8 +284,16 @@ impl VarSource {
         } else {
             var.get_values(extents).map_err(read_error)?
         };
+        let wanted: usize = sizes.iter().product();
+        if raw.len() != wanted {
+            return Err(GridError::Read {
+                file: path.to_path_buf(),
+                variable: self.name.clone(),
+                message: format!("short read: {} of {wanted} values", raw.len()),
+            });
+        }
         piece.mask.apply(&mut raw);
-        Ok(to_canonical(raw, &self.axes, &sizes))
+        Ok(to_canonical(raw, &piece.axes, &sizes))
     }
 }
 

@@ -1,10 +1,12 @@
 //! The run's time axis: each file's CF time coordinate, put in one common unit and
-//! calendar (calendar.rs), joined in time order with gaps and overlaps refused.
+//! calendar (calendar.rs), joined in time order with overlaps refused, and checked for
+//! gaps against the run's own sampling (sampling.rs).
 
 use crate::axes::{axis_of_coordinate, Axis};
 use crate::calendar::{join_time_parts, CalendarError, TimeAxis, TimePart};
 use crate::catalog::{attr_text, read_all, InputFile};
 use crate::error::{GridError, Result};
+use crate::sampling::{check_sampling, SamplingCheck};
 use std::path::PathBuf;
 
 /// Time coordinate of one file.
@@ -85,7 +87,7 @@ fn calendar_error(path: &std::path::Path, variable: &str, e: CalendarError) -> G
 }
 
 /// Joins the time axes of the files holding `variable` (indices into `files`/`times`)
-/// into the `reference` units; refuses overlaps and gaps.
+/// into the `reference` units; refuses overlaps (gaps: [`check_gaps`]).
 pub(crate) fn join_variable(
     variable: &str,
     holders: &[usize],
@@ -145,7 +147,6 @@ pub(crate) fn join_variable(
     })?;
     let mut spans = Vec::with_capacity(holders.len());
     let mut start = 0;
-    let mut part_at_step = Vec::with_capacity(joined.values.len());
     for &p in &joined.part_order {
         let steps = parts[p].values.len();
         spans.push(TimeSpan {
@@ -153,29 +154,7 @@ pub(crate) fn join_variable(
             first_step: start,
             steps,
         });
-        part_at_step.extend(std::iter::repeat_n(p, steps));
         start += steps;
-    }
-    if let Some(gap) = joined.gaps.first() {
-        let describe = |v: f64| {
-            reference
-                .to_datetime(v)
-                .map(|d| d.to_string())
-                .unwrap_or_else(|_| v.to_string())
-        };
-        return Err(GridError::TimeGap {
-            variable: variable.to_string(),
-            before: files[holders[part_at_step[gap.index - 1]]].path.clone(),
-            after: files[holders[part_at_step[gap.index]]].path.clone(),
-            message: format!(
-                "step from {} to {} is {:.4} {} while the usual step is {:.4}; a file or time steps are missing",
-                describe(gap.before),
-                describe(gap.after),
-                gap.after - gap.before,
-                reference.unit.cf_name(),
-                gap.median_step
-            ),
-        });
     }
     let bounds = if bounds_parts.iter().all(Option::is_some) {
         Some(
@@ -192,5 +171,49 @@ pub(crate) fn join_variable(
         values: joined.values,
         bounds,
         spans,
+    })
+}
+
+/// Infers the joined axis's sampling and refuses breaks of it (missing steps, uneven
+/// steps, bounds that do not meet), naming the files on both sides, unless
+/// `irregular_ok` (the user stated an irregular run is intended).
+pub(crate) fn check_gaps(
+    variable: &str,
+    joined: &Joined,
+    files: &[InputFile],
+    reference: &TimeAxis,
+    irregular_ok: bool,
+) -> Result<SamplingCheck> {
+    let check = check_sampling(reference, &joined.values, joined.bounds.as_deref());
+    let Some(first) = check.breaks.first().filter(|_| !irregular_ok) else {
+        return Ok(check);
+    };
+    let file_at = |step: usize| {
+        joined
+            .spans
+            .iter()
+            .find(|s| step >= s.first_step && step < s.first_step + s.steps)
+            .map_or_else(PathBuf::new, |s| files[s.file].path.clone())
+    };
+    let date = |v: f64| {
+        reference
+            .to_datetime(v)
+            .map(|d| d.to_string())
+            .unwrap_or_else(|_| v.to_string())
+    };
+    let (i, more) = (first.index, check.breaks.len() - 1);
+    Err(GridError::TimeGap {
+        variable: variable.to_string(),
+        before: file_at(i - 1),
+        after: file_at(i),
+        message: format!(
+            "the run is sampled {}{}, but between {} and {} {}{}; a file or time steps are missing. If the run is irregular on purpose, give --irregular-time",
+            check.sampling,
+            if check.from_bounds { " (by its time bounds)" } else { "" },
+            date(joined.values[i - 1]),
+            date(joined.values[i]),
+            first.found,
+            if more > 0 { format!(" ({more} more break(s) further on)") } else { String::new() }
+        ),
     })
 }

@@ -8,7 +8,11 @@
 //! a product of factors separated by spaces, `.`, `*` or `·`; a factor is a
 //! symbol with an optional integer exponent (`m-3`, `m^-3`, `m**-3`, `m⁻³`);
 //! `/` divides by the factor that follows it. `µ` (micro sign) and `μ` (Greek
-//! mu) are read as the prefix `u`.
+//! mu) are read as the prefix `u`. An amount may carry an annotation after an
+//! underscore naming what is counted, as ROMS writes them ("millimole_carbon
+//! meter-3", "millimole_PO4 meter-3"); the annotation does not change the amount.
+//! Equivalents (eq, meq, "milliequivalents") count as moles, as alkalinity is
+//! given in mole equivalents.
 
 use std::fmt;
 
@@ -36,9 +40,10 @@ impl fmt::Display for UnitsError {
 impl std::error::Error for UnitsError {}
 
 const CONCENTRATION_FORMS: &str =
-    "amount per volume (mol m-3, mol/m3, mol m^-3, mol.m-3, mmol m-3, umol L-1) \
-or per mass (mol kg-1, mol/kg, mmol/kg, umol kg-1, µmol kg-1, micromol kg-1), \
-with prefixes m, u/µ/micro, n and equivalents (eq, meq, ueq) counted as mol";
+    "amount per volume (mol m-3, mol/m3, mol m^-3, mol.m-3, mmol m-3, mmol/m3, umol L-1, \
+mol/L, millimole meter-3, millimole_carbon meter-3) or per mass (mol kg-1, mol/kg, \
+mmol/kg, umol kg-1, µmol kg-1, micromol kg-1), with prefixes m/milli, u/µ/micro, n/nano \
+and equivalents (eq, meq, ueq, milliequivalents) counted as mol";
 const TEMPERATURE_FORMS: &str =
     "degC, deg_C, degree_C, degrees_C, degree_Celsius, Celsius, °C, K, kelvin, degK";
 const SALINITY_FORMS: &str =
@@ -188,9 +193,11 @@ fn symbol(sym: &str) -> Option<(f64, Dimensions)> {
     let volume = |s| Some((s, VOLUME));
     let mass = |s| Some((s, MASS));
     match sym {
-        "mol" | "mole" | "moles" | "eq" => amount(1.0),
-        "mmol" | "millimol" | "millimole" | "millimoles" | "meq" => amount(1e-3),
-        "umol" | "micromol" | "micromole" | "micromoles" | "ueq" => amount(1e-6),
+        "mol" | "mole" | "moles" | "eq" | "equivalent" | "equivalents" => amount(1.0),
+        "mmol" | "millimol" | "millimole" | "millimoles" | "meq" | "milliequivalent"
+        | "milliequivalents" => amount(1e-3),
+        "umol" | "micromol" | "micromole" | "micromoles" | "ueq" | "microequivalent"
+        | "microequivalents" => amount(1e-6),
         "nmol" | "nanomol" | "nanomole" | "nanomoles" => amount(1e-9),
         "m" | "meter" | "meters" | "metre" | "metres" => length(1.0),
         "cm" | "centimeter" | "centimeters" | "centimetre" | "centimetres" => length(1e-2),
@@ -255,6 +262,11 @@ fn parse_quantity(units: &str) -> Option<Quantity> {
             q.scale *= number.powi(sign);
             continue;
         }
+        // "millimole_carbon": the annotation after `_` names what an amount counts.
+        let token = match token.split_once('_') {
+            Some((head, _)) if symbol(head).is_some_and(|(_, d)| d == AMOUNT) => head,
+            _ => token,
+        };
         let split = token
             .find(|c: char| c.is_ascii_digit() || c == '-' || c == '+')
             .unwrap_or(token.len());
@@ -339,6 +351,7 @@ pub fn parse_salinity(units: &str) -> Result<SalinityUnits, UnitsError> {
             | "o/oo"
             | "unitless"
             | "dimensionless"
+            | "nondimensional"
             | "none"
     );
     if named_practical {

@@ -32,10 +32,11 @@ fn missing_required_variable_lists_what_was_found() {
         "{e}"
     );
     assert!(
-        e.contains("dissic (mole_concentration_of_dissolved_inorganic_carbon_in_sea_water)"),
+        e.contains("dissic (dic)") && e.contains("so (salinity)"),
         "{e}"
     );
     assert!(e.contains("--variable alkalinity=NAME"), "{e}");
+    assert!(e.contains("alkalinity = { name = \"NAME\""), "{e}");
 }
 
 #[test]
@@ -148,7 +149,7 @@ fn truncated_file_is_unreadable_not_a_panic() {
     std::fs::write(victim, &bytes[..bytes.len() / 2]).unwrap();
     let e = open_err(all(dir.path()));
     assert!(
-        e.contains(&victim.display().to_string()) && e.contains("cannot be opened as NetCDF"),
+        e.contains(&victim.display().to_string()) && e.contains("truncated"),
         "{e}"
     );
 }
@@ -270,5 +271,84 @@ fn dimension_of_unknown_axis_is_refused() {
     assert!(
         e.contains("talk_a.nc") && e.contains("'talk'") && e.contains("dimension 'band'"),
         "{e}"
+    );
+}
+
+#[test]
+fn every_missing_role_is_listed_in_one_message_with_candidates_and_syntax() {
+    let dir = tempdir().unwrap();
+    let times = noleap_months(1);
+    let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
+    for (name, field, units, long_name) in [
+        ("CARBON", "dic", "mol m-3", "total carbon"),
+        ("ALKY", "alkalinity", "mol m-3", "total alkalinity"),
+        ("T3D", "temperature", "degC", "sea temperature"),
+        ("S3D", "salinity", "psu", "salinity"),
+    ] {
+        vars.push(
+            data_var(name, field, "", units, "tzyx", 0..1, GRID).attr("long_name", long_name),
+        );
+    }
+    let path = dir.path().join("model.nc");
+    write_nc(&path, &dims(GRID, 1), &vars);
+    let inputs = vec![path.display().to_string()];
+    let e = open_err(inputs.clone());
+    for needle in [
+        "4 input(s) missing",
+        "  dic: no dic variable found",
+        "  alkalinity: no alkalinity variable found",
+        "  temperature: no temperature variable found",
+        "  salinity: no salinity variable found",
+        "CARBON: long_name \"total carbon\", units \"mol m-3\", dims (time, lev, lat, lon)",
+        "--variable dic=NAME",
+        "--variable alkalinity=ALKY --variable alkalinity.units='mol m-3'",
+        "--variable temperature=T3D --variable temperature.units='degC' --variable temperature.kind=potential",
+        "--variable salinity=S3D",
+        "[variables]",
+        "temperature = { name = \"T3D\", units = \"degC\", kind = \"potential\" }",
+        "salinity = { name = \"S3D\", units = \"psu\", kind = \"practical\" }",
+    ] {
+        assert!(e.contains(needle), "lacks {needle}:\n{e}");
+    }
+    // Named as the message says, the run opens.
+    let mut spec = spec(inputs);
+    for (key, value) in [
+        ("dic", "CARBON"),
+        ("alkalinity", "ALKY"),
+        ("temperature", "T3D"),
+        ("temperature.kind", "potential"),
+        ("salinity", "S3D"),
+    ] {
+        spec.mapping.set(key, value).unwrap();
+    }
+    assert!(Run::open(&spec).is_ok());
+}
+
+#[test]
+fn units_or_kind_alone_apply_to_the_variable_found() {
+    let dir = tempdir().unwrap();
+    let times = three_of_four(dir.path());
+    let path = dir.path().join("talk_a.nc");
+    let mut vars = coordinates(GRID, &times, "days since 2015-01-01", "noleap");
+    vars.push(cmip_var("talk", "tzyx", 0..1, GRID).with("units", "mol per m3"));
+    write_nc(&path, &dims(GRID, 1), &vars);
+    let e = open_err(all(dir.path()));
+    assert!(e.contains("mol per m3"), "{e}");
+    let mut spec = spec(all(dir.path()));
+    spec.mapping.set("alkalinity.units", "mol m-3").unwrap();
+    // thetao is potential temperature by name; stating conservative overrides it.
+    spec.mapping
+        .set("temperature.kind", "conservative")
+        .unwrap();
+    let run = Run::open(&spec).unwrap();
+    let report = run.report();
+    assert!(
+        report.contains("variable 'talk' (found by CF standard_name)")
+            && report.contains("units \"mol m-3\""),
+        "{report}"
+    );
+    assert!(
+        report.contains("conservative temperature -> in-situ"),
+        "{report}"
     );
 }

@@ -4,6 +4,7 @@
 use acidscape_gridio::calendar::{
     join_time_parts, Calendar, CalendarError, DateTime, TimeAxis, TimePart,
 };
+use acidscape_gridio::sampling::{check_sampling, Sampling};
 use acidscape_gridio::seawater::{
     absolute_from_practical, adiabatic_lapse_rate_ipts68, density_from_conservative,
     depth_from_sea_pressure, in_situ_density, in_situ_from_conservative, in_situ_from_potential,
@@ -45,6 +46,80 @@ fn concentration_2_1_mol_per_m3_at_1025_is_2048_78_umol_per_kg() {
         assert_eq!(c.basis, ConcentrationBasis::PerVolume, "{units}");
         close(c.to_umol_per_kg(value, 1025.0), expected, 1e-9, units);
     }
+}
+
+#[test]
+fn unit_strings_that_ocean_models_write() {
+    // (as written, where it is written, mol m-3 or mol kg-1 per unit, per volume?)
+    let rows: [(&str, &str, f64, bool); 12] = [
+        (
+            "mmol/m3",
+            "NEMO PISCES field_def_nemo-pisces.xml",
+            1e-3,
+            true,
+        ),
+        ("millimole meter-3", "long unit words (UDUNITS)", 1e-3, true),
+        (
+            "millimole_carbon meter-3",
+            "ROMS varinfo.yaml TIC",
+            1e-3,
+            true,
+        ),
+        ("millimole_PO4 meter-3", "ROMS varinfo.yaml PO4", 1e-3, true),
+        (
+            "millimole_silica meter-3",
+            "ROMS varinfo.yaml SiOH4",
+            1e-3,
+            true,
+        ),
+        ("millimole_DIC meter-3", "ROMS varinfo.yaml DIC", 1e-3, true),
+        (
+            "milliequivalents meter-3",
+            "ROMS varinfo.yaml alkalinity",
+            1e-3,
+            true,
+        ),
+        ("meq m-3", "equivalents for alkalinity", 1e-3, true),
+        ("meq/m^3", "equivalents for alkalinity", 1e-3, true),
+        ("mol/L", "per litre", 1e3, true),
+        ("mol/kg", "GFDL COBALT generic_COBALT.F90", 1.0, false),
+        ("mol m-3", "CMIP6/OMIP dissic, talk", 1.0, true),
+    ];
+    for (units, written_by, to_mol, per_volume) in rows {
+        let c = parse_concentration(units).unwrap_or_else(|e| panic!("{written_by}: {e}"));
+        let basis = if per_volume {
+            ConcentrationBasis::PerVolume
+        } else {
+            ConcentrationBasis::PerMass
+        };
+        assert_eq!(c.basis, basis, "{units} ({written_by})");
+        close(c.to_mol, to_mol, to_mol * 1e-12, units);
+    }
+    // An annotation does not make an amount of what is not one.
+    for units in [
+        "millimole_carbon",
+        "carbon_millimole meter-3",
+        "meter_carbon meter-3",
+    ] {
+        assert!(parse_concentration(units).is_err(), "{units}");
+    }
+    // ROMS writes salinity as "nondimensional", temperature as "Celsius"; NEMO 3 "PSU".
+    for units in ["nondimensional", "PSU", "1e-3"] {
+        assert_eq!(
+            parse_salinity(units).unwrap(),
+            SalinityUnits::Practical,
+            "{units}"
+        );
+    }
+    for units in ["Celsius", "degC", "degree_Celsius"] {
+        assert_eq!(
+            parse_temperature(units).unwrap(),
+            TemperatureUnits::Celsius,
+            "{units}"
+        );
+    }
+    // MOM6 writes depth in "meters".
+    close(parse_length("meters").unwrap().to_m, 1.0, 0.0, "meters");
 }
 
 #[test]
@@ -424,10 +499,12 @@ fn joining_monthly_noleap_files_finds_gaps_and_overlaps() {
     let joined = join_time_parts(&parts).unwrap();
     assert_eq!(joined.part_order, vec![1, 2, 0]);
     assert_eq!(joined.values.len(), 36);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.sampling, Sampling::Months(1));
     assert!(
-        joined.gaps.is_empty(),
+        check.breaks.is_empty(),
         "28-31 day months are not gaps: {:?}",
-        joined.gaps
+        check.breaks
     );
     // First value: 14.5 days after 1850-01-01 (15 January, 12:00).
     close(joined.values[0], 14.5, 1e-12, "mid-January");
@@ -446,10 +523,11 @@ fn joining_monthly_noleap_files_finds_gaps_and_overlaps() {
         },
     ])
     .unwrap();
-    assert_eq!(joined.gaps.len(), 1);
-    let gap = &joined.gaps[0];
-    assert_eq!(a.to_datetime(gap.after).unwrap().month, 7);
-    assert!(gap.after - gap.before > 58.0);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.breaks.len(), 1);
+    let after = joined.values[check.breaks[0].index];
+    assert_eq!(a.to_datetime(after).unwrap().month, 7);
+    assert!(check.breaks[0].found.contains("2 calendar month"));
 
     // The same year twice is an overlap, named by file.
     let err = join_time_parts(&[
@@ -491,7 +569,7 @@ fn joining_monthly_360_day_files() {
         },
     ])
     .unwrap();
-    assert!(joined.gaps.is_empty());
+    assert!(check_sampling(&a, &joined.values, None).breaks.is_empty());
     // Every step is exactly 30 days in the 360_day calendar.
     assert!(joined
         .values
@@ -510,20 +588,22 @@ fn joining_monthly_360_day_files() {
         },
     ])
     .unwrap();
-    assert_eq!(joined.gaps.len(), 1);
+    let check = check_sampling(&a, &joined.values, None);
+    assert_eq!(check.sampling, Sampling::Months(1));
+    assert_eq!(check.breaks.len(), 1);
+    let i = check.breaks[0].index;
     close(
-        joined.gaps[0].after - joined.gaps[0].before,
+        joined.values[i] - joined.values[i - 1],
         60.0,
         1e-12,
         "gap length",
     );
-    close(joined.gaps[0].median_step, 30.0, 1e-12, "median step");
 }
 
 // ---------------------------------------------------------------- seawater
 
-// TEOS-10 example cast used throughout the GSW documentation (McDougall & Barker 2011,
-// GSW Oceanographic Toolbox help pages, teos-10.org/pubs/gsw/html/).
+// The example cast of the TEOS-10 help pages (teos-10.org/pubs/gsw/html/; IOC, SCOR &
+// IAPSO 2010, McDougall & Barker 2011): TEOS-10's own published check values.
 const CAST_SA: [f64; 6] = [34.7118, 34.8915, 35.0256, 34.8472, 34.7366, 34.7324];
 const CAST_CT: [f64; 6] = [28.8099, 28.4392, 22.7862, 10.2262, 6.8272, 4.3236];
 const CAST_T: [f64; 6] = [28.7856, 28.4329, 22.8103, 10.2600, 6.8863, 4.4036];
@@ -531,10 +611,11 @@ const CAST_P: [f64; 6] = [10.0, 50.0, 125.0, 250.0, 600.0, 1000.0];
 
 #[test]
 fn fofonoff_millard_1983_check_values() {
-    // Fofonoff & Millard 1983 (UNESCO Tech. Pap. Mar. Sci. 44) check values, as quoted by the
-    // marelac R documentation (sw_adtgrad) and the oce R documentation (sw.theta):
-    // ATG(S=40, T=40 °C, P=10000 dbar) = 3.255976e-4 °C/dbar;
-    // THETA(S=40, T=40 °C, P=10000 dbar, PR=0) = 36.89073 °C (IPTS-68).
+    // Fofonoff & Millard 1983 (UNESCO Tech. Pap. Mar. Sci. 44), the check values printed
+    // with the report's subprograms ATG (adiabatic lapse rate, section 7) and THETA
+    // (potential temperature, section 8), at S = 40, T = 40 °C (IPTS-68), P = 10000 dbar
+    // (from memory; check against the printed report):
+    // ATG = 3.255976e-4 °C/dbar; THETA referred to PR = 0 dbar = 36.89073 °C.
     close(
         adiabatic_lapse_rate_ipts68(40.0, 40.0, 10000.0),
         3.255976e-4,
@@ -547,24 +628,39 @@ fn fofonoff_millard_1983_check_values() {
         5e-6,
         "THETA",
     );
-    // Further check values from the same quotation (marelac sw_adtgrad), 4 significant digits;
-    // marelac takes pressure in bar, so 100 bar is 1000 dbar here.
-    for (s, t, p_bar, atg) in [
-        (25.0, 10.0, 0.0, 0.1002e-3),
-        (25.0, 10.0, 100.0, 0.1135e-3),
-        (25.0, 10.0, 1000.0, 0.2069e-3),
-        (25.0, 30.0, 0.0, 0.2417e-3),
-        (40.0, 30.0, 0.0, 0.2510e-3),
-        (40.0, 0.0, 100.0, 0.0630e-3),
-    ] {
-        let what = format!("ATG S={s} t={t} p={p_bar} bar");
-        close(
-            adiabatic_lapse_rate_ipts68(s, t, p_bar * 10.0),
-            atg,
-            5e-8,
-            &what,
-        );
-    }
+    // THETA referred back to the original pressure returns the in-situ temperature, and
+    // the ITS-90 wrapper agrees with it through t68 = 1.00024 t90 (Saunders 1990).
+    let theta = potential_temperature_ipts68(40.0, 40.0, 10000.0, 0.0);
+    close(
+        potential_temperature_ipts68(40.0, theta, 0.0, 10000.0),
+        40.0,
+        1e-4,
+        "THETA back to 10000 dbar",
+    );
+    close(
+        potential_from_in_situ(40.0, 40.0 / 1.00024, 10000.0),
+        36.89073 / 1.00024,
+        5e-6,
+        "ITS-90",
+    );
+}
+
+#[test]
+fn teos10_density_and_depth_near_the_fofonoff_millard_1983_check_values() {
+    // The same report's check values for density and depth (from memory): SIGMA = 59.82037
+    // kg m-3 (density 1059.82037 kg m-3, EOS-80) at S = 40, T = 40 °C, P = 10000 dbar, and
+    // DEPTH = 9712.653 m at P = 10000 dbar, latitude 30°. acidscape uses TEOS-10 for both
+    // (75-term density with SA = SR; p_from_z), not EOS-80: at this extreme corner the two
+    // equations of state differ by a few hundredths of a kg m-3 and the two depth formulas
+    // by about a metre in ten kilometres, so these are checks of size, not of digits.
+    let rho = in_situ_density(40.0, 40.0 / 1.00024, 10000.0).unwrap();
+    close(rho, 1059.82037, 0.05, "density at S 40, 40 °C, 10000 dbar");
+    close(
+        depth_from_sea_pressure(10000.0, 30.0),
+        9712.653,
+        2.0,
+        "depth of 10000 dbar at 30°",
+    );
 }
 
 #[test]
@@ -615,8 +711,8 @@ fn in_situ_from_potential_meets_its_1e_10_tolerance_over_the_oceanic_range() {
 
 #[test]
 fn teos10_pressure_from_depth() {
-    // gsw_p_from_z documentation example (TEOS-10, 75-term), z = -(10..1000) m, lat = 4°N,
-    // as printed by GSW-R 1.0-5.
+    // TEOS-10 help page gsw_p_from_z (75-term), z = -(10..1000) m, lat = 4°N (values from
+    // memory: the page's excerpt read here stopped before them).
     let depths = [10.0, 50.0, 125.0, 250.0, 600.0, 1000.0];
     let expected = [
         10.055726724518,
@@ -634,7 +730,8 @@ fn teos10_pressure_from_depth() {
             "p_from_z",
         );
     }
-    // gsw_z_from_p documentation example, p = 10..1000 dbar, lat = 4°N (GSW-R 1.0-5).
+    // TEOS-10 help page gsw_z_from_p (75-term), p = 10..1000 dbar, lat = 4°N (first value
+    // read on the page, the others from memory).
     let heights = [
         -9.9445834469453,
         -49.7180897012550,
@@ -650,7 +747,7 @@ fn teos10_pressure_from_depth() {
 
 #[test]
 fn teos10_potential_from_conservative_temperature() {
-    // gsw_pt_from_CT documentation example (TEOS-10 v3.05).
+    // TEOS-10 help page gsw_pt_from_CT (v3.05).
     let expected = [
         28.783177048624573,
         28.420955597191984,
@@ -667,7 +764,7 @@ fn teos10_potential_from_conservative_temperature() {
 
 #[test]
 fn teos10_in_situ_from_conservative_temperature_within_half_a_millidegree() {
-    // gsw_t_from_CT documentation example (TEOS-10 v3.01): exact-Gibbs results
+    // TEOS-10 help page gsw_t_from_CT (v3.01): exact-Gibbs results
     // 28.785580227725703 ... 4.403624452383043. Ours mixes TEOS-10 pt with the EOS-80
     // lapse rate; the difference over this cast is the size of that approximation.
     let expected = [
@@ -703,7 +800,7 @@ fn teos10_in_situ_from_conservative_temperature_within_half_a_millidegree() {
 
 #[test]
 fn teos10_density_check_values() {
-    // gsw_rho documentation example (TEOS-10 v3.05, 75-term equation, Roquet et al. 2015).
+    // TEOS-10 help page gsw_rho (v3.05, 75-term equation, Roquet et al. 2015).
     let expected = [
         1021.839935738108,
         1022.262457966867,
@@ -716,7 +813,7 @@ fn teos10_density_check_values() {
         let rho = density_from_conservative(CAST_SA[i], CAST_CT[i], CAST_P[i]).unwrap();
         close(rho, expected[i], 1e-9, "rho(SA, CT, p)");
     }
-    // gsw_rho(SA, t, p) documentation example of GSW v2.0 (exact Gibbs function, in-situ t):
+    // TEOS-10 help page gsw_rho(SA, t, p) of version 2.0 (exact Gibbs function, in-situ t):
     // from SP = SA*35/35.16504, in-situ t and p our chain (SR, FM83 theta, CT, 75-term rho)
     // must agree to within the 75-term fit error plus the theta approximation.
     let expected_from_t = [
@@ -784,7 +881,7 @@ fn combined_state_matches_the_separate_functions() {
         }
     }
     // TEOS-10 cast, Conservative Temperature input: density equals gsw_rho(SA, CT, p)
-    // (gsw_rho documentation example, TEOS-10 v3.05) since SA is recovered exactly from SP.
+    // (TEOS-10 help page gsw_rho, v3.05) since SA is recovered exactly from SP.
     let sp = practical_from_absolute(CAST_SA[4]);
     let state = in_situ_state(TemperatureKind::Conservative, CAST_CT[4], sp, CAST_P[4]).unwrap();
     close(state.density_kg_m3, 1029.837779000189, 1e-9, "rho from CT");

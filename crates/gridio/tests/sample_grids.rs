@@ -30,6 +30,7 @@ fn every_sample_run_opens_and_reports_its_inputs() {
             inputs: vec![format!("{}/*.nc", dir.display())],
             mapping: Default::default(),
             density: DensityChoice::InSitu,
+            ..Default::default()
         };
         let run = Run::open(&spec).unwrap_or_else(|e| panic!("{}: {e}", dir.display()));
         let report = run.report();

@@ -60,9 +60,10 @@ fn assert_kept_and_resumable(err: &PipelineError, steps_done: usize, output: &Pa
 
 #[test]
 fn a_damaged_chunk_found_mid_run_resumes_after_the_file_is_replaced() {
-    // (variable, step whose chunk is damaged): the first step of a later file (not yet read),
-    // a step inside a later file (read in part), a step inside the first file.
-    for (variable, step) in [("thetao", 3), ("dissic", 7), ("so", 5), ("talk", 1)] {
+    // (variable, step whose chunk is damaged): steps inside a later file (read in part), a step
+    // inside the first file. The first step of every file is read when the run is opened, so
+    // damage there stops the job before any work (see the next test).
+    for (variable, step) in [("thetao", 4), ("dissic", 7), ("so", 5), ("talk", 1)] {
         let dir = tempfile::tempdir().unwrap();
         let inputs = write_compressed_run(dir.path(), STEPS, FILES);
         let (whole, full) = whole_run(dir.path(), &inputs);
@@ -96,6 +97,30 @@ fn a_damaged_chunk_found_mid_run_resumes_after_the_file_is_replaced() {
         assert_eq!(resumed.counts, full.counts);
         assert_same_output(&whole, &output);
         assert!(!partial_path(&output).exists() && !progress_path(&output).exists());
+    }
+}
+
+#[test]
+fn a_damaged_first_step_of_a_later_file_is_refused_before_any_work() {
+    for (variable, step) in [("thetao", 3), ("talk", 6)] {
+        let dir = tempfile::tempdir().unwrap();
+        let inputs = write_compressed_run(dir.path(), STEPS, FILES);
+        let file = step / 3;
+        corrupt_step(&inputs[file], variable, step);
+        let spec = acidscape_gridio::RunSpec {
+            inputs: inputs.iter().map(|p| p.display().to_string()).collect(),
+            ..Default::default()
+        };
+        let message = match acidscape_gridio::Run::open(&spec) {
+            Ok(_) => panic!("{variable} step {step}: a damaged file opened"),
+            Err(e) => e.to_string(),
+        };
+        assert!(
+            message.contains(&inputs[file].display().to_string()) && message.contains(variable),
+            "the message names the file and variable: {message}"
+        );
+        let output = dir.path().join("out.nc");
+        assert!(!output.exists() && !partial_path(&output).exists());
     }
 }
 

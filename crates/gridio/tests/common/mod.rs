@@ -6,12 +6,15 @@ use netcdf::AttributeValue;
 use std::path::{Path, PathBuf};
 
 /// A variable to write: name, dimension names, attributes, values in file order.
+#[derive(Clone)]
 pub struct Var {
     pub name: String,
     pub dims: Vec<String>,
     pub attrs: Vec<(String, AttributeValue)>,
     pub values: Vec<f64>,
     pub float32: bool,
+    /// Stored as 16-bit integers (packed data: values are the packed integers).
+    pub int16: bool,
 }
 
 impl Var {
@@ -22,6 +25,7 @@ impl Var {
             attrs: Vec::new(),
             values,
             float32: false,
+            int16: false,
         }
     }
     pub fn attr(mut self, key: &str, value: impl Into<AttributeValue>) -> Var {
@@ -32,17 +36,72 @@ impl Var {
         self.float32 = true;
         self
     }
+    pub fn i16(mut self) -> Var {
+        self.int16 = true;
+        self.float32 = false;
+        self
+    }
+    /// Removes an attribute (e.g. to write it again with another value).
+    pub fn without(mut self, key: &str) -> Var {
+        self.attrs.retain(|(k, _)| k != key);
+        self
+    }
+    /// Replaces an attribute.
+    pub fn with(self, key: &str, value: impl Into<AttributeValue>) -> Var {
+        self.without(key).attr(key, value)
+    }
 }
+
+/// Storage format of a written test file.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Format {
+    /// NetCDF-4 (HDF5).
+    Netcdf4,
+    /// NetCDF classic (CDF-1), `time` as the record (unlimited) dimension.
+    Classic,
+    /// NetCDF 64-bit offset (CDF-2), `time` as the record dimension.
+    Offset64,
+    /// NetCDF 64-bit data (CDF-5), `time` as the record dimension.
+    Data64,
+}
+
+pub const ALL_FORMATS: [Format; 4] = [
+    Format::Classic,
+    Format::Offset64,
+    Format::Data64,
+    Format::Netcdf4,
+];
 
 /// Writes a NetCDF-4 file with the given dimensions and variables.
 pub fn write_nc(path: &Path, dims: &[(&str, usize)], vars: &[Var]) {
-    let mut f = netcdf::create(path).unwrap();
+    write_nc_as(path, Format::Netcdf4, dims, vars)
+}
+
+/// Writes a file in `format`; in the classic formats a dimension named `time` or
+/// `time_counter` or `ocean_time` is the record dimension.
+pub fn write_nc_as(path: &Path, format: Format, dims: &[(&str, usize)], vars: &[Var]) {
+    let options = match format {
+        Format::Netcdf4 => netcdf::Options::NETCDF4,
+        Format::Classic => netcdf::Options::empty(),
+        Format::Offset64 => netcdf::Options::_64BIT_OFFSET,
+        Format::Data64 => netcdf::Options::_64BIT_DATA,
+    };
+    let mut f = netcdf::create_with(path, options).unwrap();
     for (name, len) in dims {
-        f.add_dimension(name, *len).unwrap();
+        let record =
+            format != Format::Netcdf4 && ["time", "time_counter", "ocean_time"].contains(name);
+        if record {
+            f.add_unlimited_dimension(name).unwrap();
+        } else {
+            f.add_dimension(name, *len).unwrap();
+        }
     }
+    // Define everything first, then write (classic files leave define mode once).
     for v in vars {
         let dims: Vec<&str> = v.dims.iter().map(String::as_str).collect();
-        if v.float32 {
+        if v.int16 {
+            f.add_variable::<i16>(&v.name, &dims).unwrap();
+        } else if v.float32 {
             f.add_variable::<f32>(&v.name, &dims).unwrap();
         } else {
             f.add_variable::<f64>(&v.name, &dims).unwrap();
@@ -51,20 +110,28 @@ pub fn write_nc(path: &Path, dims: &[(&str, usize)], vars: &[Var]) {
         for (k, value) in &v.attrs {
             var.put_attribute(k, value.clone()).unwrap();
         }
-        if v.values.is_empty() {
-            continue;
-        }
-        if v.float32 {
-            let values: Vec<f32> = v.values.iter().map(|x| *x as f32).collect();
-            if dims.is_empty() {
-                var.put_value(values[0], ()).unwrap();
+    }
+    if format != Format::Netcdf4 {
+        f.enddef().unwrap();
+    }
+    let len_of = |d: &str| dims.iter().find(|(n, _)| *n == d).unwrap().1;
+    for v in vars.iter().filter(|v| !v.values.is_empty()) {
+        let mut var = f.variable_mut(&v.name).unwrap();
+        let extents: Vec<netcdf::Extent> = v.dims.iter().map(|d| (0..len_of(d)).into()).collect();
+        if v.dims.is_empty() {
+            if v.float32 {
+                var.put_value(v.values[0] as f32, ()).unwrap();
             } else {
-                var.put_values(&values, ..).unwrap();
+                var.put_value(v.values[0], ()).unwrap();
             }
-        } else if dims.is_empty() {
-            var.put_value(v.values[0], ()).unwrap();
+        } else if v.int16 {
+            let values: Vec<i16> = v.values.iter().map(|x| x.round() as i16).collect();
+            var.put_values(&values, extents).unwrap();
+        } else if v.float32 {
+            let values: Vec<f32> = v.values.iter().map(|x| *x as f32).collect();
+            var.put_values(&values, extents).unwrap();
         } else {
-            var.put_values(&v.values, ..).unwrap();
+            var.put_values(&v.values, extents).unwrap();
         }
     }
     f.close().unwrap();
@@ -311,11 +378,24 @@ pub fn noleap_months(n: usize) -> Vec<f64> {
         .collect()
 }
 
+/// Bounds (start, end of each month) of [`noleap_months`], days since 2015-01-01.
+pub fn noleap_month_bounds(n: usize) -> Vec<f64> {
+    const LENGTHS: [f64; 12] = [31., 28., 31., 30., 31., 30., 31., 31., 30., 31., 30., 31.];
+    let mut start = 0.0;
+    let mut out = Vec::with_capacity(2 * n);
+    for m in 0..n {
+        out.extend([start, start + LENGTHS[m % 12]]);
+        start += LENGTHS[m % 12];
+    }
+    out
+}
+
 pub fn spec(inputs: Vec<String>) -> acidscape_gridio::RunSpec {
     acidscape_gridio::RunSpec {
         inputs,
         mapping: Default::default(),
         density: acidscape_gridio::DensityChoice::Reference(1025.0),
+        ..Default::default()
     }
 }
 
@@ -329,4 +409,54 @@ pub fn cmip_run(dir: &Path, n: usize, calendar: &str) -> Vec<PathBuf> {
         out.push(cmip_file(dir, var, "b", half..n, &times[half..], calendar));
     }
     out
+}
+
+/// A run of `steps` monthly steps, two files per variable (`<var>_a.nc`, `<var>_b.nc`, the
+/// second from step 2); `alter` may rewrite each second file's variable.
+pub fn split_run(dir: &Path, variables: &[&str], steps: usize, alter: &dyn Fn(&str, Var) -> Var) {
+    let times = noleap_months(steps);
+    for var in variables {
+        for (tag, range) in [("a", 0..2), ("b", 2..steps)] {
+            let mut vars = coordinates(
+                GRID,
+                &times[range.clone()],
+                "days since 2015-01-01",
+                "noleap",
+            );
+            let mut data = cmip_var(var, "tzyx", range.clone(), GRID);
+            if tag == "b" {
+                data = alter(var, data);
+            }
+            vars.push(data);
+            write_nc(
+                &dir.join(format!("{var}_{tag}.nc")),
+                &dims(GRID, range.len()),
+                &vars,
+            );
+        }
+    }
+}
+
+/// An `alter` for [`split_run`] that rewrites only variable `name`.
+pub fn only<'a>(name: &'a str, rewrite: &'a dyn Fn(Var) -> Var) -> impl Fn(&str, Var) -> Var + 'a {
+    move |var, v| if var == name { rewrite(v) } else { v }
+}
+
+/// A variable with every value mapped by `f`.
+pub fn map_values(v: Var, f: impl Fn(f64) -> f64) -> Var {
+    let mut v = v;
+    v.values.iter_mut().for_each(|x| *x = f(*x));
+    v
+}
+
+/// Opens every `.nc` file of `dir` with the given accepted checks; the error as text.
+pub fn open_dir(
+    dir: &Path,
+    checks: acidscape_gridio::InputChecks,
+) -> Result<acidscape_gridio::Run, String> {
+    let spec = acidscape_gridio::RunSpec {
+        checks,
+        ..spec(vec![format!("{}/*.nc", dir.display())])
+    };
+    acidscape_gridio::Run::open(&spec).map_err(|e| e.to_string())
 }

@@ -15,6 +15,7 @@ pub fn open_run(paths: &[PathBuf]) -> Run {
         inputs: paths.iter().map(|p| p.display().to_string()).collect(),
         mapping: VariableMapping::default(),
         density: DensityChoice::InSitu,
+        ..Default::default()
     })
     .unwrap()
 }

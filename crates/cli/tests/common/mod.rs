@@ -1,0 +1,28 @@
+//! Helpers shared by the command-line tests.
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+
+/// The repository's root.
+pub fn repository() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
+}
+
+/// Copies the bundled SYNTHETIC cmip-style run (one pathway) into `dir` and returns the
+/// copies, sorted, so a test that alters or tries to write over an input only ever touches
+/// a copy.
+pub fn copy_sample_run(dir: &Path) -> Vec<PathBuf> {
+    let folder = repository().join("sample-grids/cmip-style/pathway-moderate");
+    let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "nc"))
+        .map(|source| {
+            let copy = dir.join(source.file_name().unwrap());
+            std::fs::copy(&source, &copy).unwrap();
+            copy
+        })
+        .collect();
+    files.sort();
+    files
+}

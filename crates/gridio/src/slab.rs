@@ -1,0 +1,329 @@
+//! Reading slabs of a run: the file reads ([`Run::read_raw_slab`], serialised by libnetcdf)
+//! and the conversions ([`Run::convert_slab`], parallel), each file's values converted by
+//! that file's own meaning.
+
+use crate::axes::Axis;
+use crate::conversion::Conversion;
+use crate::error::{GridError, Result};
+use crate::mapping::{SalinityKind, TemperatureKind};
+use crate::roles::Role;
+use crate::run::Run;
+use crate::seawater;
+use crate::units::{Concentration, SalinityUnits, TemperatureUnits};
+use crate::vertical::Vertical;
+use crate::{DensityChoice, SlabInputs};
+use rayon::prelude::*;
+use std::ops::Range;
+
+impl Run {
+    /// Reads and converts one slab: time step `step`, all levels, rows `rows`, all columns.
+    pub fn read_slab(&self, step: usize, rows: Range<usize>) -> Result<SlabInputs> {
+        let raw = self.read_raw_slab(step, rows)?;
+        Ok(self.convert_slab(raw))
+    }
+
+    /// The file-reading half of [`Run::read_slab`]: every value the slab needs, masked and
+    /// unpacked but not converted. Reading is serialised by libnetcdf; converting
+    /// ([`Run::convert_slab`]) is pure computation, so a pipeline can convert one slab on
+    /// its worker threads while its reader thread reads the next.
+    pub fn read_raw_slab(&self, step: usize, rows: Range<usize>) -> Result<RawSlab> {
+        crate::catalog::silence_hdf5_diagnostics();
+        if step >= self.time_steps() || rows.start >= rows.end || rows.end > self.shape.rows {
+            return Err(GridError::OutOfRange {
+                message: format!(
+                    "asked for step {step}, rows {}..{}; the run has {} steps and {} rows",
+                    rows.start,
+                    rows.end,
+                    self.time_steps(),
+                    self.shape.rows
+                ),
+            });
+        }
+        let read = |role: Role| self.required(role).source.read(&self.paths, step, &rows);
+        let temperature_raw = read(Role::Temperature)?;
+        let salinity_raw = read(Role::Salinity)?;
+        let dic_raw = read(Role::Dic)?;
+        let alkalinity_raw = read(Role::Alkalinity)?;
+        let optional = |role: Role| -> Result<Option<Vec<f64>>> {
+            self.input(role)
+                .map(|i| i.source.read(&self.paths, step, &rows))
+                .transpose()
+        };
+        let phosphate_raw = optional(Role::Phosphate)?;
+        let silicate_raw = optional(Role::Silicate)?;
+        let pressure_raw = optional(Role::Pressure)?;
+        let latitude = self.latitude_per_column(&rows)?;
+        // Heights change per cell and step only without fixed levels (free surface,
+        // terrain-following levels); fixed levels need none.
+        let heights = match self.vertical {
+            Vertical::Surface | Vertical::Parametric(_) => {
+                Some(
+                    self.vertical
+                        .heights(&self.paths, step, &rows, self.shape.cols)?,
+                )
+            }
+            Vertical::Depths { .. } | Vertical::Pressures { .. } => None,
+        };
+        Ok(RawSlab {
+            step,
+            rows,
+            temperature_raw,
+            salinity_raw,
+            dic_raw,
+            alkalinity_raw,
+            phosphate_raw,
+            silicate_raw,
+            pressure_raw,
+            latitude,
+            heights,
+        })
+    }
+
+    /// The converting half of [`Run::read_slab`]: units, TEOS-10 and EOS-80 conversions,
+    /// in parallel on the current rayon pool. Never fails: what cannot be converted is NaN.
+    /// `raw` must come from this run's [`Run::read_raw_slab`].
+    pub fn convert_slab(&self, raw: RawSlab) -> SlabInputs {
+        let cols = self.shape.cols;
+        let cells = self.shape.levels * raw.rows.len() * cols;
+
+        // Depth and sea pressure per cell.
+        let (depth_m, mut pressure_dbar) =
+            self.depth_and_pressure(&raw.rows, &raw.latitude, raw.heights);
+        let step = raw.step;
+        if let (Some(given), Some(input)) = (&raw.pressure_raw, self.input(Role::Pressure)) {
+            if let Conversion::Pressure(to_dbar, atmosphere) = input.meaning_at(step).conversion {
+                for (p, r) in pressure_dbar.iter_mut().zip(given) {
+                    *p = r * to_dbar - atmosphere;
+                }
+            }
+        }
+
+        // Temperature, salinity, density, concentrations: converted in place, each by the
+        // meaning of the file the step was read from.
+        let (t_scale, t_kind) = match self.required(Role::Temperature).meaning_at(step).conversion {
+            Conversion::Temperature(scale, kind) => (scale, kind),
+            _ => (TemperatureUnits::Celsius, TemperatureKind::InSitu),
+        };
+        let salinity_meaning = self.required(Role::Salinity).meaning_at(step);
+        let salinity_scale = salinity_meaning.salinity_scale;
+        let salinity_conversion = match &salinity_meaning.conversion {
+            Conversion::Salinity(kind, units) => (*kind, *units),
+            _ => (SalinityKind::Practical, SalinityUnits::Practical),
+        };
+        let concentration =
+            |role: Role| match self.input(role).map(|i| &i.meaning_at(step).conversion) {
+                Some(Conversion::Concentration(c)) => Some(*c),
+                _ => None,
+            };
+        let (dic_units, alk_units) = (concentration(Role::Dic), concentration(Role::Alkalinity));
+        let (po4_units, si_units) = (
+            concentration(Role::Phosphate),
+            concentration(Role::Silicate),
+        );
+        let mut temperature_c = raw.temperature_raw;
+        let mut salinity = raw.salinity_raw;
+        let mut dic = raw.dic_raw;
+        let mut alkalinity = raw.alkalinity_raw;
+        // Absent nutrients are 0 µmol kg-1 and stay so (their units are None).
+        let mut phosphate = raw.phosphate_raw.unwrap_or_else(|| vec![0.0; cells]);
+        let mut silicate = raw.silicate_raw.unwrap_or_else(|| vec![0.0; cells]);
+        let mut density_kg_m3 = vec![0.0; cells];
+        (
+            (
+                temperature_c.par_iter_mut(),
+                salinity.par_iter_mut(),
+                density_kg_m3.par_iter_mut(),
+                pressure_dbar.par_iter(),
+            ),
+            (
+                dic.par_iter_mut(),
+                alkalinity.par_iter_mut(),
+                phosphate.par_iter_mut(),
+                silicate.par_iter_mut(),
+            ),
+        )
+            .into_par_iter()
+            .with_min_len(256)
+            .for_each(|((t, s, rho, p), (dic, alk, po4, si))| {
+                let p = *p;
+                let sp = match salinity_conversion {
+                    (SalinityKind::Practical, _) => *s * salinity_scale,
+                    (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
+                        seawater::practical_from_absolute(*s * to_g_per_kg)
+                    }
+                    (SalinityKind::Absolute, SalinityUnits::Practical) => {
+                        seawater::practical_from_absolute(*s)
+                    }
+                };
+                let t_file = t_scale.to_celsius(*t);
+                let (t_situ, density) = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
+                    in_situ_temperature_and_density(self.density, t_kind, t_file, sp, p)
+                } else {
+                    let reference = match self.density {
+                        DensityChoice::Reference(rho) => rho,
+                        DensityChoice::InSitu => f64::NAN,
+                    };
+                    (f64::NAN, reference)
+                };
+                *s = sp;
+                *t = t_situ;
+                *rho = density;
+                let convert = |units: Option<Concentration>, v: f64| {
+                    units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
+                };
+                *dic = convert(dic_units, *dic);
+                *alk = convert(alk_units, *alk);
+                if po4_units.is_some() {
+                    *po4 = convert(po4_units, *po4);
+                }
+                if si_units.is_some() {
+                    *si = convert(si_units, *si);
+                }
+            });
+        SlabInputs {
+            step: raw.step,
+            shape: [self.shape.levels, raw.rows.len(), cols],
+            rows: raw.rows,
+            salinity,
+            temperature_c,
+            density_kg_m3,
+            dic,
+            alkalinity,
+            phosphate,
+            silicate,
+            pressure_dbar,
+            depth_m,
+        }
+    }
+
+    /// Depth [m, positive down] and sea pressure [dbar] of every cell of a slab. On fixed
+    /// levels (depth or pressure) both depend on level and latitude only: they are computed
+    /// once per level and run of equal latitudes (once per row on a rectilinear grid).
+    fn depth_and_pressure(
+        &self,
+        rows: &Range<usize>,
+        latitude: &Option<Vec<f64>>,
+        heights: Option<(Vec<f64>, Vec<f64>)>,
+    ) -> (Vec<f64>, Vec<f64>) {
+        let columns = rows.len() * self.shape.cols;
+        let cells = self.shape.levels * columns;
+        let lat_of = |column: usize| latitude.as_ref().map_or(0.0, |l| l[column]);
+        let per_level = |at: &(dyn Fn(usize, f64) -> (f64, f64) + Sync)| {
+            let mut depth = vec![0.0; cells];
+            let mut pressure = vec![0.0; cells];
+            depth
+                .par_chunks_mut(columns.max(1))
+                .zip(pressure.par_chunks_mut(columns.max(1)))
+                .enumerate()
+                .for_each(|(level, (depth, pressure))| {
+                    let mut last: Option<(f64, (f64, f64))> = None;
+                    for column in 0..columns {
+                        let lat = lat_of(column);
+                        let value = match last {
+                            Some((l, v)) if l == lat => v,
+                            _ => at(level, lat),
+                        };
+                        last = Some((lat, value));
+                        (depth[column], pressure[column]) = value;
+                    }
+                });
+            (depth, pressure)
+        };
+        let from_depth = |depth: f64, lat: f64| {
+            let p = if depth.is_finite() {
+                seawater::sea_pressure_from_depth(depth.max(0.0), lat).unwrap_or(f64::NAN)
+            } else {
+                f64::NAN
+            };
+            (depth, p)
+        };
+        match (&self.vertical, heights) {
+            (Vertical::Pressures { dbar, .. }, _) => per_level(&|level, lat| {
+                let p = dbar[level];
+                (seawater::depth_from_sea_pressure(p, lat), p)
+            }),
+            (Vertical::Depths { depth_m, .. }, _) => {
+                per_level(&|level, lat| from_depth(depth_m[level], lat))
+            }
+            (_, Some((z, eta))) => (0..cells)
+                .into_par_iter()
+                .map(|c| {
+                    let column = c % columns;
+                    let (_, p) = from_depth(eta[column] - z[c], lat_of(column));
+                    (-z[c], p)
+                })
+                .unzip(),
+            // read_raw_slab reads heights for every other vertical coordinate.
+            (_, None) => (vec![f64::NAN; cells], vec![f64::NAN; cells]),
+        }
+    }
+
+    /// Latitude [°N] per column of the rows, when the run has latitude.
+    fn latitude_per_column(&self, rows: &Range<usize>) -> Result<Option<Vec<f64>>> {
+        let Some(source) = &self.horizontal.latitude else {
+            return Ok(None);
+        };
+        let values = source.read(&self.paths, 0, rows)?;
+        if source.len_of(Axis::X).is_some() {
+            return Ok(Some(values));
+        }
+        let cols = self.shape.cols;
+        Ok(Some(
+            values
+                .iter()
+                .flat_map(|v| std::iter::repeat_n(*v, cols))
+                .collect(),
+        ))
+    }
+}
+
+/// One slab's values as read from the files (masked and unpacked, in canonical order), before
+/// conversion: the output of [`Run::read_raw_slab`], the input of [`Run::convert_slab`].
+#[derive(Clone, Debug)]
+pub struct RawSlab {
+    pub(crate) step: usize,
+    pub(crate) rows: Range<usize>,
+    temperature_raw: Vec<f64>,
+    salinity_raw: Vec<f64>,
+    dic_raw: Vec<f64>,
+    alkalinity_raw: Vec<f64>,
+    phosphate_raw: Option<Vec<f64>>,
+    silicate_raw: Option<Vec<f64>>,
+    pressure_raw: Option<Vec<f64>>,
+    /// Latitude per column of the slab, when the run has one.
+    latitude: Option<Vec<f64>>,
+    /// Height per cell and free-surface height per column, when levels are not fixed.
+    heights: Option<(Vec<f64>, Vec<f64>)>,
+}
+
+impl RawSlab {
+    /// Time step of the slab.
+    pub fn step(&self) -> usize {
+        self.step
+    }
+
+    /// Rows of the slab.
+    pub fn rows(&self) -> Range<usize> {
+        self.rows.clone()
+    }
+}
+
+/// In-situ temperature [°C] and the density for per-volume concentrations [kg m-3] of one
+/// wet cell; NaN for what cannot be computed.
+fn in_situ_temperature_and_density(
+    density: DensityChoice,
+    kind: TemperatureKind,
+    temperature: f64,
+    practical: f64,
+    p: f64,
+) -> (f64, f64) {
+    let in_situ_only = || seawater::in_situ_temperature(kind, temperature, practical, p);
+    match density {
+        DensityChoice::Reference(rho) => (in_situ_only().unwrap_or(f64::NAN), rho),
+        // One pass gives both (saves a potential-temperature evaluation per cell).
+        DensityChoice::InSitu => match seawater::in_situ_state(kind, temperature, practical, p) {
+            Ok(state) => (state.temperature_c, state.density_kg_m3),
+            Err(_) => (in_situ_only().unwrap_or(f64::NAN), f64::NAN),
+        },
+    }
+}
