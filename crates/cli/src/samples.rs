@@ -1,6 +1,8 @@
 //! `samples`: the chemistry for a table of water samples (bottle data, mooring records, what-if cases).
 //! A bad row is reported in its own status column and never stops the others.
 
+mod uncertainty;
+
 use crate::run_options::ConstantOptions;
 use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution};
 use acidscape_gridio::seawater;
@@ -11,6 +13,7 @@ use std::error::Error;
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
+use uncertainty::{Propagation, UncertaintyOptions};
 
 #[derive(Args, Debug)]
 pub struct SamplesArgs {
@@ -47,6 +50,9 @@ pub struct SamplesArgs {
 
     #[command(flatten)]
     pub constants: ConstantOptions,
+
+    #[command(flatten)]
+    pub uncertainty: UncertaintyOptions,
 }
 
 /// Input pairs offered on the command line.
@@ -498,6 +504,9 @@ fn write_table(
     let columns =
         locate_columns(&header, args).map_err(|e| format!("{}: {e}", args.input.display()))?;
     let pair = choose_pair(args, &columns).map_err(|e| format!("{}: {e}", args.input.display()))?;
+    let renames = role_options(&args.columns, "--column")?;
+    let propagation = Propagation::plan(&args.uncertainty, &header, &columns, &renames, pair)
+        .map_err(|e| format!("{}: {e}", args.input.display()))?;
 
     let mut writer = csv::Writer::from_path(destination)
         .map_err(|e| format!("{}: cannot write: {e}", destination.display()))?;
@@ -505,12 +514,16 @@ fn write_table(
     out_header.extend(["status", "status_detail", "pressure_used [dbar]"].map(String::from));
     out_header.extend(RESULT_COLUMNS.iter().map(|(name, _)| name.to_string()));
     out_header.push("solver_iterations".into());
+    let result_headers: Vec<&str> = RESULT_COLUMNS.iter().map(|(name, _)| *name).collect();
+    if let Some(propagation) = &propagation {
+        out_header.extend(propagation.headers(&result_headers));
+    }
     writer.write_record(&out_header)?;
 
     let mut counts = StatusCounts::new();
     for record in reader.records() {
         // An unreadable row (e.g. invalid UTF-8) becomes an empty bad-input row; the rest go on.
-        let (record, outcome) = match record {
+        let (record, mut outcome) = match record {
             Ok(record) => {
                 let outcome = compute_row(&record, &columns, pair, args.latitude, choice);
                 (record, outcome)
@@ -520,6 +533,9 @@ fn write_table(
                 Err(RowFailure::BadInput(format!("row cannot be read: {e}"))),
             ),
         };
+        let uncertainty_cells = propagation
+            .as_ref()
+            .map(|p| p.cells(&record, &columns, &mut outcome, choice));
         let (status, detail) = status_of(&outcome);
         *counts.entry(status).or_default() += 1;
         let mut row: Vec<String> = record.iter().map(str::to_string).collect();
@@ -537,6 +553,7 @@ fn write_table(
             }
             Err(_) => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
         }
+        row.extend(uncertainty_cells.into_iter().flatten());
         writer.write_record(&row)?;
     }
     writer.flush()?;

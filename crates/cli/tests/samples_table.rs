@@ -1,5 +1,8 @@
 //! The `samples` subcommand end to end: a table in, a table out, one status per row.
 
+mod common;
+
+use common::{column, read_table};
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -9,24 +12,6 @@ fn acidscape() -> Command {
 
 fn bundled_table() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../../sample-grids/bottle-samples.csv")
-}
-
-/// Reads a CSV written by the tool into (header, rows).
-fn read_table(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
-    let mut reader = csv::Reader::from_path(path).expect("output table readable");
-    let header = reader.headers().unwrap().iter().map(String::from).collect();
-    let rows = reader
-        .records()
-        .map(|r| r.unwrap().iter().map(String::from).collect())
-        .collect();
-    (header, rows)
-}
-
-fn column(header: &[String], name: &str) -> usize {
-    header
-        .iter()
-        .position(|h| h == name)
-        .unwrap_or_else(|| panic!("no column {name} in {header:?}"))
 }
 
 #[test]
