@@ -231,10 +231,12 @@ fn without_any_uncertainty_option_the_table_is_unchanged() {
 
 #[test]
 fn a_bad_uncertainty_cell_makes_a_bad_input_row_only() {
-    let table = "temperature,salinity,pressure,alkalinity,dic,dic_uncertainty\n\
-                 12,34.5,0,2290,2060,lots\n\
-                 12,34.5,0,2290,2060,-1\n\
-                 12,34.5,0,2290,2060,2\n";
+    let table =
+        "temperature,temperature_uncertainty,salinity,pressure,alkalinity,dic,dic_uncertainty\n\
+                 12,0.1,34.5,0,2290,2060,lots\n\
+                 12,0.1,34.5,0,2290,2060,-1\n\
+                 12,1%,34.5,0,2290,2060,2\n\
+                 12,,34.5,0,2290,2060,2\n";
     let (header, rows) = run(table, &[]);
     let status = header.iter().position(|h| h == "status").unwrap();
     let detail = header.iter().position(|h| h == "status_detail").unwrap();
@@ -250,7 +252,13 @@ fn a_bad_uncertainty_cell_makes_a_bad_input_row_only() {
         "{}",
         rows[1][detail]
     );
-    assert_eq!(rows[2][status], "ok");
+    assert_eq!(rows[2][status], "bad-input");
+    assert!(
+        rows[2][detail].contains("temperature"),
+        "{}",
+        rows[2][detail]
+    );
+    assert_eq!(rows[3][status], "ok");
 }
 
 fn refused(table: &str, options: &[&str]) -> String {

@@ -323,6 +323,9 @@ impl Propagation {
                 (None, Some(amount)) => (amount, None),
                 (None, None) => continue,
             };
+            if matches!(amount, Amount::Relative(_)) {
+                relative_allowed(input.role)?;
+            }
             let value = in_chemistry_units(input.role, amount, units, columns, row)?;
             set(&mut u.inputs, input.role, value);
         }
@@ -364,15 +367,8 @@ fn check_input(
     }
     let relative = matches!(input.option, Some(Amount::Relative(_)))
         || matches!(input.column, Some((_, Some(ColumnUnits::Relative))));
-    if relative && matches!(input.role, Role::Temperature | Role::Ph) {
-        return Err(format!(
-            "{key}{SUFFIX}: a relative uncertainty of {key} has no meaning; give it in {}",
-            if input.role == Role::Ph {
-                "pH units"
-            } else {
-                "°C or K"
-            }
-        ));
+    if relative {
+        relative_allowed(input.role)?;
     }
     if relative && !columns.contains_key(&input.role) {
         return Err(format!(
@@ -380,6 +376,19 @@ fn check_input(
         ));
     }
     Ok(())
+}
+
+/// Temperature and pH have no natural zero: a percentage of them means nothing.
+fn relative_allowed(role: Role) -> Result<(), String> {
+    let units = match role {
+        Role::Temperature => "°C or K",
+        Role::Ph => "pH units",
+        _ => return Ok(()),
+    };
+    let key = role.key();
+    Err(format!(
+        "{key}{SUFFIX}: a relative uncertainty of {key} has no meaning; give it in {units}"
+    ))
 }
 
 fn pair_name(pair: PairChoice) -> String {
