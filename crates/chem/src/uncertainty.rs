@@ -7,7 +7,7 @@
 //! equations fixes the sample) is differentiated implicitly at the solution, and the chain rule
 //! carries the change of \[H+\] and DIC to every output. Temperature, salinity and pressure act
 //! through every constant and total; their slopes come from central differences of each paper's
-//! scalar formula (never of the solver), accurate to about 1e-8 relative (see
+//! scalar formula (never of the solver), within 1e-7 relative of the exact slopes (see
 //! `constants/slopes.rs`). Nothing is solved again: the functions take the solved sample.
 //!
 //! What a caller needs per sample ([`SolvedSample`]): the [`InputPair`] it solved, its
