@@ -200,7 +200,24 @@ impl ConstantChoice {
     }
 }
 
+/// The pH scale on which a set of acid constants is published.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum PhScale {
+    Total,
+    Seawater,
+}
+
 impl CarbonicSet {
+    /// The pH scale of the published K1 and K2.
+    pub(crate) fn scale(self) -> PhScale {
+        match self {
+            CarbonicSet::Lueker2000 => PhScale::Total,
+            CarbonicSet::Millero2006
+            | CarbonicSet::Millero2010
+            | CarbonicSet::WatersMilleroWoosley2014 => PhScale::Seawater,
+        }
+    }
+
     /// Author-year name, as used in messages.
     pub fn short_name(self) -> &'static str {
         match self {

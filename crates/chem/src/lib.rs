@@ -30,12 +30,17 @@ pub mod constants;
 mod error;
 mod solver;
 mod speciation;
+mod uncertainty;
 mod validity;
 
 pub use choice::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet, UnknownKey, FIXED_SOURCES};
 pub use constants::{equilibrium_constants, EquilibriumConstants};
 pub use error::ChemError;
-pub use speciation::solve;
+pub use speciation::{solve, solve_with_constants};
+pub use uncertainty::{
+    sensitivities, standard_uncertainties, uncertainty_budget, ConstantUncertainties,
+    InputUncertainties, Output, PerOutput, PerSource, SolvedSample, Source, Uncertainties,
+};
 pub use validity::{OutOfRange, Validity};
 
 /// One sample's physical state. Concentrations µmol kg-1; in-situ temperature °C; practical

@@ -69,7 +69,29 @@ pub fn solve(
     choice: &ConstantChoice,
 ) -> Result<Solution, ChemError> {
     validate_conditions(conditions)?;
-    let k = constants_unchecked(conditions, choice);
+    solve_given(pair, conditions, &constants_unchecked(conditions, choice))
+}
+
+/// As [`solve`], with equilibrium constants the caller already has: from
+/// [`equilibrium_constants`](crate::equilibrium_constants) for the same conditions (to keep them
+/// for [`uncertainty_budget`](crate::uncertainty_budget)), or deliberately perturbed ones (to
+/// study what their uncertainty does to the results).
+pub fn solve_with_constants(
+    pair: InputPair,
+    conditions: &Conditions,
+    constants: &EquilibriumConstants,
+) -> Result<Solution, ChemError> {
+    validate_conditions(conditions)?;
+    solve_given(pair, conditions, constants)
+}
+
+#[inline(always)]
+fn solve_given(
+    pair: InputPair,
+    conditions: &Conditions,
+    k: &EquilibriumConstants,
+) -> Result<Solution, ChemError> {
+    let k = *k;
     let others = NonCarbonate::new(
         &k,
         conditions.phosphate / MICRO,

@@ -4,6 +4,8 @@
 
 mod columns;
 
+mod uncertainty;
+
 use crate::run_options::ConstantOptions;
 use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, Solution, Validity};
 use acidscape_gridio::seawater;
@@ -12,12 +14,15 @@ use acidscape_pipeline::flags::{
     error_flag, meanings_of, range_flag, Flag, FlagCounts, FLAG_BITS, MISSING_INPUT,
 };
 use clap::{Args, ValueEnum};
-use columns::{locate_columns, Column, Conversion, Role};
+use columns::{
+    conversion_for, locate_columns, role_options, split_header, Column, Conversion, Role,
+};
 use std::collections::BTreeMap;
 use std::error::Error;
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
+use uncertainty::{Propagation, UncertaintyOptions};
 
 #[derive(Args, Debug)]
 pub struct SamplesArgs {
@@ -54,6 +59,9 @@ pub struct SamplesArgs {
 
     #[command(flatten)]
     pub constants: ConstantOptions,
+
+    #[command(flatten)]
+    pub uncertainty: UncertaintyOptions,
 }
 
 /// Input pairs offered on the command line.
@@ -341,6 +349,9 @@ fn write_table(
     let columns = locate_columns(&header, &args.columns, &args.units)
         .map_err(|e| format!("{}: {e}", args.input.display()))?;
     let pair = choose_pair(args, &columns).map_err(|e| format!("{}: {e}", args.input.display()))?;
+    let renames = role_options(&args.columns, "--column")?;
+    let propagation = Propagation::plan(&args.uncertainty, &header, &columns, &renames, pair)
+        .map_err(|e| format!("{}: {e}", args.input.display()))?;
 
     let mut writer = csv::Writer::from_path(destination)
         .map_err(|e| format!("{}: cannot write: {e}", destination.display()))?;
@@ -348,12 +359,16 @@ fn write_table(
     out_header.extend(["status", "status_detail", "pressure_used [dbar]"].map(String::from));
     out_header.extend(RESULT_COLUMNS.iter().map(|(name, _)| name.to_string()));
     out_header.push("solver_iterations".into());
+    let result_headers: Vec<&str> = RESULT_COLUMNS.iter().map(|(name, _)| *name).collect();
+    if let Some(propagation) = &propagation {
+        out_header.extend(propagation.headers(&result_headers));
+    }
     writer.write_record(&out_header)?;
 
     let mut counts = FlagCounts::default();
     for record in reader.records() {
         // An unreadable row (e.g. invalid UTF-8) becomes an empty missing-input row; the rest go on.
-        let (record, outcome) = match record {
+        let (record, mut outcome) = match record {
             Ok(record) => {
                 let outcome = compute_row(&record, &columns, pair, args.latitude, choice);
                 (record, outcome)
@@ -367,6 +382,9 @@ fn write_table(
                 },
             ),
         };
+        let uncertainty_cells = propagation
+            .as_ref()
+            .map(|p| p.cells(&record, &columns, &mut outcome, choice));
         counts.record(outcome.flag);
         let mut row: Vec<String> = record.iter().map(str::to_string).collect();
         row.push(outcome.status());
@@ -383,6 +401,7 @@ fn write_table(
             }
             None => row.extend(std::iter::repeat_n(String::new(), RESULT_COLUMNS.len() + 2)),
         }
+        row.extend(uncertainty_cells.into_iter().flatten());
         writer.write_record(&row)?;
     }
     writer.flush()?;

@@ -1,5 +1,8 @@
 //! The `samples` subcommand end to end: a table in, a table out, one status per row.
 
+mod common;
+
+use common::{column, read_table};
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -11,17 +14,6 @@ fn bundled_table() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../../sample-grids/bottle-samples.csv")
 }
 
-/// Reads a CSV written by the tool into (header, rows).
-fn read_table(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
-    let mut reader = csv::Reader::from_path(path).expect("output table readable");
-    let header = reader.headers().unwrap().iter().map(String::from).collect();
-    let rows = reader
-        .records()
-        .map(|r| r.unwrap().iter().map(String::from).collect())
-        .collect();
-    (header, rows)
-}
-
 /// Statuses whose rows carry no computed values.
 fn rows_without_values(status: &str) -> bool {
     [
@@ -31,13 +23,6 @@ fn rows_without_values(status: &str) -> bool {
     ]
     .iter()
     .any(|word| status.split(' ').any(|w| w == *word))
-}
-
-fn column(header: &[String], name: &str) -> usize {
-    header
-        .iter()
-        .position(|h| h == name)
-        .unwrap_or_else(|| panic!("no column {name} in {header:?}"))
 }
 
 #[test]

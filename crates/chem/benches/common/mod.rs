@@ -1,6 +1,9 @@
-//! Synthetic ocean cells (invented inputs, not data) shared by the bench and the profiling example.
+//! Synthetic ocean cells (invented inputs, not data) shared by the benches and the profiling
+//! example.
 
-use acidscape_chem::{Conditions, InputPair};
+use acidscape_chem::{
+    Conditions, ConstantUncertainties, InputPair, InputUncertainties, Uncertainties,
+};
 
 /// Cell `i`: surface to 6000 dbar, about -1 to 31 °C, S 32-37, with (TA, DIC) growing with depth.
 pub fn synthetic_cell(i: usize) -> (Conditions, InputPair) {
@@ -18,4 +21,23 @@ pub fn synthetic_cell(i: usize) -> (Conditions, InputPair) {
         dic: 1950.0 + 330.0 * depth_fraction + 10.0 * f,
     };
     (conditions, pair)
+}
+
+/// What a grid would propagate: alkalinity and DIC (2 µmol kg-1), temperature (0.1 °C),
+/// salinity (0.01), nutrients (5 %) and the constants of Orr et al. 2018; pressure left out, as
+/// a model's depth is not uncertain. Illustrative values, not recommendations.
+#[allow(dead_code)] // the `solve` bench does not propagate
+pub fn every_source(conditions: &Conditions) -> Uncertainties {
+    Uncertainties {
+        inputs: InputUncertainties {
+            alkalinity: 2.0,
+            dic: 2.0,
+            temperature: 0.1,
+            salinity: 0.01,
+            phosphate: 0.05 * conditions.phosphate,
+            silicate: 0.05 * conditions.silicate,
+            ..Default::default()
+        },
+        constants: ConstantUncertainties::ORR_2018,
+    }
 }

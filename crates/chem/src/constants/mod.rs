@@ -10,11 +10,12 @@ pub mod millero2010;
 pub mod mucci1983;
 pub mod perez_fraga1987;
 pub mod pressure;
+pub(crate) mod slopes;
 pub mod totals;
 pub mod waters2014;
 pub mod weiss1974;
 
-use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
+use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet, PhScale};
 use crate::error::{check_range, ChemError};
 use crate::validity::Validity;
 use crate::Conditions;
@@ -47,18 +48,44 @@ pub struct SampleTerms {
 impl SampleTerms {
     /// Terms at in-situ temperature \[°C\] and practical salinity.
     pub fn new(temperature_c: f64, salinity: f64) -> Self {
+        let unset = Self {
+            celsius: 0.0,
+            kelvin: 0.0,
+            inv_kelvin: 0.0,
+            ln_kelvin: 0.0,
+            salinity: 0.0,
+            sqrt_salinity: 0.0,
+            ionic_strength: 0.0,
+            sqrt_ionic_strength: 0.0,
+            water_fraction: 0.0,
+        };
+        unset
+            .with_temperature(temperature_c)
+            .with_salinity(salinity)
+    }
+
+    /// The same terms at another temperature \[°C\].
+    pub(crate) fn with_temperature(&self, temperature_c: f64) -> Self {
         let kelvin = temperature_c + 273.15;
-        let ionic_strength = ionic_strength(salinity);
         Self {
             celsius: temperature_c,
             kelvin,
             inv_kelvin: 1.0 / kelvin,
             ln_kelvin: kelvin.ln(),
+            ..*self
+        }
+    }
+
+    /// The same terms at another practical salinity.
+    pub(crate) fn with_salinity(&self, salinity: f64) -> Self {
+        let ionic_strength = ionic_strength(salinity);
+        Self {
             salinity,
             sqrt_salinity: salinity.sqrt(),
             ionic_strength,
             sqrt_ionic_strength: ionic_strength.sqrt(),
             water_fraction: 1.0 - 0.001005 * salinity,
+            ..*self
         }
     }
 
@@ -199,38 +226,155 @@ pub(crate) fn constants_unchecked(
     choice: &ConstantChoice,
 ) -> EquilibriumConstants {
     let terms = SampleTerms::new(conditions.temperature_c, conditions.salinity);
-    let pressure_bar = conditions.pressure_dbar * 0.1;
-    let pt = PressureTerms::new(conditions.temperature_c, pressure_bar);
-    let salinity = conditions.salinity;
+    let pt = PressureTerms::new(conditions.temperature_c, conditions.pressure_dbar * 0.1);
+    let validity = Validity::assess(
+        conditions.temperature_c,
+        conditions.salinity,
+        conditions.pressure_dbar,
+        choice,
+    );
+    let parts = Ingredients {
+        surface: surface_ingredients(&terms, choice),
+        pressure: pressure_ingredients(&pt),
+    };
+    assemble(&parts, choice, validity)
+}
 
-    let total_boron = totals::boron(salinity, choice.boron);
-    let total_sulfate = totals::sulfate(salinity);
-    let total_fluoride = totals::fluoride(salinity);
-    let calcium = totals::calcium(salinity);
+/// One number for each constant that has a pressure correction.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub(crate) struct PerConstant {
+    pub ks: f64,
+    pub kf: f64,
+    pub k1: f64,
+    pub k2: f64,
+    pub kb: f64,
+    pub kw: f64,
+    pub k1p: f64,
+    pub k2p: f64,
+    pub k3p: f64,
+    pub ksi: f64,
+    pub calcite: f64,
+    pub aragonite: f64,
+}
 
+/// What the constants are made of at the surface, before exponentiation and scale conversion:
+/// each paper's ln K (on its own scale and mass basis), the totals and the water fraction.
+/// No exp: cheap enough to evaluate again at nearby temperatures and salinities.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct SurfaceIngredients {
+    /// ln K: KS per kg of water (free scale); KF on its paper's scale and basis; K1, K2 on their
+    /// paper's scale; KSi per kg of water; the rest as published.
+    pub ln_k: PerConstant,
+    pub ln_k0: f64,
+    pub ln_fugacity_factor: f64,
+    pub water_fraction: f64,
+    pub total_boron: f64,
+    pub total_sulfate: f64,
+    pub total_fluoride: f64,
+    pub calcium: f64,
+}
+
+/// Everything the constants are assembled from: the surface ingredients and each constant's
+/// pressure term ln(K_P / K_0) (Millero 1995).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct Ingredients {
+    pub surface: SurfaceIngredients,
+    pub pressure: PerConstant,
+}
+
+/// Each paper's formula at the sample's shared temperature and salinity terms.
+#[inline(always)]
+pub(crate) fn surface_ingredients(
+    terms: &SampleTerms,
+    choice: &ConstantChoice,
+) -> SurfaceIngredients {
+    let ln10 = std::f64::consts::LN_10;
+    let (k1, k2) = match choice.carbonic {
+        CarbonicSet::Lueker2000 => (lueker2000::pk1(terms), lueker2000::pk2(terms)),
+        CarbonicSet::Millero2006 => (millero2006::pk1(terms), millero2006::pk2(terms)),
+        CarbonicSet::Millero2010 => (millero2010::pk1(terms), millero2010::pk2(terms)),
+        CarbonicSet::WatersMilleroWoosley2014 => (waters2014::pk1(terms), waters2014::pk2(terms)),
+    };
+    let kf = match choice.fluoride {
+        FluorideSet::PerezFraga1987 => perez_fraga1987::ln_kf(terms),
+        FluorideSet::DicksonRiley1979 => dickson_riley1979::ln_kf_free_per_kg_water(terms),
+    };
+    let salinity = terms.salinity;
+    SurfaceIngredients {
+        ln_k: PerConstant {
+            ks: dickson1990::ln_ks_per_kg_water(terms),
+            kf,
+            k1: -k1 * ln10,
+            k2: -k2 * ln10,
+            kb: dickson1990::ln_kb(terms),
+            kw: millero1995::ln_kw(terms),
+            k1p: millero1995::ln_k1p(terms),
+            k2p: millero1995::ln_k2p(terms),
+            k3p: millero1995::ln_k3p(terms),
+            ksi: millero1995::ln_ksi_per_kg_water(terms),
+            calcite: mucci1983::log10_ksp_calcite(terms) * ln10,
+            aragonite: mucci1983::log10_ksp_aragonite(terms) * ln10,
+        },
+        ln_k0: weiss1974::ln_k0(terms),
+        ln_fugacity_factor: weiss1974::ln_fugacity_factor(terms.kelvin),
+        water_fraction: terms.water_fraction,
+        total_boron: totals::boron(salinity, choice.boron),
+        total_sulfate: totals::sulfate(salinity),
+        total_fluoride: totals::fluoride(salinity),
+        calcium: totals::calcium(salinity),
+    }
+}
+
+/// Each constant's Millero 1995 pressure term. Linear in the terms `pt`: given their
+/// derivatives (see [`PressureTerms::temperature_slope`]) it gives the terms' derivatives.
+#[inline(always)]
+pub(crate) fn pressure_ingredients(pt: &PressureTerms) -> PerConstant {
+    PerConstant {
+        ks: pt.ln_factor(&pressure::KS),
+        kf: pt.ln_factor(&pressure::KF),
+        k1: pt.ln_factor(&pressure::K1),
+        k2: pt.ln_factor(&pressure::K2),
+        kb: pt.ln_factor(&pressure::KB),
+        kw: pt.ln_factor(&pressure::KW),
+        k1p: pt.ln_factor(&pressure::K1P),
+        k2p: pt.ln_factor(&pressure::K2P),
+        k3p: pt.ln_factor(&pressure::K3P),
+        ksi: pt.ln_factor(&pressure::KSI),
+        calcite: pt.ln_factor(&pressure::CALCITE),
+        aragonite: pt.ln_factor(&pressure::ARAGONITE),
+    }
+}
+
+/// The constants from their ingredients: KS and KF are pressure-corrected on the free scale
+/// first; the other acid constants on the seawater scale (as Millero 1995 fitted them), then
+/// brought to the total scale with the in-situ KS and KF.
+#[inline(always)]
+pub(crate) fn assemble(
+    parts: &Ingredients,
+    choice: &ConstantChoice,
+    validity: Validity,
+) -> EquilibriumConstants {
+    let (surface, pressure) = (&parts.surface.ln_k, &parts.pressure);
+    let water_fraction = parts.surface.water_fraction;
+    let (total_sulfate, total_fluoride) =
+        (parts.surface.total_sulfate, parts.surface.total_fluoride);
     // Every constant is one exp of its ln K plus its pressure term (Millero 1995); factors that
     // change only its unit or scale multiply the exp instead of adding their ln to it.
-    let water_fraction = terms.water_fraction;
-    let in_situ = |ln_k_surface: f64, coefficients: &pressure::PressureCoefficients| {
-        (ln_k_surface + pt.ln_factor(coefficients)).exp()
-    };
+    let in_situ =
+        |ln_k_surface: f64, ln_pressure_factor: f64| (ln_k_surface + ln_pressure_factor).exp();
 
     // Free-scale KS and KF at the surface, then at in-situ pressure.
-    let ln_ks_surface = dickson1990::ln_ks_per_kg_water(&terms);
-    let ks_surface = ln_ks_surface.exp() * water_fraction;
-    let ks_free = in_situ(ln_ks_surface, &pressure::KS) * water_fraction;
+    let ks_surface = surface.ks.exp() * water_fraction;
+    let ks_free = in_situ(surface.ks, pressure.ks) * water_fraction;
     let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
     let free_to_total = 1.0 + total_sulfate / ks_free;
     // KF on the scale its paper gives, at the surface and in situ.
-    let (ln_kf_surface, fluoride_scale) = match choice.fluoride {
-        FluorideSet::PerezFraga1987 => (perez_fraga1987::ln_kf(&terms), 1.0),
-        FluorideSet::DicksonRiley1979 => (
-            dickson_riley1979::ln_kf_free_per_kg_water(&terms),
-            water_fraction,
-        ),
+    let fluoride_scale = match choice.fluoride {
+        FluorideSet::PerezFraga1987 => 1.0,
+        FluorideSet::DicksonRiley1979 => water_fraction,
     };
-    let kf_published_surface = ln_kf_surface.exp() * fluoride_scale;
-    let kf_published = in_situ(ln_kf_surface, &pressure::KF) * fluoride_scale;
+    let kf_published_surface = surface.kf.exp() * fluoride_scale;
+    let kf_published = in_situ(surface.kf, pressure.kf) * fluoride_scale;
     // FT/KF on the free scale. Perez & Fraga 1987 is on the total scale: its free-scale KF is
     // KF / ([H+]T/[H+]F at the surface), so FT/KF_free = (FT/KF)·[H+]T/[H+]F; formed as products
     // so that only two divisions lie between KS and the scale factors.
@@ -256,72 +400,36 @@ pub(crate) fn constants_unchecked(
     // at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
     let total_surface_to_total =
         free_to_total * free_to_seawater_surface / (free_to_seawater * free_to_total_surface);
-    let in_situ_total = |ln_k_surface_total: f64, coefficients: &pressure::PressureCoefficients| {
-        in_situ(ln_k_surface_total, coefficients) * total_surface_to_total
+    let in_situ_total = |ln_k_surface_total: f64, ln_pressure_factor: f64| {
+        in_situ(ln_k_surface_total, ln_pressure_factor) * total_surface_to_total
     };
-    let ln10 = std::f64::consts::LN_10;
-    let (ln_k1, ln_k2, to_total) = match choice.carbonic {
-        CarbonicSet::Lueker2000 => (
-            -lueker2000::pk1(&terms) * ln10,
-            -lueker2000::pk2(&terms) * ln10,
-            total_surface_to_total,
-        ),
-        CarbonicSet::Millero2006 => (
-            -millero2006::pk1(&terms) * ln10,
-            -millero2006::pk2(&terms) * ln10,
-            seawater_to_total,
-        ),
-        CarbonicSet::Millero2010 => (
-            -millero2010::pk1(&terms) * ln10,
-            -millero2010::pk2(&terms) * ln10,
-            seawater_to_total,
-        ),
-        CarbonicSet::WatersMilleroWoosley2014 => (
-            -waters2014::pk1(&terms) * ln10,
-            -waters2014::pk2(&terms) * ln10,
-            seawater_to_total,
-        ),
+    let carbonic_to_total = match choice.carbonic.scale() {
+        PhScale::Total => total_surface_to_total,
+        PhScale::Seawater => seawater_to_total,
     };
-    let k1 = in_situ(ln_k1, &pressure::K1) * to_total;
-    let k2 = in_situ(ln_k2, &pressure::K2) * to_total;
-
-    let ksp_calcite = in_situ(
-        mucci1983::log10_ksp_calcite(&terms) * ln10,
-        &pressure::CALCITE,
-    );
-    let ksp_aragonite = in_situ(
-        mucci1983::log10_ksp_aragonite(&terms) * ln10,
-        &pressure::ARAGONITE,
-    );
 
     EquilibriumConstants {
-        k0: weiss1974::ln_k0(&terms).exp(),
-        fugacity_factor: weiss1974::fugacity_factor(terms.kelvin),
-        k1,
-        k2,
-        kb: in_situ_total(dickson1990::ln_kb(&terms), &pressure::KB),
-        kw: in_situ_total(millero1995::ln_kw(&terms), &pressure::KW),
+        k0: parts.surface.ln_k0.exp(),
+        fugacity_factor: parts.surface.ln_fugacity_factor.exp(),
+        k1: in_situ(surface.k1, pressure.k1) * carbonic_to_total,
+        k2: in_situ(surface.k2, pressure.k2) * carbonic_to_total,
+        kb: in_situ_total(surface.kb, pressure.kb),
+        kw: in_situ_total(surface.kw, pressure.kw),
         ks_free,
         kf: kf_free * free_to_total,
         kf_free,
-        k1p: in_situ_total(millero1995::ln_k1p(&terms), &pressure::K1P),
-        k2p: in_situ_total(millero1995::ln_k2p(&terms), &pressure::K2P),
-        k3p: in_situ_total(millero1995::ln_k3p(&terms), &pressure::K3P),
-        ksi: in_situ_total(millero1995::ln_ksi_per_kg_water(&terms), &pressure::KSI)
-            * water_fraction,
-        ksp_calcite,
-        ksp_aragonite,
-        total_boron,
+        k1p: in_situ_total(surface.k1p, pressure.k1p),
+        k2p: in_situ_total(surface.k2p, pressure.k2p),
+        k3p: in_situ_total(surface.k3p, pressure.k3p),
+        ksi: in_situ_total(surface.ksi, pressure.ksi) * water_fraction,
+        ksp_calcite: in_situ(surface.calcite, pressure.calcite),
+        ksp_aragonite: in_situ(surface.aragonite, pressure.aragonite),
+        total_boron: parts.surface.total_boron,
         total_sulfate,
         total_fluoride,
-        calcium,
+        calcium: parts.surface.calcium,
         free_to_total,
         seawater_to_total,
-        validity: Validity::assess(
-            conditions.temperature_c,
-            salinity,
-            conditions.pressure_dbar,
-            choice,
-        ),
+        validity,
     }
 }

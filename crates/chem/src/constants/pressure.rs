@@ -89,6 +89,32 @@ impl PressureTerms {
         }
     }
 
+    /// The derivative of each term with respect to temperature \[per °C\]. [`Self::ln_factor`]
+    /// is linear in the terms, so applied to these it gives d ln(K_P/K_0)/dt exactly.
+    pub(crate) fn temperature_slope(temperature_c: f64, pressure_bar: f64) -> Self {
+        let t = temperature_c;
+        let kelvin = t + 273.15;
+        let at = Self::new(t, pressure_bar);
+        let [x0, ..] = at.volume;
+        let dx0 = -x0 / kelvin;
+        let dy0 = 0.5e-3 * pressure_bar * dx0;
+        Self {
+            volume: [dx0, x0 + t * dx0, 2.0 * t * x0 + t * t * dx0],
+            compressibility: [dy0, at.compressibility[0] + t * dy0],
+        }
+    }
+
+    /// The derivative of each term with respect to pressure \[per bar\], for the same use.
+    pub(crate) fn pressure_slope(temperature_c: f64, pressure_bar: f64) -> Self {
+        let t = temperature_c;
+        let dx0 = 1.0 / (GAS_CONSTANT_CM3_BAR * (t + 273.15));
+        let dy0 = 1e-3 * pressure_bar * dx0;
+        Self {
+            volume: [dx0, t * dx0, t * t * dx0],
+            compressibility: [dy0, t * dy0],
+        }
+    }
+
     pub(crate) fn ln_factor(&self, c: &PressureCoefficients) -> f64 {
         let [x0, x1, x2] = self.volume;
         let [y0, y1] = self.compressibility;

@@ -33,7 +33,12 @@ pub fn ln_k0(terms: &SampleTerms) -> f64 {
 /// assert!((factor - 0.99681).abs() < 1e-5);
 /// ```
 pub fn fugacity_factor(kelvin: f64) -> f64 {
+    ln_fugacity_factor(kelvin).exp()
+}
+
+/// ln(fCO2 / pCO2) at 1 atm total pressure: the exponent of [`fugacity_factor`].
+pub fn ln_fugacity_factor(kelvin: f64) -> f64 {
     let virial_b = -1636.75 + kelvin * (12.0408 + kelvin * (-3.27957e-2 + kelvin * 3.16528e-5));
     let delta = 57.7 - 0.118 * kelvin;
-    ((virial_b + 2.0 * delta) / (GAS_CONSTANT_CM3_ATM * kelvin)).exp()
+    (virial_b + 2.0 * delta) / (GAS_CONSTANT_CM3_ATM * kelvin)
 }

@@ -21,7 +21,7 @@ pub(super) enum Role {
 }
 
 impl Role {
-    const ALL: [Role; 11] = [
+    pub(super) const ALL: [Role; 11] = [
         Role::Alkalinity,
         Role::Dic,
         Role::Ph,
@@ -56,7 +56,7 @@ impl Role {
         self.names()[0]
     }
 
-    fn from_key(key: &str) -> Result<Role, String> {
+    pub(super) fn from_key(key: &str) -> Result<Role, String> {
         let key = key.trim().to_ascii_lowercase();
         Role::ALL
             .into_iter()
@@ -96,7 +96,7 @@ pub(super) struct Column {
 }
 
 /// Splits `name [units]` or `name (units)` into its parts.
-fn split_header(header: &str) -> (String, Option<String>) {
+pub(super) fn split_header(header: &str) -> (String, Option<String>) {
     let header = header.trim();
     for (open, close) in [('[', ']'), ('(', ')')] {
         if let (Some(start), true) = (header.find(open), header.ends_with(close)) {
@@ -118,7 +118,7 @@ fn parse_pco2_units(text: &str) -> Result<f64, String> {
     }
 }
 
-fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
+pub(super) fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
     let describe = |e: units::UnitsError| e.to_string();
     Ok(match role {
         Role::Alkalinity | Role::Dic | Role::Phosphate | Role::Silicate => {
@@ -141,7 +141,10 @@ fn conversion_for(role: Role, unit_text: &str) -> Result<Conversion, String> {
 }
 
 /// Parses `ROLE=VALUE` options into a map.
-fn role_options(options: &[String], flag: &str) -> Result<BTreeMap<Role, String>, String> {
+pub(super) fn role_options(
+    options: &[String],
+    flag: &str,
+) -> Result<BTreeMap<Role, String>, String> {
     let mut map = BTreeMap::new();
     for option in options {
         let (role, value) = option
