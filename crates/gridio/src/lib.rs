@@ -13,6 +13,7 @@ pub mod units;
 
 mod axes;
 mod catalog;
+mod cell_geometry;
 mod conversion;
 mod discovery;
 mod error;
@@ -32,6 +33,7 @@ mod timeline;
 mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
+pub use cell_geometry::{CellGeometry, CellOutlines, ColumnField, VerticalCells};
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
@@ -134,6 +136,9 @@ pub struct SlabInputs {
     pub silicate: Vec<f64>,
     /// Density used for per-volume <-> per-mass [kg m-3].
     pub density_kg_m3: Vec<f64>,
-    /// Depth of the cell centre [m], positive down.
+    /// Depth of the cell centre [m], positive down (below the datum for parametric
+    /// coordinates: add `surface_height_m` for the depth below the sea surface).
     pub depth_m: Vec<f64>,
+    /// Free-surface height above the datum per column (rows × cols) [m]; 0 on fixed levels.
+    pub surface_height_m: Vec<f64>,
 }
