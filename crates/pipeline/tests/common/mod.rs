@@ -6,7 +6,7 @@
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
 use acidscape_pipeline::{
-    ConcentrationUnit, Indicator, IndicatorChoice, JobOptions, PhScale, StopRequest,
+    ConcentrationUnit, HorizonChoice, Indicator, IndicatorChoice, JobOptions, PhScale, StopRequest,
 };
 use std::path::{Path, PathBuf};
 
@@ -32,6 +32,7 @@ pub fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
         deflate_level: 4,
         stop_after_steps: None,
         max_rows_per_slab: None,
+        horizons: HorizonChoice::default(),
         stop: StopRequest::new(),
     }
 }

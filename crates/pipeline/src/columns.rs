@@ -1,0 +1,370 @@
+//! The water columns of a solved slab: each column's saturation horizons, the thickness of its
+//! cells, and the slab's share of the time step's corrosive-water extent. Runs after the
+//! per-cell solve on its [`SlabResult`] (kept apart from the solve, so the per-cell kernel can
+//! be replaced without touching this), on the rayon pool, one grid row per task.
+//!
+//! Every column is analysed on its own and the extent sums are exact
+//! (`acidscape_analysis::ExactSum`), so no value depends on how a step is split into slabs.
+
+use crate::cells::{KeepOmega, SlabResult, VALUE_FILL};
+use crate::flags::FLAG_FILL;
+use crate::geometry::ColumnGeometry;
+use crate::horizon_choice::HorizonPlan;
+use crate::PipelineError;
+use acidscape_analysis::column::{ColumnCells, SlabShape};
+use acidscape_analysis::extent::{CorrosiveExtent, ExtentColumn, Mineral, MineralColumn};
+use acidscape_analysis::geometry::{cell_volumes, thicknesses_from_bounds, Positive};
+use acidscape_analysis::horizons::{sea_floor_depth, Horizon, HorizonStatus, WetColumn};
+use acidscape_gridio::SlabInputs;
+use rayon::prelude::*;
+use std::ops::Range;
+
+/// The column analysis of a job: what to compute and the geometry of every column.
+#[derive(Clone, Debug)]
+pub struct ColumnWork {
+    plan: HorizonPlan,
+    horizons: Vec<(Mineral, f64)>,
+    geometry: ColumnGeometry,
+}
+
+/// One horizon (mineral and threshold) over the columns of a slab.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct HorizonField {
+    /// Depth of the horizon [m below the sea surface]; [`VALUE_FILL`] where it has none.
+    pub depth_m: Vec<f32>,
+    /// [`HorizonStatus`] flag value per column.
+    pub status: Vec<i8>,
+}
+
+/// What the column analysis gives for one slab.
+#[derive(Debug)]
+pub struct ColumnResult {
+    pub step: usize,
+    pub rows: Range<usize>,
+    /// One field per horizon, in [`HorizonPlan::horizons`] order; columns row-major.
+    pub horizons: Vec<HorizonField>,
+    /// Thickness of each wet cell [m] in (level, row, col) order ([`VALUE_FILL`] elsewhere),
+    /// when this slab writes it (every step on parametric levels, the first step otherwise).
+    pub thickness: Option<Vec<f32>>,
+    /// Sea-floor depth per column [m below the datum], in the first step only.
+    pub sea_floor: Option<Vec<f32>>,
+    /// The slab's share of the step's corrosive-water extent.
+    pub extent: CorrosiveExtent,
+}
+
+/// Reusable buffers of one worker.
+#[derive(Default)]
+struct Scratch {
+    cells: ColumnCells,
+    centres: Vec<f64>,
+    bounds: Vec<[f64; 2]>,
+    volumes: Vec<f64>,
+    missing: Vec<f64>,
+    horizon_m: [Vec<Option<f64>>; 2],
+}
+
+/// One grid row's results.
+struct RowResult {
+    depth: Vec<f32>,
+    status: Vec<i8>,
+    thickness: Vec<f32>,
+    sea_floor: Vec<f32>,
+    extent: CorrosiveExtent,
+}
+
+/// A slab as the column analysis reads it.
+struct SlabView<'a> {
+    inputs: &'a SlabInputs,
+    solved: &'a SlabResult,
+    shape: SlabShape,
+    omega: Vec<&'a [f64]>,
+    write_thickness: bool,
+    write_sea_floor: bool,
+}
+
+impl ColumnWork {
+    /// The column analysis of `plan` on columns of `geometry`.
+    pub fn new(plan: HorizonPlan, geometry: ColumnGeometry) -> ColumnWork {
+        ColumnWork {
+            horizons: plan.horizons(),
+            plan,
+            geometry,
+        }
+    }
+
+    pub fn plan(&self) -> &HorizonPlan {
+        &self.plan
+    }
+
+    pub fn geometry(&self) -> &ColumnGeometry {
+        &self.geometry
+    }
+
+    /// The saturation states the solve must keep for this analysis.
+    pub fn keep(&self) -> KeepOmega {
+        KeepOmega {
+            aragonite: self.plan.minerals.contains(&Mineral::Aragonite),
+            calcite: self.plan.minerals.contains(&Mineral::Calcite),
+        }
+    }
+
+    /// Analyses every column of a solved slab.
+    pub fn analyse(
+        &self,
+        inputs: &SlabInputs,
+        solved: &SlabResult,
+    ) -> Result<ColumnResult, PipelineError> {
+        let [levels, rows, cols] = solved.shape;
+        let first_step = solved.step == 0;
+        let omega = self
+            .plan
+            .minerals
+            .iter()
+            .map(|m| match m {
+                Mineral::Aragonite => solved.omega.aragonite.as_slice(),
+                Mineral::Calcite => solved.omega.calcite.as_slice(),
+            })
+            .collect();
+        let view = SlabView {
+            inputs,
+            solved,
+            shape: SlabShape { levels, rows, cols },
+            omega,
+            write_thickness: first_step || self.geometry.vertical.varies_in_time(),
+            write_sea_floor: first_step,
+        };
+        let row_results: Vec<RowResult> = (0..rows)
+            .into_par_iter()
+            .map_init(Scratch::default, |scratch, r| {
+                self.analyse_row(&view, r, scratch)
+            })
+            .collect::<Result<_, _>>()?;
+        self.assemble(&view, row_results)
+    }
+
+    /// Puts the rows' results together in slab order.
+    fn assemble(
+        &self,
+        view: &SlabView,
+        row_results: Vec<RowResult>,
+    ) -> Result<ColumnResult, PipelineError> {
+        let SlabShape { levels, rows, cols } = view.shape;
+        let mut horizons = vec![HorizonField::default(); self.horizons.len()];
+        let mut thickness = view
+            .write_thickness
+            .then(|| vec![VALUE_FILL; levels * rows * cols]);
+        let mut sea_floor = view
+            .write_sea_floor
+            .then(|| Vec::with_capacity(rows * cols));
+        let mut extent = CorrosiveExtent::new(self.plan.thresholds.clone());
+        for (r, row) in row_results.iter().enumerate() {
+            for (h, field) in horizons.iter_mut().enumerate() {
+                field
+                    .depth_m
+                    .extend_from_slice(&row.depth[h * cols..(h + 1) * cols]);
+                field
+                    .status
+                    .extend_from_slice(&row.status[h * cols..(h + 1) * cols]);
+            }
+            if let Some(all) = &mut thickness {
+                for k in 0..levels {
+                    let at = view.shape.index(k, r * cols);
+                    all[at..at + cols].copy_from_slice(&row.thickness[k * cols..(k + 1) * cols]);
+                }
+            }
+            if let Some(all) = &mut sea_floor {
+                all.extend_from_slice(&row.sea_floor);
+            }
+            extent.merge(&row.extent).map_err(internal)?;
+        }
+        Ok(ColumnResult {
+            step: view.solved.step,
+            rows: view.solved.rows.clone(),
+            horizons,
+            thickness,
+            sea_floor,
+            extent,
+        })
+    }
+
+    fn analyse_row(
+        &self,
+        view: &SlabView,
+        r: usize,
+        scratch: &mut Scratch,
+    ) -> Result<RowResult, PipelineError> {
+        let SlabShape { levels, cols, .. } = view.shape;
+        let mut row = RowResult {
+            depth: vec![VALUE_FILL; self.horizons.len() * cols],
+            status: vec![HorizonStatus::Land.flag_value(); self.horizons.len() * cols],
+            thickness: if view.write_thickness {
+                vec![VALUE_FILL; levels * cols]
+            } else {
+                Vec::new()
+            },
+            sea_floor: Vec::with_capacity(if view.write_sea_floor { cols } else { 0 }),
+            extent: CorrosiveExtent::new(self.plan.thresholds.clone()),
+        };
+        for i in 0..cols {
+            let floor = self.analyse_column(view, r, i, scratch, &mut row)?;
+            if view.write_sea_floor {
+                row.sea_floor.push(floor.map_or(VALUE_FILL, |d| d as f32));
+            }
+        }
+        Ok(row)
+    }
+
+    /// One column: its horizons, cell thicknesses and extent terms into `row`. Returns the
+    /// sea-floor depth below the datum to report for it (none for land without one).
+    fn analyse_column(
+        &self,
+        view: &SlabView,
+        r: usize,
+        i: usize,
+        s: &mut Scratch,
+        row: &mut RowResult,
+    ) -> Result<Option<f64>, PipelineError> {
+        let (inputs, shape) = (view.inputs, view.shape);
+        let column = r * shape.cols + i;
+        let grid_column = (view.solved.rows.start + r) * shape.cols + i;
+        let flags = &view.solved.flags;
+        s.cells.gather(
+            shape,
+            column,
+            &inputs.depth_m,
+            |cell| flags[cell] != FLAG_FILL,
+            &view.omega,
+        );
+        let known_floor = Some(self.geometry.sea_floor_m[grid_column]).filter(|d| d.is_finite());
+        if s.cells.is_empty() {
+            return Ok(known_floor);
+        }
+        let eta = inputs.surface_height_m[column];
+        s.centres.clear();
+        s.centres
+            .extend((0..shape.levels).map(|k| inputs.depth_m[shape.index(k, column)] + eta));
+        self.geometry
+            .vertical
+            .level_bounds(&s.centres, eta, known_floor, &mut s.bounds);
+        let clip = known_floor.map_or(f64::INFINITY, |d| d + eta);
+        let thickness = thicknesses_from_bounds(&s.bounds, Positive::Down, clip).ok();
+        for depth in &mut s.cells.depth_m {
+            *depth += eta;
+        }
+        let deepest = s.cells.levels.last().map_or(f64::NAN, |&k| {
+            let [a, b] = s.bounds[k];
+            a.max(b)
+        });
+        let floor = sea_floor_depth(known_floor.map(|d| d + eta), deepest);
+        let found = self.horizons_of_column(s, floor, i, row)?;
+        if let (Some(thickness), true) = (&thickness, found) {
+            self.add_to_extent(view, grid_column, thickness, s, &mut row.extent)?;
+            if view.write_thickness {
+                for &k in &s.cells.levels {
+                    row.thickness[k * shape.cols + i] = thickness[k] as f32;
+                }
+            }
+        }
+        Ok(known_floor.or(Some(deepest - eta).filter(|d| d.is_finite())))
+    }
+
+    /// The column's horizons into `row` (column `i`) and `s.horizon_m`. Returns false when the
+    /// column's depths are unknown (its Ω is missing too): every status is then
+    /// `omega_missing` and the column adds nothing to the extent.
+    fn horizons_of_column(
+        &self,
+        s: &mut Scratch,
+        floor: f64,
+        i: usize,
+        row: &mut RowResult,
+    ) -> Result<bool, PipelineError> {
+        let cols = row.status.len() / self.horizons.len();
+        let deepest_centre = s.cells.depth_m.last().copied().unwrap_or(0.0);
+        let floor = if floor.is_finite() {
+            floor
+        } else {
+            deepest_centre
+        };
+        let wet = WetColumn::new(&s.cells.depth_m, floor);
+        for list in &mut s.horizon_m {
+            list.clear();
+        }
+        for (h, &(mineral, threshold)) in self.horizons.iter().enumerate() {
+            let found = match &wet {
+                Ok(wet) => {
+                    let m = self.plan.minerals.iter().position(|x| *x == mineral);
+                    let omega = &s.cells.fields[m.unwrap_or(0)];
+                    wet.horizon(omega, threshold).map_err(internal)?
+                }
+                Err(_) => Horizon {
+                    status: HorizonStatus::OmegaMissing,
+                    depth_m: None,
+                    sensitivity: None,
+                },
+            };
+            row.status[h * cols + i] = found.status.flag_value();
+            row.depth[h * cols + i] = found.depth_m.map_or(VALUE_FILL, |d| d as f32);
+            s.horizon_m[mineral_index(mineral)].push(found.depth_m);
+        }
+        Ok(wet.is_ok())
+    }
+
+    /// Adds one column (gathered in `s`, horizons in `s.horizon_m`) to the extent.
+    fn add_to_extent(
+        &self,
+        view: &SlabView,
+        grid_column: usize,
+        thickness: &[f64],
+        s: &mut Scratch,
+        extent: &mut CorrosiveExtent,
+    ) -> Result<(), PipelineError> {
+        let area = self.geometry.area_m2[grid_column];
+        if !(area.is_finite() && area >= 0.0) {
+            let cols = view.shape.cols;
+            return Err(PipelineError::Option {
+                option: "cell areas".into(),
+                message: format!(
+                    "no cell area for the water column at row {}, column {} ({}); name the run's cell-area variable with --variable cell_area=NAME, or pass --no-horizons",
+                    grid_column / cols + 1,
+                    grid_column % cols + 1,
+                    self.geometry.area_source
+                ),
+            });
+        }
+        let all = cell_volumes(area, thickness);
+        s.volumes.clear();
+        s.volumes.extend(s.cells.levels.iter().map(|&k| all[k]));
+        s.missing.clear();
+        s.missing.resize(s.cells.len(), f64::NAN);
+        let omega_of = |m: Mineral| {
+            self.plan
+                .minerals
+                .iter()
+                .position(|x| *x == m)
+                .map_or(s.missing.as_slice(), |k| s.cells.fields[k].as_slice())
+        };
+        let mineral = |m: Mineral| MineralColumn {
+            omega: omega_of(m),
+            horizon_m: &s.horizon_m[mineral_index(m)],
+        };
+        extent
+            .add_column(&ExtentColumn {
+                area_m2: area,
+                volume_m3: &s.volumes,
+                aragonite: mineral(Mineral::Aragonite),
+                calcite: mineral(Mineral::Calcite),
+            })
+            .map_err(internal)
+    }
+}
+
+fn mineral_index(m: Mineral) -> usize {
+    match m {
+        Mineral::Aragonite => 0,
+        Mineral::Calcite => 1,
+    }
+}
+
+fn internal(e: impl std::fmt::Display) -> PipelineError {
+    PipelineError::Internal(format!("column analysis: {e}"))
+}
