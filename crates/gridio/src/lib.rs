@@ -14,6 +14,7 @@ pub mod units;
 mod axes;
 mod catalog;
 mod cell_geometry;
+mod cell_outlines;
 mod conversion;
 mod discovery;
 mod error;
@@ -33,7 +34,8 @@ mod timeline;
 mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
-pub use cell_geometry::{CellGeometry, CellOutlines, ColumnField, VerticalCells};
+pub use cell_geometry::{CellGeometry, ColumnField, VerticalCells};
+pub use cell_outlines::CellOutlines;
 pub use error::{GridError, Result};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
