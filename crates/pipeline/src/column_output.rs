@@ -5,6 +5,7 @@
 use crate::cells::VALUE_FILL;
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
+use crate::geometry::ColumnGeometry;
 use crate::horizon_choice::{horizon_depth_name, horizon_status_name, series_name, HorizonPlan};
 use crate::output::OutputLayout;
 use crate::plan::SlabPlan;
@@ -25,7 +26,7 @@ pub const CELL_THICKNESS: &str = "cell_thickness";
 pub const CELL_MEASURES: &str = "area: cell_area";
 /// Fill value of the status flags (no flag value).
 pub const STATUS_FILL: i8 = -1;
-/// Fill value of the double-precision variables (cell area, time series), as the indicators'.
+/// Fill value of the double-precision time series, as the indicators'.
 pub const DOUBLE_FILL: f64 = 1.0e20;
 
 /// The extent quantities a plan writes, as rows of an empty summary (names, units, labels).
@@ -135,13 +136,13 @@ impl ColumnDefinition<'_> {
     }
 }
 
-/// Defines every column variable and writes the cell areas.
+/// Defines the column variables other than `cell_area` (see [`define_cell_area`]).
 pub(crate) fn define_column_outputs(
     file: &mut FileMut,
     def: &ColumnDefinition,
     work: &ColumnWork,
 ) -> Result<(), PipelineError> {
-    define_geometry(file, def, work)?;
+    define_floor_and_thickness(file, def, work.geometry())?;
     for (mineral, threshold) in work.plan().horizons() {
         define_horizon(file, def, mineral, threshold)?;
     }
@@ -163,14 +164,41 @@ pub(crate) fn define_column_outputs(
         ];
         def.add::<f64>(file, &row_name(&row), &series_dims, None, attributes)?;
     }
+    Ok(())
+}
+
+/// Defines `cell_area` and writes it. Called before the data variables whose
+/// `cell_measures` name it: CDO takes a cell measure met after them, when it names its
+/// coordinates, for a second and inconsistent definition (and warns).
+pub(crate) fn define_cell_area(
+    file: &mut FileMut,
+    def: &ColumnDefinition,
+    work: &ColumnWork,
+) -> Result<(), PipelineError> {
+    // float32, as CMIP stores areacello.
+    let area = vec![
+        ("standard_name", AttributeValue::from("cell_area")),
+        (
+            "long_name",
+            AttributeValue::from("horizontal area of the grid cell"),
+        ),
+        ("units", AttributeValue::from("m2")),
+        ("_FillValue", AttributeValue::Float(VALUE_FILL)),
+        (
+            "comment",
+            AttributeValue::from(format!("From {}.", work.geometry().area_source).as_str()),
+        ),
+    ];
+    define_horizontal(file, def, CELL_AREA, area)?;
+
     let mut area = file
         .variable_mut(CELL_AREA)
         .ok_or_else(|| PipelineError::Internal("cell_area vanished".into()))?;
-    let values: Vec<f64> = work
+    let values: Vec<f32> = work
         .geometry()
         .area_m2
         .iter()
-        .map(|a| if a.is_finite() { *a } else { DOUBLE_FILL })
+        .map(|a| if a.is_finite() { *a as f32 } else { VALUE_FILL })
         .collect();
     nc(area.put_values(&values, ..), def.path, || {
         "writing 'cell_area'".into()
@@ -198,37 +226,24 @@ fn series_comment(row: &ExtentRow) -> String {
     }
 }
 
-fn define_geometry(
+/// A float32 field on the horizontal dimensions, with the grid's coordinates.
+fn define_horizontal(
     file: &mut FileMut,
     def: &ColumnDefinition,
-    work: &ColumnWork,
+    name: &str,
+    mut attributes: Vec<(&str, AttributeValue)>,
 ) -> Result<(), PipelineError> {
-    let geometry = work.geometry();
-    let horizontal = def.horizontal_dims();
-    // No `coordinates` on the cell measure: CDO takes one there for a second, different
-    // definition of the variable (and warns); the dimensions say where each area belongs.
-    let area = vec![
-        ("standard_name", AttributeValue::from("cell_area")),
-        (
-            "long_name",
-            AttributeValue::from("horizontal area of the grid cell"),
-        ),
-        ("units", AttributeValue::from("m2")),
-        ("_FillValue", AttributeValue::Double(DOUBLE_FILL)),
-        (
-            "comment",
-            AttributeValue::from(format!("From {}.", geometry.area_source).as_str()),
-        ),
-    ];
-    def.add::<f64>(
-        file,
-        CELL_AREA,
-        &horizontal,
-        Some(&def.horizontal_chunk()),
-        area,
-    )?;
+    attributes.extend(def.grid_attributes());
+    let dims = def.horizontal_dims();
+    def.add::<f32>(file, name, &dims, Some(&def.horizontal_chunk()), attributes)
+}
 
-    let mut floor = vec![
+fn define_floor_and_thickness(
+    file: &mut FileMut,
+    def: &ColumnDefinition,
+    geometry: &ColumnGeometry,
+) -> Result<(), PipelineError> {
+    let floor = vec![
         ("standard_name", AttributeValue::from("sea_floor_depth_below_geoid")),
         ("long_name", AttributeValue::from("depth of the sea floor")),
         ("units", AttributeValue::from("m")),
@@ -246,14 +261,7 @@ fn define_geometry(
             ),
         ),
     ];
-    floor.extend(def.grid_attributes());
-    def.add::<f32>(
-        file,
-        SEA_FLOOR_DEPTH,
-        &horizontal,
-        Some(&def.horizontal_chunk()),
-        floor,
-    )?;
+    define_horizontal(file, def, SEA_FLOOR_DEPTH, floor)?;
 
     let mut dims = Vec::new();
     let mut chunk = def.chunk.to_vec();

@@ -1,7 +1,9 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
 use crate::cells::{SlabResult, VALUE_FILL};
-use crate::column_output::{define_column_outputs, ColumnDefinition, CELL_MEASURES};
+use crate::column_output::{
+    define_cell_area, define_column_outputs, ColumnDefinition, CELL_MEASURES,
+};
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::flags::{flag_masks, flag_meanings, Flag, ALL_FLAG_BITS, FLAG_BITS, FLAG_FILL};
@@ -139,6 +141,17 @@ pub fn define_output(
         meta.constants.boron.key()
     );
     let cell_methods = input_cell_methods(&run.input_files());
+    let column_definition = ColumnDefinition {
+        path,
+        layout: &layout,
+        axes: &axes,
+        plan,
+        chunk: &chunk,
+        deflate_level: meta.deflate_level,
+    };
+    if let Some(work) = columns {
+        define_cell_area(file, &column_definition, work)?;
+    }
 
     for field in fields {
         let mut var = nc(file.add_variable::<f32>(field.name, &dims), path, || {
@@ -193,15 +206,7 @@ pub fn define_output(
 
     define_flag(file, path, &dims, &chunk, &axes, meta, columns.is_some())?;
     if let Some(work) = columns {
-        let definition = ColumnDefinition {
-            path,
-            layout: &layout,
-            axes: &axes,
-            plan,
-            chunk: &chunk,
-            deflate_level: meta.deflate_level,
-        };
-        define_column_outputs(file, &definition, work)?;
+        define_column_outputs(file, &column_definition, work)?;
     }
 
     for (name, value) in global_attributes(run, meta) {
