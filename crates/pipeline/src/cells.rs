@@ -63,9 +63,11 @@ pub fn solve_slab(
     let cells = inputs.shape.iter().product::<usize>();
     let mut values: Vec<Vec<f32>> = fields.iter().map(|_| vec![VALUE_FILL; cells]).collect();
     let mut flags = vec![FLAG_FILL; cells];
+    // Zeroed (lazily, by the system) rather than filled: every cell is written once below,
+    // on the rayon pool, so no serial pass over the slab precedes the solve.
     let kept = |on: bool| {
         if on {
-            vec![f64::NAN; cells]
+            vec![0.0; cells]
         } else {
             Vec::new()
         }
@@ -98,14 +100,14 @@ pub fn solve_slab(
             for (offset, flag) in flag_block.iter_mut().enumerate() {
                 let cell = start + offset;
                 let put = |k: usize, v: f32| outs[k][offset] = v;
-                let put_omega = |aragonite: f64, calcite: f64| {
-                    for (state, value) in states.iter_mut().zip([aragonite, calcite]) {
-                        if let Some(state) = state {
-                            state[offset] = value;
-                        }
-                    }
-                };
+                let mut omega = [f64::NAN; 2];
+                let put_omega = |aragonite: f64, calcite: f64| omega = [aragonite, calcite];
                 *flag = solve_cell(inputs, cell, fields, choice, put, put_omega);
+                for (state, value) in states.iter_mut().zip(omega) {
+                    if let Some(state) = state {
+                        state[offset] = value;
+                    }
+                }
                 counts.record(*flag);
             }
             counts

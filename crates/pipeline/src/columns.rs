@@ -13,7 +13,7 @@ use crate::horizon_choice::HorizonPlan;
 use crate::PipelineError;
 use acidscape_analysis::column::{ColumnCells, SlabShape};
 use acidscape_analysis::extent::{CorrosiveExtent, ExtentColumn, Mineral, MineralColumn};
-use acidscape_analysis::geometry::{cell_volumes, thicknesses_from_bounds, Positive};
+use acidscape_analysis::geometry::clipped_thickness;
 use acidscape_analysis::horizons::{sea_floor_depth, Horizon, HorizonStatus, WetColumn};
 use acidscape_gridio::SlabInputs;
 use rayon::prelude::*;
@@ -55,12 +55,70 @@ pub struct ColumnResult {
 /// Reusable buffers of one worker.
 #[derive(Default)]
 struct Scratch {
+    /// One grid row of the slab with levels innermost (column by column), so that a
+    /// column's cells are contiguous: depth, wetness and each mineral's Ω.
+    row_depth: Vec<f64>,
+    row_wet: Vec<bool>,
+    row_omega: Vec<Vec<f64>>,
     cells: ColumnCells,
     centres: Vec<f64>,
     bounds: Vec<[f64; 2]>,
+    /// Thickness of each gathered (wet) cell [m], from the surface down.
+    thickness: Vec<f64>,
     volumes: Vec<f64>,
     missing: Vec<f64>,
     horizon_m: [Vec<Option<f64>>; 2],
+}
+
+impl Scratch {
+    /// Copies grid row `r` of the slab level by level (reading each level's row in order)
+    /// into the column-by-column buffers.
+    fn load_row(&mut self, view: &SlabView, r: usize) {
+        let SlabShape { levels, cols, .. } = view.shape;
+        let n = levels * cols;
+        self.row_depth.resize(n, 0.0);
+        self.row_wet.resize(n, false);
+        self.row_omega.resize_with(view.omega.len(), Vec::new);
+        for buffer in &mut self.row_omega {
+            buffer.resize(n, 0.0);
+        }
+        for k in 0..levels {
+            let start = view.shape.index(k, r * cols);
+            let depth = &view.inputs.depth_m[start..start + cols];
+            let flags = &view.solved.flags[start..start + cols];
+            for i in 0..cols {
+                self.row_depth[i * levels + k] = depth[i];
+                self.row_wet[i * levels + k] = flags[i] != FLAG_FILL;
+            }
+            for (buffer, field) in self.row_omega.iter_mut().zip(&view.omega) {
+                for (i, &w) in field[start..start + cols].iter().enumerate() {
+                    buffer[i * levels + k] = w;
+                }
+            }
+        }
+    }
+
+    /// Gathers column `i` of the loaded row from the surface down.
+    fn gather(&mut self, levels: usize, i: usize) {
+        let range = i * levels..(i + 1) * levels;
+        let one_column = SlabShape {
+            levels,
+            rows: 1,
+            cols: 1,
+        };
+        let wet = &self.row_wet[range.clone()];
+        let omega: [&[f64]; 2] = [
+            self.row_omega.first().map_or(&[], |b| &b[range.clone()]),
+            self.row_omega.get(1).map_or(&[], |b| &b[range.clone()]),
+        ];
+        self.cells.gather(
+            one_column,
+            0,
+            &self.row_depth[range],
+            |k| wet[k],
+            &omega[..self.row_omega.len()],
+        );
+    }
 }
 
 /// One grid row's results.
@@ -205,6 +263,7 @@ impl ColumnWork {
             sea_floor: Vec::with_capacity(if view.write_sea_floor { cols } else { 0 }),
             extent: CorrosiveExtent::new(self.plan.thresholds.clone()),
         };
+        scratch.load_row(view, r);
         for i in 0..cols {
             let floor = self.analyse_column(view, r, i, scratch, &mut row)?;
             if view.write_sea_floor {
@@ -224,30 +283,23 @@ impl ColumnWork {
         s: &mut Scratch,
         row: &mut RowResult,
     ) -> Result<Option<f64>, PipelineError> {
-        let (inputs, shape) = (view.inputs, view.shape);
+        let shape = view.shape;
         let column = r * shape.cols + i;
         let grid_column = (view.solved.rows.start + r) * shape.cols + i;
-        let flags = &view.solved.flags;
-        s.cells.gather(
-            shape,
-            column,
-            &inputs.depth_m,
-            |cell| flags[cell] != FLAG_FILL,
-            &view.omega,
-        );
+        s.gather(shape.levels, i);
         let known_floor = Some(self.geometry.sea_floor_m[grid_column]).filter(|d| d.is_finite());
         if s.cells.is_empty() {
             return Ok(known_floor);
         }
-        let eta = inputs.surface_height_m[column];
+        let eta = view.inputs.surface_height_m[column];
+        let row_depth = &s.row_depth[i * shape.levels..(i + 1) * shape.levels];
         s.centres.clear();
-        s.centres
-            .extend((0..shape.levels).map(|k| inputs.depth_m[shape.index(k, column)] + eta));
+        s.centres.extend(row_depth.iter().map(|d| d + eta));
         self.geometry
             .vertical
             .level_bounds(&s.centres, eta, known_floor, &mut s.bounds);
         let clip = known_floor.map_or(f64::INFINITY, |d| d + eta);
-        let thickness = thicknesses_from_bounds(&s.bounds, Positive::Down, clip).ok();
+        let known = wet_thicknesses(s, clip);
         for depth in &mut s.cells.depth_m {
             *depth += eta;
         }
@@ -257,11 +309,11 @@ impl ColumnWork {
         });
         let floor = sea_floor_depth(known_floor.map(|d| d + eta), deepest);
         let found = self.horizons_of_column(s, floor, i, row)?;
-        if let (Some(thickness), true) = (&thickness, found) {
-            self.add_to_extent(view, grid_column, thickness, s, &mut row.extent)?;
+        if known && found {
+            self.add_to_extent(view, grid_column, s, &mut row.extent)?;
             if view.write_thickness {
-                for &k in &s.cells.levels {
-                    row.thickness[k * shape.cols + i] = thickness[k] as f32;
+                for (&k, &h) in s.cells.levels.iter().zip(&s.thickness) {
+                    row.thickness[k * shape.cols + i] = h as f32;
                 }
             }
         }
@@ -309,12 +361,11 @@ impl ColumnWork {
         Ok(wet.is_ok())
     }
 
-    /// Adds one column (gathered in `s`, horizons in `s.horizon_m`) to the extent.
+    /// Adds one column (gathered in `s`, with its thicknesses and horizons) to the extent.
     fn add_to_extent(
         &self,
         view: &SlabView,
         grid_column: usize,
-        thickness: &[f64],
         s: &mut Scratch,
         extent: &mut CorrosiveExtent,
     ) -> Result<(), PipelineError> {
@@ -331,9 +382,9 @@ impl ColumnWork {
                 ),
             });
         }
-        let all = cell_volumes(area, thickness);
+        // Volume = area × thickness (as geometry::cell_volumes, without its allocation).
         s.volumes.clear();
-        s.volumes.extend(s.cells.levels.iter().map(|&k| all[k]));
+        s.volumes.extend(s.thickness.iter().map(|h| area * h));
         s.missing.clear();
         s.missing.resize(s.cells.len(), f64::NAN);
         let omega_of = |m: Mineral| {
@@ -356,6 +407,20 @@ impl ColumnWork {
             })
             .map_err(internal)
     }
+}
+
+/// The thickness of each gathered cell into `s.thickness`: its bounds clipped at the sea floor
+/// `clip` [m below the surface] (geometry::clipped_thickness). False when a bound is unknown.
+fn wet_thicknesses(s: &mut Scratch, clip: f64) -> bool {
+    s.thickness.clear();
+    for &k in &s.cells.levels {
+        let [upper, lower] = s.bounds[k];
+        if !(upper.is_finite() && lower.is_finite()) {
+            return false;
+        }
+        s.thickness.push(clipped_thickness(upper, lower, clip));
+    }
+    true
 }
 
 fn mineral_index(m: Mineral) -> usize {
