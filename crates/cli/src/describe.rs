@@ -2,6 +2,7 @@
 
 use crate::run_options::RunOptions;
 use acidscape_gridio::Run;
+use acidscape_pipeline::geometry::ColumnGeometry;
 use acidscape_pipeline::{
     parse_memory_size, plan_slabs, ColumnLoad, HorizonChoice, HorizonPlan, IndicatorChoice,
 };
@@ -43,6 +44,15 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     )?;
     println!("Work split for `compute` with its default indicators and horizons:");
     println!("{plan}");
+    println!("Cells' geometry for the saturation horizons and volumes:");
+    match ColumnGeometry::of(&run) {
+        Ok(geometry) => {
+            println!("  cell areas: {}", geometry.area_source);
+            println!("  sea floor: {}", geometry.sea_floor_source);
+            println!("  level bounds: {}", geometry.vertical.describe());
+        }
+        Err(why) => println!("  compute would stop here unless given --no-horizons: {why}"),
+    }
     let implausible = run.implausible_inputs();
     if !implausible.is_empty() && !accepted {
         return Err(format!(
