@@ -71,29 +71,38 @@ impl VerticalCells {
         self.varies_in_time
     }
 
+    /// Whether [`VerticalCells::level_bounds`] reads the centres' depths (only for bounds
+    /// derived from the centres); otherwise an empty slice may be passed.
+    pub fn needs_centres(&self) -> bool {
+        matches!(self.kind, VerticalKind::Midpoints { .. })
+    }
+
     /// The upper and lower bound of every level of one column [m below the sea surface,
-    /// positive down], in the file's level order, into `out`.
+    /// positive down], in the file's level order: fixed bounds as they are, others computed
+    /// into `out`.
     ///
-    /// - `centres_m`: depth of each level's centre below the sea surface [m], file order;
+    /// - `centres_m`: depth of each level's centre below the sea surface [m], file order
+    ///   (read only when [`VerticalCells::needs_centres`]);
     /// - `surface_height_m`: free-surface height above the datum [m] (0 on fixed levels);
     /// - `sea_floor_m`: the column's sea-floor depth below the datum [m], if known.
     ///
     /// Values are NaN where the inputs are (land).
-    pub fn level_bounds(
-        &self,
+    pub fn level_bounds<'a>(
+        &'a self,
         centres_m: &[f64],
         surface_height_m: f64,
         sea_floor_m: Option<f64>,
-        out: &mut Vec<[f64; 2]>,
-    ) {
+        out: &'a mut Vec<[f64; 2]>,
+    ) -> &'a [[f64; 2]] {
         out.clear();
         match &self.kind {
-            VerticalKind::Bounds(bounds) => out.extend_from_slice(bounds),
+            VerticalKind::Bounds(bounds) => return bounds,
             VerticalKind::Interfaces(formula) => {
                 let depth = sea_floor_m.unwrap_or(f64::NAN);
                 let below =
                     |k: usize| surface_height_m - formula.height(k, surface_height_m, depth);
-                out.extend((0..centres_m.len()).map(|k| [below(k), below(k + 1)]));
+                let levels = formula.level_values().len() - 1;
+                out.extend((0..levels).map(|k| [below(k), below(k + 1)]));
             }
             VerticalKind::Midpoints {
                 bottom_at_sea_floor,
@@ -103,6 +112,7 @@ impl VerticalCells {
                 midpoint_bounds(centres_m, bottom, out);
             }
         }
+        out
     }
 }
 

@@ -65,12 +65,12 @@ fn w_level_terms_give_the_interfaces_at_each_step() {
     // s = -1, C = -1: 201; s = -0.7, C = -0.55: S = -117/210, 111.985714...;
     // s = -0.3, C = -0.15: S = -33/210, 31.585714...; s = 0, C = 0: 0.
     let column = 2 * GRID.cols + 2;
-    let mut bounds = Vec::new();
-    vertical.level_bounds(
+    let mut out = Vec::new();
+    let bounds = vertical.level_bounds(
         &centres(&run, 2, 2),
         1.0,
         Some(floor.values[column]),
-        &mut bounds,
+        &mut out,
     );
     let want = [201.0, 201.0 * 117.0 / 210.0, 201.0 * 33.0 / 210.0, 0.0];
     assert_eq!(bounds.len(), 3);
@@ -89,8 +89,9 @@ fn without_w_levels_interfaces_fall_midway_from_the_free_surface_to_the_floor() 
     assert!(vertical.describe().contains("derived from the centres"));
     assert!(vertical.varies_in_time());
     let c = centres(&run, 2, 2);
-    let mut bounds = Vec::new();
-    vertical.level_bounds(&c, 1.0, Some(200.0), &mut bounds);
+    assert!(vertical.needs_centres());
+    let mut out = Vec::new();
+    let bounds = vertical.level_bounds(&c, 1.0, Some(200.0), &mut out);
     // Level order is bottom first (s increases upwards): the bottom level ends at the sea
     // floor below the free surface (200 m + 1 m), the top level starts at the surface.
     assert_eq!(bounds[0][1], 201.0);
@@ -110,11 +111,11 @@ fn z_levels_without_bounds_are_derived_from_the_centres_and_said_so() {
         .vertical
         .describe()
         .contains("derived from the centres"));
-    let mut bounds = Vec::new();
-    geometry
+    let mut out = Vec::new();
+    let bounds = geometry
         .vertical
-        .level_bounds(&[5.0, 100.0, 1000.0], 0.0, None, &mut bounds);
-    assert_eq!(bounds, vec![[0.0, 52.5], [52.5, 550.0], [550.0, 1450.0]]);
+        .level_bounds(&[5.0, 100.0, 1000.0], 0.0, None, &mut out);
+    assert_eq!(bounds, [[0.0, 52.5], [52.5, 550.0], [550.0, 1450.0]]);
     // No lat/lon bounds either: 1-D edges midway between centres 10° apart (lat) and 2° (lon).
     let CellOutlines::Rectilinear {
         lon_bounds,

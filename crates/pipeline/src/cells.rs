@@ -53,26 +53,31 @@ type Block<'a> = (
 const CELLS_PER_TASK: usize = 4096;
 
 /// Solves every cell of `inputs` and fills the requested fields, the flags and the kept
-/// saturation states.
+/// saturation states (in `spare`'s buffers, which may hold a previous slab's values).
 pub fn solve_slab(
     inputs: &SlabInputs,
     fields: &[OutputField],
     choice: &ConstantChoice,
     keep: KeepOmega,
+    spare: SaturationStates,
 ) -> SlabResult {
     let cells = inputs.shape.iter().product::<usize>();
     let mut values: Vec<Vec<f32>> = fields.iter().map(|_| vec![VALUE_FILL; cells]).collect();
     let mut flags = vec![FLAG_FILL; cells];
-    // Zeroed (lazily, by the system) rather than filled: every cell is written once below,
-    // on the rayon pool, so no serial pass over the slab precedes the solve.
-    let kept = |on: bool| {
+    // The kept states reuse `spare` (the previous slab's) as they are: every cell is written
+    // once below, on the rayon pool, so no pass over the slab precedes the solve.
+    let kept = |on: bool, mut buffer: Vec<f64>| {
         if on {
-            vec![0.0; cells]
+            buffer.resize(cells, 0.0);
+            buffer
         } else {
             Vec::new()
         }
     };
-    let mut omega = [kept(keep.aragonite), kept(keep.calcite)];
+    let mut omega = [
+        kept(keep.aragonite, spare.aragonite),
+        kept(keep.calcite, spare.calcite),
+    ];
 
     // Split every field and the flags into the same blocks, then hand blocks to rayon.
     let mut blocks: Vec<Block<'_>> = flags

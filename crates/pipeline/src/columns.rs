@@ -17,6 +17,7 @@ use acidscape_analysis::geometry::clipped_thickness;
 use acidscape_analysis::horizons::{sea_floor_depth, Horizon, HorizonStatus, WetColumn};
 use acidscape_gridio::SlabInputs;
 use rayon::prelude::*;
+use std::cell::RefCell;
 use std::ops::Range;
 
 /// The column analysis of a job: what to compute and the geometry of every column.
@@ -24,6 +25,8 @@ use std::ops::Range;
 pub struct ColumnWork {
     plan: HorizonPlan,
     horizons: Vec<(Mineral, f64)>,
+    /// Per mineral (aragonite, calcite): its place among the gathered fields, if computed.
+    fields: [Option<usize>; 2],
     geometry: ColumnGeometry,
 }
 
@@ -50,6 +53,11 @@ pub struct ColumnResult {
     pub sea_floor: Option<Vec<f32>>,
     /// The slab's share of the step's corrosive-water extent.
     pub extent: CorrosiveExtent,
+}
+
+thread_local! {
+    /// Each worker's buffers, kept from row to row and slab to slab.
+    static SCRATCH: RefCell<Scratch> = RefCell::new(Scratch::default());
 }
 
 /// Reusable buffers of one worker.
@@ -84,18 +92,26 @@ impl Scratch {
         }
         for k in 0..levels {
             let start = view.shape.index(k, r * cols);
-            let depth = &view.inputs.depth_m[start..start + cols];
-            let flags = &view.solved.flags[start..start + cols];
-            for i in 0..cols {
-                self.row_depth[i * levels + k] = depth[i];
-                self.row_wet[i * levels + k] = flags[i] != FLAG_FILL;
+            let level = start..start + cols;
+            let depth = &view.inputs.depth_m[level.clone()];
+            let flags = &view.solved.flags[level.clone()];
+            let columns = (self.row_depth.chunks_exact_mut(levels))
+                .zip(self.row_wet.chunks_exact_mut(levels));
+            for ((column, wet), (&d, &flag)) in columns.zip(depth.iter().zip(flags)) {
+                column[k] = d;
+                wet[k] = flag != FLAG_FILL;
             }
             for (buffer, field) in self.row_omega.iter_mut().zip(&view.omega) {
-                for (i, &w) in field[start..start + cols].iter().enumerate() {
-                    buffer[i * levels + k] = w;
+                for (column, &w) in buffer.chunks_exact_mut(levels).zip(&field[level.clone()]) {
+                    column[k] = w;
                 }
             }
         }
+    }
+
+    /// Whether column `i` of the loaded row has a wet cell.
+    fn has_water(&self, levels: usize, i: usize) -> bool {
+        self.row_wet[i * levels..(i + 1) * levels].contains(&true)
     }
 
     /// Gathers column `i` of the loaded row from the surface down.
@@ -143,8 +159,10 @@ struct SlabView<'a> {
 impl ColumnWork {
     /// The column analysis of `plan` on columns of `geometry`.
     pub fn new(plan: HorizonPlan, geometry: ColumnGeometry) -> ColumnWork {
+        let field = |m: Mineral| plan.minerals.iter().position(|x| *x == m);
         ColumnWork {
             horizons: plan.horizons(),
+            fields: [field(Mineral::Aragonite), field(Mineral::Calcite)],
             plan,
             geometry,
         }
@@ -193,9 +211,7 @@ impl ColumnWork {
         };
         let row_results: Vec<RowResult> = (0..rows)
             .into_par_iter()
-            .map_init(Scratch::default, |scratch, r| {
-                self.analyse_row(&view, r, scratch)
-            })
+            .map(|r| SCRATCH.with(|scratch| self.analyse_row(&view, r, &mut scratch.borrow_mut())))
             .collect::<Result<_, _>>()?;
         self.assemble(&view, row_results)
     }
@@ -286,27 +302,28 @@ impl ColumnWork {
         let shape = view.shape;
         let column = r * shape.cols + i;
         let grid_column = (view.solved.rows.start + r) * shape.cols + i;
-        s.gather(shape.levels, i);
         let known_floor = Some(self.geometry.sea_floor_m[grid_column]).filter(|d| d.is_finite());
-        if s.cells.is_empty() {
+        if !s.has_water(shape.levels, i) {
             return Ok(known_floor);
         }
+        s.gather(shape.levels, i);
         let eta = view.inputs.surface_height_m[column];
-        let row_depth = &s.row_depth[i * shape.levels..(i + 1) * shape.levels];
+        let vertical = &self.geometry.vertical;
         s.centres.clear();
-        s.centres.extend(row_depth.iter().map(|d| d + eta));
-        self.geometry
-            .vertical
-            .level_bounds(&s.centres, eta, known_floor, &mut s.bounds);
+        if vertical.needs_centres() {
+            let row_depth = &s.row_depth[i * shape.levels..(i + 1) * shape.levels];
+            s.centres.extend(row_depth.iter().map(|d| d + eta));
+        }
+        let bounds = vertical.level_bounds(&s.centres, eta, known_floor, &mut s.bounds);
         let clip = known_floor.map_or(f64::INFINITY, |d| d + eta);
-        let known = wet_thicknesses(s, clip);
+        let known = wet_thicknesses(&s.cells.levels, bounds, clip, &mut s.thickness);
+        let deepest = s.cells.levels.last().map_or(f64::NAN, |&k| {
+            let [a, b] = bounds[k];
+            a.max(b)
+        });
         for depth in &mut s.cells.depth_m {
             *depth += eta;
         }
-        let deepest = s.cells.levels.last().map_or(f64::NAN, |&k| {
-            let [a, b] = s.bounds[k];
-            a.max(b)
-        });
         let floor = sea_floor_depth(known_floor.map(|d| d + eta), deepest);
         let found = self.horizons_of_column(s, floor, i, row)?;
         if known && found {
@@ -344,9 +361,9 @@ impl ColumnWork {
         for (h, &(mineral, threshold)) in self.horizons.iter().enumerate() {
             let found = match &wet {
                 Ok(wet) => {
-                    let m = self.plan.minerals.iter().position(|x| *x == mineral);
-                    let omega = &s.cells.fields[m.unwrap_or(0)];
-                    wet.horizon(omega, threshold).map_err(internal)?
+                    let m = self.fields[mineral_index(mineral)].unwrap_or(0);
+                    wet.horizon(&s.cells.fields[m], threshold)
+                        .map_err(internal)?
                 }
                 Err(_) => Horizon {
                     status: HorizonStatus::OmegaMissing,
@@ -385,13 +402,12 @@ impl ColumnWork {
         // Volume = area × thickness (as geometry::cell_volumes, without its allocation).
         s.volumes.clear();
         s.volumes.extend(s.thickness.iter().map(|h| area * h));
-        s.missing.clear();
-        s.missing.resize(s.cells.len(), f64::NAN);
+        if self.fields.contains(&None) {
+            s.missing.clear();
+            s.missing.resize(s.cells.len(), f64::NAN);
+        }
         let omega_of = |m: Mineral| {
-            self.plan
-                .minerals
-                .iter()
-                .position(|x| *x == m)
+            self.fields[mineral_index(m)]
                 .map_or(s.missing.as_slice(), |k| s.cells.fields[k].as_slice())
         };
         let mineral = |m: Mineral| MineralColumn {
@@ -409,16 +425,17 @@ impl ColumnWork {
     }
 }
 
-/// The thickness of each gathered cell into `s.thickness`: its bounds clipped at the sea floor
-/// `clip` [m below the surface] (geometry::clipped_thickness). False when a bound is unknown.
-fn wet_thicknesses(s: &mut Scratch, clip: f64) -> bool {
-    s.thickness.clear();
-    for &k in &s.cells.levels {
-        let [upper, lower] = s.bounds[k];
+/// The thickness of each gathered cell (`levels`) into `out`: its `bounds` clipped at the sea
+/// floor `clip` [m below the surface] (geometry::clipped_thickness). False when a bound is
+/// unknown.
+fn wet_thicknesses(levels: &[usize], bounds: &[[f64; 2]], clip: f64, out: &mut Vec<f64>) -> bool {
+    out.clear();
+    for &k in levels {
+        let [upper, lower] = bounds[k];
         if !(upper.is_finite() && lower.is_finite()) {
             return false;
         }
-        s.thickness.push(clipped_thickness(upper, lower, clip));
+        out.push(clipped_thickness(upper, lower, clip));
     }
     true
 }

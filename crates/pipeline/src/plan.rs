@@ -9,11 +9,12 @@
 //! - outputs: 4 B per cell per indicator (f32) + 2 B quality flag (i16); up to
 //!   [`OUTPUT_SLABS_IN_FLIGHT`] at once (one being filled, one queued, one being written);
 //! - saturation horizons and corrosive extent (when computed, see [`ColumnLoad`]): Ω in f64
-//!   for each mineral with horizons, 8 B per cell, alive only while its slab is solved and
-//!   its columns analysed (one slab); the cell thickness, 4 B per cell (f32), up to
-//!   [`OUTPUT_SLABS_IN_FLIGHT`] slabs; per column of a slab, 4 B depth + 1 B status per
-//!   horizon and 4 B sea-floor depth, up to [`OUTPUT_SLABS_IN_FLIGHT`] slabs; and for the whole
-//!   job 16 B per column of the grid (cell area and sea-floor depth, f64);
+//!   for each mineral with horizons, 8 B per cell, one slab's worth (filled by the solve, read
+//!   by the column analysis, then reused by the next slab's solve); the cell thickness, 4 B
+//!   per cell (f32), up to [`OUTPUT_SLABS_IN_FLIGHT`] slabs; per column of a slab, 4 B depth
+//!   and 1 B status per horizon and 4 B sea-floor depth, up to [`OUTPUT_SLABS_IN_FLIGHT`]
+//!   slabs; and for the whole job 16 B per column of the grid (cell area and sea-floor
+//!   depth, f64);
 //! - a fixed [`FIXED_OVERHEAD_BYTES`] for the libraries, HDF5 chunk caches and threads.
 
 use crate::memory::format_bytes;

@@ -1,7 +1,7 @@
 //! The overlapping read → solve → write loop of a job, with durable progress after every
 //! finished time step and a clean stop when asked.
 
-use crate::cells::{solve_slab, KeepOmega, SlabResult};
+use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult};
 use crate::column_output::{write_columns, write_extent_step};
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
@@ -53,14 +53,17 @@ fn solve(
     options: &JobOptions,
     work: Option<&ColumnWork>,
     busy: &mut (Duration, Duration),
+    spare: &mut SaturationStates,
 ) -> Result<Solved, PipelineError> {
     let t = Instant::now();
     let inputs = run.convert_slab(raw);
     let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
-    let mut cells = solve_slab(&inputs, fields, &options.constants, keep);
+    let buffers = std::mem::take(spare);
+    let mut cells = solve_slab(&inputs, fields, &options.constants, keep, buffers);
     let solved = t.elapsed();
     let columns = work.map(|w| w.analyse(&inputs, &cells)).transpose()?;
-    cells.omega = Default::default();
+    // Kept for the next slab's states (no allocation, no zeroing).
+    *spare = std::mem::take(&mut cells.omega);
     busy.0 += t.elapsed();
     busy.1 += t.elapsed() - solved;
     Ok(Solved { cells, columns })
@@ -110,10 +113,11 @@ pub(crate) fn stream(
         });
         let solver = scope.spawn(move || {
             let mut busy = (Duration::ZERO, Duration::ZERO);
+            let mut spare = SaturationStates::default();
             for item in input_rx {
                 let item = item
                     .map_err(PipelineError::from)
-                    .and_then(|raw| solve(run, raw, fields, options, work, &mut busy));
+                    .and_then(|raw| solve(run, raw, fields, options, work, &mut busy, &mut spare));
                 let failed = item.is_err();
                 if result_tx.send(item).is_err() || failed {
                     break;
