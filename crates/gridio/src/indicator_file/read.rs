@@ -5,8 +5,7 @@ use super::layout::{parametric_columns, ParametricColumns, VerticalCoordinate};
 use super::{FieldInfo, IndicatorFile, CELL_AREA, CELL_THICKNESS, SEA_FLOOR_DEPTH};
 use crate::axes::Axis;
 use crate::error::{GridError, Result};
-use crate::source::to_canonical;
-use netcdf::types::{FloatType, NcVariableType};
+use crate::source::{read_hyperslab, to_canonical};
 use netcdf::Extent;
 use std::ops::Range;
 
@@ -88,26 +87,7 @@ impl IndicatorFile {
             sizes.push(range.len());
             extents.push(Extent::from(range));
         }
-        let read_error = |e: netcdf::Error| GridError::Read {
-            file: self.path.clone(),
-            variable: field.name.clone(),
-            message: e.to_string(),
-        };
-        // float32 is read as stored and widened exactly outside libnetcdf.
-        let mut raw: Vec<f64> = if var.vartype() == NcVariableType::Float(FloatType::F32) {
-            let stored: Vec<f32> = var.get_values(extents).map_err(read_error)?;
-            stored.into_iter().map(f64::from).collect()
-        } else {
-            var.get_values(extents).map_err(read_error)?
-        };
-        let wanted: usize = sizes.iter().product();
-        if raw.len() != wanted {
-            return Err(GridError::Read {
-                file: self.path.clone(),
-                variable: field.name.clone(),
-                message: format!("short read: {} of {wanted} values", raw.len()),
-            });
-        }
+        let mut raw = read_hyperslab(&var, extents, &sizes, &self.path)?;
         field.mask.apply(&mut raw);
         Ok(to_canonical(raw, &field.axes, &sizes))
     }
