@@ -65,6 +65,8 @@ pub struct FieldInfo {
     pub long_name: Option<String>,
     /// `standard_name` attribute, if any.
     pub standard_name: Option<String>,
+    /// `cell_methods` attribute, if any.
+    pub cell_methods: Option<String>,
     /// Dimension names in file order.
     pub dims: Vec<String>,
     /// Whether it varies with time.
@@ -292,6 +294,7 @@ fn catalogue_fields(file: &InputFile) -> Vec<FieldInfo> {
             units: attr_text(&var, "units"),
             long_name: attr_text(&var, "long_name"),
             standard_name: attr_text(&var, "standard_name"),
+            cell_methods: attr_text(&var, "cell_methods"),
             dims: dim_names(&var),
             has_time: has(Axis::T),
             has_levels: has(Axis::Z),

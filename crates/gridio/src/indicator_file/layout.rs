@@ -26,6 +26,9 @@ pub struct TimeSteps {
     pub bounds: Vec<[f64; 2]>,
     /// Whether `bounds` came from the file.
     pub bounds_from_file: bool,
+    /// Whether the axis is climatological (CF `climatology` bounds: each step a window of
+    /// years, as the pathway comparison writes).
+    pub climatological: bool,
     /// Calendar year of each step, in the file's calendar, from the midpoint of its bounds
     /// (so an annual mean stamped on 1 January of the next year counts in its own year).
     pub years: Vec<i64>,
@@ -82,6 +85,18 @@ fn step_bounds(values: &[f64], file_bounds: Option<&[f64]>) -> Vec<[f64; 2]> {
         .collect()
 }
 
+/// The values of the variable a time coordinate's `climatology` attribute names, if any.
+fn climatology_bounds(file: &InputFile, time: &str, steps: usize) -> Result<Option<Vec<f64>>> {
+    let var = require_var(file, time, "the time axis")?;
+    let Some(name) = attr_text(&var, "climatology") else {
+        return Ok(None);
+    };
+    match file.nc.variable(&name) {
+        Some(b) if b.len() == 2 * steps => Ok(Some(read_all(&file.path, &b)?)),
+        _ => Ok(None),
+    }
+}
+
 /// The time axis of the reference variable, if it has one.
 pub(super) fn time_steps(file: &InputFile, reference: &FieldInfo) -> Result<Option<TimeSteps>> {
     if !reference.has_time {
@@ -94,7 +109,17 @@ pub(super) fn time_steps(file: &InputFile, reference: &FieldInfo) -> Result<Opti
             "varies in time, but the file has no CF time coordinate (units \"days since ...\")"
                 .to_string(),
     })?;
-    let bounds = step_bounds(&time.values, time.bounds.as_ref().map(|b| b.1.as_slice()));
+    // A climatological axis (CF 1.10 section 7.4) has `climatology` bounds instead.
+    let climatology = match &time.bounds {
+        Some(_) => None,
+        None => climatology_bounds(file, &time.var_name, time.values.len())?,
+    };
+    let file_bounds = time
+        .bounds
+        .as_ref()
+        .map(|b| b.1.clone())
+        .or(climatology.clone());
+    let bounds = step_bounds(&time.values, file_bounds.as_deref());
     let fail = |message: String| GridError::Metadata {
         file: file.path.clone(),
         variable: time.var_name.clone(),
@@ -121,7 +146,8 @@ pub(super) fn time_steps(file: &InputFile, reference: &FieldInfo) -> Result<Opti
         axis: time.axis,
         values: time.values,
         bounds,
-        bounds_from_file: time.bounds.is_some(),
+        bounds_from_file: file_bounds.is_some(),
+        climatological: climatology.is_some(),
         years,
         lengths_days,
     }))

@@ -31,11 +31,25 @@ impl IndicatorFile {
 
     /// One level of a 3-D field at one step (`rows × cols` values); for a 2-D field, the field.
     pub fn read_level(&self, name: &str, step: usize, level: usize) -> Result<Vec<f64>> {
+        self.read_level_rows(name, step, level, 0..self.grid.rows)
+    }
+
+    /// One level of a 3-D field at one step for a block of rows (`rows × cols` values).
+    pub fn read_level_rows(
+        &self,
+        name: &str,
+        step: usize,
+        level: usize,
+        rows: Range<usize>,
+    ) -> Result<Vec<f64>> {
         let field = self.variable(name)?;
-        if field.has_levels && level >= self.levels() {
+        if !field.has_levels {
+            return self.read_block(field, step, 0..1, rows);
+        }
+        if level >= self.levels() {
             return Err(self.out_of_range(name, format!("level {level} of {}", self.levels())));
         }
-        self.read_block(field, step, level..level + 1, 0..self.grid.rows)
+        self.read_block(field, step, level..level + 1, rows)
     }
 
     fn out_of_range(&self, name: &str, what: String) -> GridError {
