@@ -131,33 +131,18 @@ impl ComparisonPlan {
             .clone()
             .unwrap_or_else(|| output.with_extension("csv"));
         check_outputs(&output, &table, &inputs, request.overwrite)?;
-        let mut runs = Vec::with_capacity(inputs.len());
-        for (label, path) in inputs {
-            let file = IndicatorFile::open(&path)?;
-            runs.push(plan_run(label, file, &windows)?);
-        }
         let emergence = request
             .emergence
             .as_deref()
             .map(|text| parse_emergence(text, &windows[reference]))
             .transpose()?;
-        let thresholds = request
-            .omega_thresholds
-            .as_deref()
-            .map(|t| parse_numbers("--omega-thresholds", t))
-            .transpose()?;
+        let mut runs = Vec::with_capacity(inputs.len());
+        for (label, path) in inputs {
+            let file = IndicatorFile::open(&path)?;
+            runs.push(plan_run(label, file, &windows)?);
+        }
+        let fields = fields_to_compare(request, &runs, emergence.as_ref())?;
         let first = &runs[0].file;
-        let mut fields = select_fields(first, request.fields.as_deref(), thresholds.as_deref())?;
-        if let Some(spec) = &emergence {
-            if !fields.iter().any(|f| f.name == spec.field) {
-                let extra = select_fields(first, Some(&spec.field), thresholds.as_deref())
-                    .map_err(|e| ComparisonError::option("--emergence", e.to_string()))?;
-                fields.extend(extra);
-            }
-        }
-        for other in &runs[1..] {
-            check_comparable(first, &other.file, &fields)?;
-        }
         let regions = load_regions(request.regions.as_deref(), first.grid())?;
         let layers = choose_layers(
             request.layers.as_deref(),
@@ -208,6 +193,33 @@ fn parse_runs(items: &[String]) -> Result<Vec<(String, PathBuf)>> {
         out.push((run.label, run.path));
     }
     Ok(out)
+}
+
+/// The fields: those asked for (or all of the first run), with the emergence field, each
+/// present with the same units and shape in every run.
+fn fields_to_compare(
+    request: &ComparisonRequest,
+    runs: &[PlannedRun],
+    emergence: Option<&EmergenceSpec>,
+) -> Result<Vec<FieldPlan>> {
+    let thresholds = request
+        .omega_thresholds
+        .as_deref()
+        .map(|t| parse_numbers("--omega-thresholds", t))
+        .transpose()?;
+    let first = &runs[0].file;
+    let mut fields = select_fields(first, request.fields.as_deref(), thresholds.as_deref())?;
+    if let Some(spec) = emergence {
+        if !fields.iter().any(|f| f.name == spec.field) {
+            let extra = select_fields(first, Some(&spec.field), thresholds.as_deref())
+                .map_err(|e| ComparisonError::option("--emergence", e.to_string()))?;
+            fields.extend(extra);
+        }
+    }
+    for other in &runs[1..] {
+        check_comparable(first, &other.file, &fields)?;
+    }
+    Ok(fields)
 }
 
 /// Calendar year length \[days\] in a calendar.

@@ -89,15 +89,13 @@ fn is_integer(var: &netcdf::Variable) -> bool {
     matches!(var.vartype(), netcdf::types::NcVariableType::Int(_))
 }
 
-/// Reads a region mask on the comparison's grid.
-fn load_mask(path: &Path, variable: Option<&str>, grid: &HorizontalGrid) -> Result<Regions> {
-    let nc = netcdf::open(path).map_err(|e| {
-        ComparisonError::file(
-            path,
-            format!("cannot be opened as a NetCDF region mask: {e}"),
-        )
-    })?;
-    let candidates: Vec<netcdf::Variable> = match variable {
+/// The mask variable: the one named, or the only 2-D integer variable with `flag_meanings`.
+fn mask_variable<'f>(
+    nc: &'f netcdf::File,
+    path: &Path,
+    variable: Option<&str>,
+) -> Result<netcdf::Variable<'f>> {
+    let mut candidates: Vec<netcdf::Variable> = match variable {
         Some(name) => nc.variable(name).into_iter().collect(),
         None => nc
             .variables()
@@ -106,33 +104,72 @@ fn load_mask(path: &Path, variable: Option<&str>, grid: &HorizontalGrid) -> Resu
             })
             .collect(),
     };
-    let var = match candidates.as_slice() {
-        [one] => one,
-        [] => {
-            return Err(ComparisonError::file(
-                path,
-                match variable {
-                    Some(name) => format!("has no variable '{name}'"),
-                    None => "has no 2-D integer variable with flag_values and flag_meanings; name the mask with FILE:VARIABLE".into(),
-                },
-            ))
-        }
-        _ => {
-            return Err(ComparisonError::file(
-                path,
-                "holds several integer variables with flag_meanings; name the mask with FILE:VARIABLE",
-            ))
-        }
+    match candidates.len() {
+        1 => Ok(candidates.remove(0)),
+        0 => Err(ComparisonError::file(
+            path,
+            match variable {
+                Some(name) => format!("has no variable '{name}'"),
+                None => "has no 2-D integer variable with flag_values and flag_meanings; name the mask with FILE:VARIABLE".into(),
+            },
+        )),
+        _ => Err(ComparisonError::file(
+            path,
+            "holds several integer variables with flag_meanings; name the mask with FILE:VARIABLE",
+        )),
+    }
+}
+
+/// The mask's values per column (row-major, on the grid), fill as `i64::MIN`.
+fn mask_values(
+    var: &netcdf::Variable,
+    grid: &HorizontalGrid,
+) -> std::result::Result<Vec<i64>, String> {
+    let dims: Vec<(String, usize)> = var
+        .dimensions()
+        .iter()
+        .map(|d| (d.name(), d.len()))
+        .collect();
+    let raw: Vec<i64> = var
+        .get_values::<i64, _>(..)
+        .map_err(|e| format!("read failed ({e})"))?;
+    let fill = integer_attribute(var, "_FillValue").and_then(|v| v.first().copied());
+    let on_grid = if dims.len() == 2 && dims[0].1 == grid.rows && dims[1].1 == grid.cols {
+        raw
+    } else if dims.len() == 2 && dims[0].0 == grid.x_dim && dims[1].0 == grid.y_dim {
+        (0..grid.rows * grid.cols)
+            .map(|c| raw[(c % grid.cols) * grid.rows + c / grid.cols])
+            .collect()
+    } else {
+        return Err(format!(
+            "shape {dims:?} does not match the runs' grid of {} rows ({}) x {} columns ({})",
+            grid.rows, grid.y_dim, grid.cols, grid.x_dim
+        ));
     };
+    Ok(on_grid
+        .into_iter()
+        .map(|v| if Some(v) == fill { i64::MIN } else { v })
+        .collect())
+}
+
+/// Reads a region mask on the comparison's grid.
+fn load_mask(path: &Path, variable: Option<&str>, grid: &HorizontalGrid) -> Result<Regions> {
+    let nc = netcdf::open(path).map_err(|e| {
+        ComparisonError::file(
+            path,
+            format!("cannot be opened as a NetCDF region mask: {e}"),
+        )
+    })?;
+    let var = mask_variable(&nc, path, variable)?;
     let name = var.name();
     let bad =
         |message: String| ComparisonError::file(path, format!("variable '{name}': {message}"));
-    if !is_integer(var) {
+    if !is_integer(&var) {
         return Err(bad("expected an integer mask".into()));
     }
-    let values = integer_attribute(var, "flag_values")
+    let values = integer_attribute(&var, "flag_values")
         .ok_or_else(|| bad("needs integer flag_values naming the regions".into()))?;
-    let meanings: Vec<String> = text_attribute(var, "flag_meanings")
+    let meanings: Vec<String> = text_attribute(&var, "flag_meanings")
         .unwrap_or_default()
         .split_whitespace()
         .map(str::to_string)
@@ -144,31 +181,7 @@ fn load_mask(path: &Path, variable: Option<&str>, grid: &HorizontalGrid) -> Resu
             meanings.len()
         )));
     }
-    let dims: Vec<(String, usize)> = var
-        .dimensions()
-        .iter()
-        .map(|d| (d.name(), d.len()))
-        .collect();
-    let raw: Vec<i64> = var
-        .get_values::<i64, _>(..)
-        .map_err(|e| bad(format!("read failed ({e})")))?;
-    let fill = integer_attribute(var, "_FillValue").and_then(|v| v.first().copied());
-    let mask: Vec<i64> = if dims.len() == 2 && dims[0].1 == grid.rows && dims[1].1 == grid.cols {
-        raw
-    } else if dims.len() == 2 && dims[0].0 == grid.x_dim && dims[1].0 == grid.y_dim {
-        (0..grid.rows * grid.cols)
-            .map(|c| raw[(c % grid.cols) * grid.rows + c / grid.cols])
-            .collect()
-    } else {
-        return Err(bad(format!(
-            "shape {:?} does not match the runs' grid of {} rows ({}) x {} columns ({})",
-            dims, grid.rows, grid.y_dim, grid.cols, grid.x_dim
-        )));
-    };
-    let mask = mask
-        .into_iter()
-        .map(|v| if Some(v) == fill { i64::MIN } else { v })
-        .collect();
+    let mask = mask_values(&var, grid).map_err(bad)?;
     let set = RegionSet::from_mask(&values, &meanings).map_err(|e| bad(e.to_string()))?;
     Ok(Regions {
         set,

@@ -86,7 +86,6 @@ fn field_specs(fields: &[FieldPlan]) -> (Vec<FieldSpec>, Vec<FieldSpec>) {
 /// Everything one block of one run accumulates.
 struct Block {
     rows: Range<usize>,
-    columns: usize,
     fields: Vec<FieldWindows>,
     emergence: Option<(usize, EmergenceColumns)>,
     free_surface: Option<FieldWindows>,
@@ -117,6 +116,12 @@ pub fn run_pass(
             )
         })
         .collect();
+    let pass = Pass {
+        plan,
+        run,
+        geometry,
+        membership,
+    };
     let size = rows_per_block(plan, file);
     let count = file.grid().rows.div_ceil(size);
     for (b, rows) in blocks(file.grid().rows, size).enumerate() {
@@ -130,16 +135,7 @@ pub fn run_pass(
             ));
         }
         let mut block = new_block(plan, run, index, output, rows)?;
-        stream_block(
-            plan,
-            run,
-            geometry,
-            membership,
-            &wet,
-            &mut block,
-            &mut regional,
-            progress,
-        )?;
+        pass.stream_block(&wet, &mut block, &mut regional, progress)?;
         write_block(plan, run, output, &block)?;
     }
     Ok(regional.iter().map(RegionStatistics::rows).collect())
@@ -189,7 +185,6 @@ fn new_block(
         .then(|| FieldWindows::new(columns, &plan.windows, &plan.statistics[..1]));
     Ok(Block {
         rows,
-        columns,
         fields,
         emergence,
         free_surface,
@@ -248,98 +243,36 @@ fn take_year(
     Ok(())
 }
 
-#[allow(clippy::too_many_arguments)]
-fn stream_block(
+/// One step's values of every field to the block's accumulators (and the free surface).
+fn feed_fields(
     plan: &ComparisonPlan,
     run: &PlannedRun,
-    geometry: &Geometry,
-    membership: &Membership,
-    wet: &[bool],
     block: &mut Block,
-    regional: &mut [RegionStatistics],
-    progress: &mut dyn FnMut(&str),
+    step: usize,
+    values: &[Vec<f64>],
 ) -> Result<()> {
-    let file = &run.file;
     let time = time_of(run)?;
-    let rows = block.rows.clone();
-    let shape = SlabShape {
-        levels: file.levels(),
-        rows: rows.len(),
-        cols: file.grid().cols,
-    };
-    let all_columns = file.grid().columns();
-    let first = rows.start * shape.cols;
-    let block_wet: Vec<bool> = (0..shape.levels)
-        .flat_map(|k| (0..block.columns).map(move |c| k * all_columns + first + c))
-        .map(|i| wet[i])
-        .collect();
-    let varies = geometry.varies_in_time(file);
-    let mut thickness = geometry.thickness(file, 0, rows.clone())?;
-    let mut depths = file.centre_depths(0, rows.clone())?;
-    let mut cells = ColumnCells::new();
-    let report_every = (file.steps() / 10).max(1);
-    for (step, stats) in regional.iter_mut().enumerate() {
-        if varies && step > 0 {
-            thickness = geometry.thickness(file, step, rows.clone())?;
-            depths = file.centre_depths(step, rows.clone())?;
-        }
-        let (year, length) = (time.years[step], time.lengths_days[step]);
-        let values: Vec<Vec<f64>> = plan
-            .fields
-            .iter()
-            .map(|f| file.read_rows(&f.name, step, rows.clone()))
-            .collect::<std::result::Result<_, _>>()?;
-        for (f, v) in values.iter().enumerate() {
-            if let Some(finished) = block.fields[f].add_step(year, v, length)? {
-                take_year(plan, run, block, f, &finished)?;
-            }
-        }
-        if let Some(eta) = &mut block.free_surface {
-            let p = file
-                .parametric_columns(step, rows.clone())?
-                .map(|p| p.free_surface_m)
-                .unwrap_or_default();
-            if let Some(finished) = eta.add_step(year, &p, length)? {
-                eta.add_year(&finished, &plan.windows, run)?;
-            }
-        }
-        let (cell_values, column_values): (Vec<&[f64]>, Vec<&[f64]>) = {
-            let cell: Vec<&[f64]> = plan
-                .fields
-                .iter()
-                .zip(&values)
-                .filter(|(f, _)| f.has_levels)
-                .map(|(_, v)| v.as_slice())
-                .collect();
-            let column: Vec<&[f64]> = plan
-                .fields
-                .iter()
-                .zip(&values)
-                .filter(|(f, _)| !f.has_levels)
-                .map(|(_, v)| v.as_slice())
-                .collect();
-            (cell, column)
-        };
-        let inputs = ColumnInputs {
-            shape,
-            first,
-            areas: &geometry.areas_m2,
-            depths: &depths,
-            thickness: &thickness,
-            wet: &block_wet,
-            cell_values: &cell_values,
-            column_values: &column_values,
-        };
-        add_columns(stats, membership, &inputs, &mut cells)?;
-        if (step + 1) % report_every == 0 || step + 1 == file.steps() {
-            progress(&format!(
-                "run {}: {} of {} time steps",
-                run.label,
-                step + 1,
-                file.steps()
-            ));
+    let (year, length) = (time.years[step], time.lengths_days[step]);
+    for (f, v) in values.iter().enumerate() {
+        if let Some(finished) = block.fields[f].add_step(year, v, length)? {
+            take_year(plan, run, block, f, &finished)?;
         }
     }
+    if let Some(eta) = &mut block.free_surface {
+        let surface = run
+            .file
+            .parametric_columns(step, block.rows.clone())?
+            .map(|p| p.free_surface_m)
+            .unwrap_or_default();
+        if let Some(finished) = eta.add_step(year, &surface, length)? {
+            eta.add_year(&finished, &plan.windows, run)?;
+        }
+    }
+    Ok(())
+}
+
+/// The last year of every accumulator of a block.
+fn finish_block(plan: &ComparisonPlan, run: &PlannedRun, block: &mut Block) -> Result<()> {
     for f in 0..block.fields.len() {
         if let Some(finished) = block.fields[f].finish() {
             take_year(plan, run, block, f, &finished)?;
@@ -351,6 +284,89 @@ fn stream_block(
         }
     }
     Ok(())
+}
+
+/// The wet cells of a block (levels × block columns), from the whole grid's.
+fn block_wet(wet: &[bool], shape: SlabShape, all_columns: usize, first: usize) -> Vec<bool> {
+    (0..shape.levels)
+        .flat_map(|k| (0..shape.columns()).map(move |c| wet[k * all_columns + first + c]))
+        .collect()
+}
+
+/// What a pass over a run works with.
+struct Pass<'a> {
+    plan: &'a ComparisonPlan,
+    run: &'a PlannedRun,
+    geometry: &'a Geometry,
+    membership: &'a Membership,
+}
+
+impl Pass<'_> {
+    /// Streams every step of a block: reads each field once, feeds the accumulators and the
+    /// step's regional statistics.
+    fn stream_block(
+        &self,
+        wet: &[bool],
+        block: &mut Block,
+        regional: &mut [RegionStatistics],
+        progress: &mut dyn FnMut(&str),
+    ) -> Result<()> {
+        let (plan, file) = (self.plan, &self.run.file);
+        let rows = block.rows.clone();
+        let shape = SlabShape {
+            levels: file.levels(),
+            rows: rows.len(),
+            cols: file.grid().cols,
+        };
+        let first = rows.start * shape.cols;
+        let wet = block_wet(wet, shape, file.grid().columns(), first);
+        let varies = self.geometry.varies_in_time(file);
+        let mut thickness = self.geometry.thickness(file, 0, rows.clone())?;
+        let mut depths = file.centre_depths(0, rows.clone())?;
+        let mut cells = ColumnCells::new();
+        let report_every = (file.steps() / 10).max(1);
+        for (step, stats) in regional.iter_mut().enumerate() {
+            if varies && step > 0 {
+                thickness = self.geometry.thickness(file, step, rows.clone())?;
+                depths = file.centre_depths(step, rows.clone())?;
+            }
+            let values: Vec<Vec<f64>> = plan
+                .fields
+                .iter()
+                .map(|f| file.read_rows(&f.name, step, rows.clone()))
+                .collect::<std::result::Result<_, _>>()?;
+            feed_fields(plan, self.run, block, step, &values)?;
+            let of_kind = |levels: bool| -> Vec<&[f64]> {
+                plan.fields
+                    .iter()
+                    .zip(&values)
+                    .filter(|(f, _)| f.has_levels == levels)
+                    .map(|(_, v)| v.as_slice())
+                    .collect()
+            };
+            let (cell_values, column_values) = (of_kind(true), of_kind(false));
+            let inputs = ColumnInputs {
+                shape,
+                first,
+                areas: &self.geometry.areas_m2,
+                depths: &depths,
+                thickness: &thickness,
+                wet: &wet,
+                cell_values: &cell_values,
+                column_values: &column_values,
+            };
+            add_columns(stats, self.membership, &inputs, &mut cells)?;
+            if (step + 1) % report_every == 0 || step + 1 == file.steps() {
+                progress(&format!(
+                    "run {}: {} of {} time steps",
+                    self.run.label,
+                    step + 1,
+                    file.steps()
+                ));
+            }
+        }
+        finish_block(plan, self.run, block)
+    }
 }
 
 /// One step of a block, as the regional statistics need it.

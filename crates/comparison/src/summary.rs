@@ -6,6 +6,7 @@ use crate::options::Statistic;
 use crate::plan::ComparisonPlan;
 use crate::table::TableRow;
 use acidscape_analysis::regions::LayerKind;
+use acidscape_analysis::windows::TimeWindow;
 use std::fmt::Write;
 
 /// One quantity of the summary: what to look up in the table and how to label it.
@@ -53,7 +54,7 @@ fn lines(plan: &ComparisonPlan) -> Vec<Line> {
         if field.has_levels && short == "omega_aragonite" {
             for layer in &volume_layers {
                 out.push(Line {
-                    label: format!("share of {layer} volume with {short} < 1"),
+                    label: format!("{short} < 1, share of {layer} volume"),
                     quantity: field.name.clone(),
                     layer: layer.clone(),
                     statistic: "fraction_below",
@@ -101,11 +102,84 @@ fn shown(value: Option<f64>) -> String {
     }
 }
 
+/// The two windows the summary sets side by side: the reference and the last other one.
+struct Columns<'a> {
+    reference: &'a TimeWindow,
+    late: &'a TimeWindow,
+}
+
+/// Width of the quantity column.
+const LABEL: usize = 50;
+
+/// One region's block of the summary; returns the region's change of surface Ω aragonite per
+/// run, for the closing remark.
+fn region_section(
+    out: &mut String,
+    plan: &ComparisonPlan,
+    table: &[TableRow],
+    region: &str,
+    columns: &Columns,
+) -> Vec<(f64, String)> {
+    let (reference, late) = (columns.reference, columns.late);
+    let _ = writeln!(out, "\n{region}");
+    let _ = writeln!(
+        out,
+        "  {:<LABEL$} {:<12} {:>11} {:>11} {:>9}",
+        "quantity", "run", reference.name, late.name, "change"
+    );
+    let mut changes = Vec::new();
+    for line in lines(plan) {
+        for (i, run) in plan.runs.iter().map(|r| r.label.as_str()).enumerate() {
+            let a = find(table, run, region, &line, &reference.name).and_then(|r| r.value);
+            let b = find(table, run, region, &line, &late.name).and_then(|r| r.value);
+            let change = a.zip(b).map(|(a, b)| b - a);
+            let label = if i == 0 { line.label.as_str() } else { "" };
+            let _ = writeln!(
+                out,
+                "  {label:<LABEL$} {run:<12} {:>11} {:>11} {:>9}",
+                shown(a),
+                shown(b),
+                shown(change)
+            );
+            if line.statistic == "mean" && line.quantity == "omega_aragonite" {
+                if let Some(c) = change {
+                    changes.push((
+                        c,
+                        format!("{region}, run {run}: {} -> {}", shown(a), shown(b)),
+                    ));
+                }
+            }
+        }
+    }
+    for run in &plan.runs {
+        let emerged = table
+            .iter()
+            .find(|r| r.run == run.label && r.region == region && r.statistic == "emergence_year");
+        if let Some(r) = emerged {
+            let year = r.year.map_or_else(|| "-".to_string(), |y| y.to_string());
+            let _ = writeln!(
+                out,
+                "  {:<LABEL$} {:<12} {year:>11}  ({})",
+                "year of emergence", run.label, r.note
+            );
+        }
+    }
+    changes
+}
+
 /// The summary text.
 pub fn text(plan: &ComparisonPlan, table: &[TableRow]) -> String {
     let mut out = String::new();
     let reference = &plan.windows[plan.reference];
-    let late = plan.windows.iter().rev().find(|w| w.name != reference.name);
+    let columns = Columns {
+        reference,
+        late: plan
+            .windows
+            .iter()
+            .rev()
+            .find(|w| w.name != reference.name)
+            .unwrap_or(reference),
+    };
     let runs: Vec<&str> = plan.runs.iter().map(|r| r.label.as_str()).collect();
     let _ = writeln!(
         out,
@@ -114,80 +188,41 @@ pub fn text(plan: &ComparisonPlan, table: &[TableRow]) -> String {
         runs[0],
         crate::output::windows_words(plan)
     );
-    let (late_name, late_words) = match late {
-        Some(w) => (
-            w.name.clone(),
-            format!("{} {}-{}", w.name, w.first_year, w.last_year),
-        ),
-        None => (reference.name.clone(), "-".to_string()),
-    };
-    let header = format!(
-        "  {:<46} {:<12} {:>11} {:>11} {:>9}",
-        "quantity",
-        "run",
-        format!("{} ", reference.name),
-        late_name,
-        "change"
-    );
-    let lines = lines(plan);
-    let mut largest: Option<(f64, String)> = None;
+    let mut changes = Vec::new();
     for region in plan.regions.set.names() {
-        let _ = writeln!(
-            out,
-            "\n{region}  (windows: {} {}-{} and {late_words})",
-            reference.name, reference.first_year, reference.last_year
-        );
-        let _ = writeln!(out, "{header}");
-        for line in &lines {
-            for (i, run) in runs.iter().enumerate() {
-                let a = find(table, run, &region, line, &reference.name).and_then(|r| r.value);
-                let b = find(table, run, &region, line, &late_name).and_then(|r| r.value);
-                let change = a.zip(b).map(|(a, b)| b - a);
-                let label = if i == 0 { line.label.as_str() } else { "" };
-                let _ = writeln!(
-                    out,
-                    "  {label:<46} {run:<12} {:>11} {:>11} {:>9}",
-                    shown(a),
-                    shown(b),
-                    shown(change)
-                );
-                if line.statistic == "mean" && line.quantity == "omega_aragonite" {
-                    if let Some(c) = change.filter(|c| largest.as_ref().is_none_or(|(l, _)| c < l))
-                    {
-                        largest = Some((
-                            c,
-                            format!("{region}, run {run}: {} -> {}", shown(a), shown(b)),
-                        ));
-                    }
-                }
-            }
-        }
-        for run in &runs {
-            let emerged = table
-                .iter()
-                .find(|r| r.run == *run && r.region == region && r.statistic == "emergence_year");
-            if let Some(r) = emerged {
-                let year = r.year.map_or_else(|| "-".to_string(), |y| y.to_string());
-                let _ = writeln!(
-                    out,
-                    "  {:<46} {run:<12} {year:>11}  ({})",
-                    "year of emergence", r.note
-                );
-            }
-        }
+        changes.extend(region_section(&mut out, plan, table, &region, &columns));
     }
-    if let Some((_, where_)) = largest {
+    let largest_fall = changes
+        .into_iter()
+        .filter(|(c, _)| *c < 0.0)
+        .min_by(|a, b| a.0.total_cmp(&b.0));
+    if let Some((_, where_)) = largest_fall {
         let _ = writeln!(
             out,
-            "\nLargest fall of surface omega_aragonite ({} window against {}): {where_}.",
-            late_name, reference.name
+            "\nLargest fall of the surface omega_aragonite mean ({} against {}): {where_}.",
+            columns.late.name, reference.name
         );
     }
     if let Some(spec) = &plan.emergence {
         let _ = writeln!(out, "Emergence rule: {}.", spec.text);
     }
+    let differences = if plan.runs.len() > 1 {
+        format!(
+            ", differences between runs ({})",
+            example(plan, |f, r| names::difference(f, r, runs[0]))
+        )
+    } else {
+        String::new()
+    };
     let _ = writeln!(out, "\nWhere to look:");
-    let _ = writeln!(out, "  {}: per-cell window means per run (e.g. {}), changes since {} ({}), differences between runs{}", plan.output.display(), example(plan, |f, r| names::statistic(f, r, Statistic::Mean)), reference.name, example(plan, names::change), if plan.runs.len() > 1 { format!(" ({})", example(plan, |f, r| names::difference(f, r, runs[0]))) } else { String::new() });
+    let _ = writeln!(
+        out,
+        "  {}: maps of window means per run (e.g. {}), changes since {} ({}){differences}",
+        plan.output.display(),
+        example(plan, |f, r| names::statistic(f, r, Statistic::Mean)),
+        reference.name,
+        example(plan, names::change),
+    );
     let _ = writeln!(
         out,
         "  {}: regional means and fractions per time step and window (one row per quantity)",

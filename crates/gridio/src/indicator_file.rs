@@ -20,14 +20,14 @@
 mod copy;
 mod layout;
 mod read;
+mod time;
 
 pub use copy::CopiedCoordinates;
 #[cfg(test)]
 mod tests;
 
-pub use layout::{
-    GridLayout, HorizontalGrid, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate,
-};
+pub use layout::{GridLayout, HorizontalGrid, ParametricColumns, VerticalAxis, VerticalCoordinate};
+pub use time::TimeSteps;
 
 use crate::axes::{classify_dims, Axis};
 use crate::catalog::{attr_numbers, attr_text, dim_names, InputFile, MaskRule};
@@ -138,7 +138,7 @@ impl IndicatorFile {
                 message: "no variable on a latitude-longitude grid; expected indicator fields such as ph or omega_aragonite".to_string(),
             })?
             .clone();
-        let time = layout::time_steps(file, &reference)?;
+        let time = time::time_steps(file, &reference)?;
         let steps = time.as_ref().map_or(1, TimeSteps::steps);
         let grid = layout::horizontal(&files, &reference)?;
         let (vertical, levels_internal) = layout::vertical(&files, &reference, steps, &grid)?;
