@@ -8,7 +8,9 @@ use acidscape_analysis::geometry::{
     curvilinear_cell_areas, rectilinear_cell_areas, thicknesses_from_bounds,
     thicknesses_from_interfaces, Positive, EARTH_MEAN_RADIUS_M,
 };
-use acidscape_gridio::{GridLayout, IndicatorFile, VerticalCoordinate, CELL_THICKNESS};
+use acidscape_gridio::{
+    bounds_between, GridLayout, IndicatorFile, VerticalCoordinate, CELL_THICKNESS,
+};
 use std::ops::Range;
 
 /// How the thickness of each cell is found.
@@ -39,32 +41,6 @@ pub struct Geometry {
     pub description: String,
 }
 
-/// Bounds half-way between neighbouring centres, the outer ones mirrored (common practice
-/// when a grid gives no bounds).
-fn midpoint_bounds(centres: &[f64]) -> Vec<[f64; 2]> {
-    let n = centres.len();
-    let edge = |i: usize, j: usize| 0.5 * (centres[i] + centres[j]);
-    (0..n)
-        .map(|i| {
-            let low = if i > 0 {
-                edge(i - 1, i)
-            } else if n > 1 {
-                centres[0] - 0.5 * (centres[1] - centres[0])
-            } else {
-                centres[0] - 0.5
-            };
-            let high = if i + 1 < n {
-                edge(i, i + 1)
-            } else if n > 1 {
-                centres[i] + 0.5 * (centres[i] - centres[i - 1])
-            } else {
-                centres[0] + 0.5
-            };
-            [low, high]
-        })
-        .collect()
-}
-
 fn geometry_error(file: &IndicatorFile, e: impl std::fmt::Display) -> ComparisonError {
     ComparisonError::file(file.path(), format!("cell geometry: {e}"))
 }
@@ -84,8 +60,8 @@ fn areas(file: &IndicatorFile) -> Result<(Vec<f64>, String)> {
             lat_bounds,
             lon_bounds,
         } => {
-            let lat_b = lat_bounds.clone().unwrap_or_else(|| midpoint_bounds(lat));
-            let lon_b = lon_bounds.clone().unwrap_or_else(|| midpoint_bounds(lon));
+            let lat_b = lat_bounds.clone().unwrap_or_else(|| bounds_between(lat));
+            let lon_b = lon_bounds.clone().unwrap_or_else(|| bounds_between(lon));
             let lat_b: Vec<[f64; 2]> = lat_b
                 .iter()
                 .map(|b| b.map(|v| v.clamp(-90.0, 90.0)))
@@ -229,7 +205,7 @@ fn fallback_thickness(file: &IndicatorFile) -> Result<(Thickness, String)> {
             let (bounds, from) = match bounds_m {
                 Some(b) => (b.clone(), "the vertical bounds"),
                 None => (
-                    midpoint_bounds(depth_m)
+                    bounds_between(depth_m)
                         .into_iter()
                         .map(|[a, b]| [a.max(0.0), b])
                         .collect(),
@@ -262,19 +238,5 @@ fn fallback_thickness(file: &IndicatorFile) -> Result<(Thickness, String)> {
             file,
             "levels given as pressures: volume weights need the output's cell_thickness",
         )),
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn midpoints_between_centres() {
-        assert_eq!(
-            midpoint_bounds(&[5.0, 15.0, 35.0]),
-            vec![[0.0, 10.0], [10.0, 25.0], [25.0, 45.0]]
-        );
-        assert_eq!(midpoint_bounds(&[3.0]), vec![[2.5, 3.5]]);
     }
 }

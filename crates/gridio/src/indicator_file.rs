@@ -27,7 +27,7 @@ pub use copy::CopiedCoordinates;
 mod tests;
 
 pub use layout::{GridLayout, HorizontalGrid, ParametricColumns, VerticalAxis, VerticalCoordinate};
-pub use time::TimeSteps;
+pub use time::{bounds_between, TimeSteps};
 
 use crate::axes::{classify_dims, Axis};
 use crate::catalog::{attr_numbers, attr_text, dim_names, InputFile, MaskRule};

@@ -35,9 +35,9 @@ mod vertical;
 pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
 pub use indicator_file::{
-    CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid, IndicatorFile,
-    ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate, CELL_AREA, CELL_THICKNESS,
-    SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
+    bounds_between, CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid,
+    IndicatorFile, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate, CELL_AREA,
+    CELL_THICKNESS, SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
 };
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;

@@ -59,6 +59,17 @@ fn step_bounds(values: &[f64], file_bounds: Option<&[f64]>) -> Vec<[f64; 2]> {
     if let Some(b) = file_bounds {
         return b.chunks_exact(2).map(|p| [p[0], p[1]]).collect();
     }
+    bounds_between(values)
+}
+
+/// Bounds half-way between neighbouring values, the outer ones mirrored (±0.5 for a single
+/// value): what a coordinate without a `bounds` variable is taken to mean (common practice).
+///
+/// ```
+/// use acidscape_gridio::bounds_between;
+/// assert_eq!(bounds_between(&[5.0, 15.0, 35.0]), vec![[0.0, 10.0], [10.0, 25.0], [25.0, 45.0]]);
+/// ```
+pub fn bounds_between(values: &[f64]) -> Vec<[f64; 2]> {
     let n = values.len();
     (0..n)
         .map(|i| {
