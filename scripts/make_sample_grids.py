@@ -862,7 +862,60 @@ def write_century(job):
                         write(var, np.where(wet, cmip_values(name, water), np.nan).astype("f4"), local)
         written += write_cmip_fixed(folder, pathway, lon, lat, geo, job.history, "century")
         job.report("century", pathway, len(CMIP_VARIABLES))
+    written += write_region_mask(job.out / "century", lon, lat, geo, job.history)
     return written
+
+
+REGION_CLASSES = ("northern_shelf", "aske_river_plume_coast", "skerra_island_shelf", "open_basin")
+
+
+def region_classes(lon2, lat2, geo):
+    """Region of each column from the invented bathymetry and geography, flag values 1 to 4 in
+    this order: the shelf (<= 200 m) of the northern coast, the water within 220 km of the
+    Aske River mouth shallower than 1000 m, the shelf around Skerra Island, the basin deeper
+    than 1000 m; the first rule that holds decides; columns no rule holds are in no region."""
+    xn, yn = domain_fraction(lon2, lat2)
+    island_r = np.hypot((xn - ISLAND_CENTRE[0]) / ISLAND_RADII[0], (yn - ISLAND_CENTRE[1]) / ISLAND_RADII[1])
+    depth = np.where(geo.land, np.inf, geo.bottom_depth)
+    classes = np.zeros(lon2.shape, dtype="i1")
+    rules = [
+        (depth <= 200.0) & (yn >= 0.65),
+        (geo.river_distance_km <= 220.0) & (depth <= 1000.0),
+        (depth <= 200.0) & (island_r <= 3.0),
+        np.isfinite(depth) & (depth > 1000.0),
+    ]
+    for value, rule in reversed(list(enumerate(rules, start=1))):
+        classes = np.where(rule & ~geo.land, value, classes)
+    return classes
+
+
+def write_region_mask(folder, lon, lat, geo, history):
+    """An integer region mask on the run's grid (CF flag_values/flag_meanings), for
+    `acidscape compare --regions FILE`."""
+    path = folder / "varnholm-regions-mask.nc"
+    path.parent.mkdir(parents=True, exist_ok=True)
+    lon2, lat2 = np.meshgrid(lon, lat)
+    with netCDF4.Dataset(path, "w", format="NETCDF4") as ds:
+        ds.setncatts({
+            "Conventions": "CF-1.10",
+            "title": "Varnholm Gulf synthetic regions (integer mask)",
+            "comment": SYNTHETIC_COMMENT,
+            "institution": "acidscape sample data (synthetic)",
+            "source": "scripts/make_sample_grids.py",
+            "history": history,
+            "scenario": SCENARIO,
+        })
+        add_rectilinear_horizontal(ds, lon, lat)
+        var = ds.createVariable("region", "i1", ("lat", "lon"), zlib=True, complevel=6, fill_value=np.int8(-1))
+        var.setncatts({
+            "long_name": "region of the Varnholm Gulf (synthetic)",
+            "flag_values": np.arange(1, len(REGION_CLASSES) + 1, dtype="i1"),
+            "flag_meanings": " ".join(REGION_CLASSES),
+            "comment": " ".join(region_classes.__doc__.split()),
+        })
+        classes = region_classes(lon2, lat2, geo)
+        var[:] = np.ma.masked_equal(classes, 0)
+    return [path]
 
 
 WRITERS = {
