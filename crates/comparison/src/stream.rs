@@ -27,7 +27,10 @@ pub type StepRows = Vec<Vec<RegionRow>>;
 /// Wet cells (levels × rows × cols): where the quality flag is not its fill value, or, in
 /// outputs without one, where any compared 3-D field has a value at the first step.
 fn wet_cells(file: &IndicatorFile, fields: &[FieldPlan]) -> Result<Vec<bool>> {
-    if file.has(QUALITY_FLAG) && file.variable(QUALITY_FLAG)?.has_levels == (file.levels() > 1) {
+    let flag_per_cell = file
+        .variable(QUALITY_FLAG)
+        .is_ok_and(|q| q.has_levels || file.levels() == 1);
+    if flag_per_cell {
         return Ok(file
             .read_step(QUALITY_FLAG, 0)?
             .iter()

@@ -288,3 +288,58 @@ fn a_region_mask_in_a_netcdf_file() {
     let open = pick(&summary, "a/open_sea//2015/marker/mean").unwrap();
     assert_eq!((west, open), (0.5, (2.0 + 11.0 + 12.0) / 3.0));
 }
+
+#[test]
+fn extra_horizons_add_their_thresholds_and_statuses_are_not_compared() {
+    // compute writes horizon_depth_aragonite_1p5 for an extra threshold Ω = 1.5, with status
+    // flags: fractions below 1 and 1.5 are reported; the flags are no fields.
+    let (dir, run) = scratch();
+    let mut s = Synthetic::new(200.0, 30.0, 2, 1, 2, Time::annual(2015, 1))
+        .with(Field::cells("omega_aragonite", "1", |_, _, _, i| {
+            0.75 + 0.5 * i as f64
+        }))
+        .with(Field::columns("horizon_depth_aragonite", "m", |_, _, _| {
+            500.0
+        }))
+        .with(Field::columns(
+            "horizon_depth_aragonite_1p5",
+            "m",
+            |_, _, _| 250.0,
+        ));
+    s.status_flags = vec![
+        "horizon_status_aragonite".into(),
+        "horizon_status_aragonite_1p5".into(),
+    ];
+    s.cell_area = Some(vec![1.0, 3.0]);
+    s.write(&run);
+    let summary = compare(&request(dir.path(), &[("a", &run)], &["all=2015"]));
+    // Ω 0.75 (area 1) and 1.25 (area 3): 1/4 of the area below 1, all of it below 1.5.
+    assert_eq!(
+        pick(
+            &summary,
+            "a/whole domain/surface/2015/omega_aragonite/fraction_below/1"
+        ),
+        Some(0.25)
+    );
+    assert_eq!(
+        pick(
+            &summary,
+            "a/whole domain/surface/2015/omega_aragonite/fraction_below/1.5"
+        ),
+        Some(1.0)
+    );
+    assert_eq!(
+        pick(
+            &summary,
+            "a/whole domain//all/horizon_depth_aragonite_1p5/mean"
+        ),
+        Some(250.0)
+    );
+    let file = netcdf::open(&summary.output).unwrap();
+    assert!(
+        file.variable("horizon_shoaling_aragonite_1p5_a").is_none(),
+        "one window: no change"
+    );
+    assert!(file.variable("horizon_depth_aragonite_1p5_a").is_some());
+    assert!(file.variable("horizon_status_aragonite_a").is_none());
+}

@@ -167,6 +167,8 @@ pub struct Synthetic {
     /// `cell_thickness` per level (static), if written.
     pub cell_thickness: Option<Vec<f64>>,
     pub quality_flag: bool,
+    /// 2-D status flag variables (time, y, x) to write, all 0 (e.g. horizon statuses).
+    pub status_flags: Vec<String>,
 }
 
 impl Synthetic {
@@ -199,6 +201,7 @@ impl Synthetic {
             cell_area: None,
             cell_thickness: None,
             quality_flag: true,
+            status_flags: Vec::new(),
         }
     }
 
@@ -306,6 +309,13 @@ impl Synthetic {
             var.put_attribute("flag_masks", vec![1i16, 2]).unwrap();
             var.put_attribute("flag_meanings", "a b").unwrap();
             var.put_values(&flags, ..).unwrap();
+        }
+        for name in &self.status_flags {
+            let mut var = f.add_variable::<i8>(name, &dims2).unwrap();
+            var.put_attribute("flag_values", vec![0i8, 1]).unwrap();
+            var.put_attribute("flag_meanings", "one other").unwrap();
+            var.put_values(&vec![0i8; self.time.steps() * rows * cols], ..)
+                .unwrap();
         }
         if let Some(area) = &self.cell_area {
             coordinate(
