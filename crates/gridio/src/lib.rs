@@ -17,6 +17,7 @@ mod conversion;
 mod discovery;
 mod error;
 mod grid;
+mod indicator_file;
 mod integrity;
 mod mapping;
 mod native;
@@ -33,6 +34,11 @@ mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
 pub use error::{GridError, Result};
+pub use indicator_file::{
+    bounds_between, CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid,
+    IndicatorFile, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate, CELL_AREA,
+    CELL_THICKNESS, SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
+};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
 

@@ -3,6 +3,18 @@
 
 use std::path::{Path, PathBuf};
 
+/// Held by each test that writes NetCDF files in this process or spawns acidscape: a child
+/// inherits (HDF5 does not open files close-on-exec) a descriptor, with its HDF5 file lock, of
+/// a file another test has open, which that test's own child then cannot open.
+static ONE_AT_A_TIME: std::sync::Mutex<()> = std::sync::Mutex::new(());
+
+/// Runs the calling test alone among those that take this guard.
+pub fn one_at_a_time() -> std::sync::MutexGuard<'static, ()> {
+    ONE_AT_A_TIME
+        .lock()
+        .unwrap_or_else(std::sync::PoisonError::into_inner)
+}
+
 /// The repository's root.
 pub fn repository() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
