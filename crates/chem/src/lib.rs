@@ -25,16 +25,25 @@
 //!   bisection fallback; DIC+pH, TA+pH and DIC+pCO2 in closed form.
 //! - Revelle factor: analytical ∂ln pCO2/∂ln DIC at constant alkalinity.
 
+// Lets the synthetic-cell helpers shared with the benches and tests name this crate in unit tests.
+#[cfg(test)]
+extern crate self as acidscape_chem;
+
+mod batch;
 mod choice;
 pub mod constants;
 mod error;
+mod lanes;
+mod real;
 mod solver;
 mod speciation;
 mod validity;
 
+pub use batch::{solve_cells, CellInputs, CellOutputs, CellStatus, LengthMismatch};
 pub use choice::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet, UnknownKey, FIXED_SOURCES};
 pub use constants::{equilibrium_constants, EquilibriumConstants};
 pub use error::ChemError;
+pub use real::Real;
 pub use speciation::solve;
 pub use validity::Validity;
 

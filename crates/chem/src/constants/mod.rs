@@ -16,59 +16,63 @@ pub mod weiss1974;
 
 use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
 use crate::error::{check_range, ChemError};
-use crate::validity::Validity;
+use crate::real::Real;
 use crate::Conditions;
 use pressure::PressureTerms;
 
-/// Temperature and salinity terms shared by many constants, each evaluated once per sample.
+/// Temperature and salinity terms shared by many constants, each evaluated once per sample
+/// (`T = f64`) or once per lane of cells in the batch kernel.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct SampleTerms {
+pub struct SampleTerms<T: Real = f64> {
     /// Temperature \[°C\].
-    pub celsius: f64,
+    pub celsius: T,
     /// Temperature \[K\].
-    pub kelvin: f64,
+    pub kelvin: T,
     /// 1 / T \[K-1\].
-    pub inv_kelvin: f64,
+    pub inv_kelvin: T,
     /// ln(T / K).
-    pub ln_kelvin: f64,
+    pub ln_kelvin: T,
     /// Practical salinity.
-    pub salinity: f64,
+    pub salinity: T,
     /// √S.
-    pub sqrt_salinity: f64,
+    pub sqrt_salinity: T,
     /// Ionic strength \[mol kg-1 H2O\].
-    pub ionic_strength: f64,
+    pub ionic_strength: T,
     /// √I.
-    pub sqrt_ionic_strength: f64,
+    pub sqrt_ionic_strength: T,
     /// 1 - 0.001005 S: kg of water per kg of seawater, converting mol kg-1 of water to mol kg-1
     /// of seawater (Dickson 1990). Kept as a factor: its logarithm is only needed for printed ln K.
-    pub water_fraction: f64,
+    pub water_fraction: T,
 }
 
-impl SampleTerms {
+impl<T: Real> SampleTerms<T> {
     /// Terms at in-situ temperature \[°C\] and practical salinity.
-    pub fn new(temperature_c: f64, salinity: f64) -> Self {
+    #[inline(always)]
+    pub fn new(temperature_c: T, salinity: T) -> Self {
         let kelvin = temperature_c + 273.15;
         let ionic_strength = ionic_strength(salinity);
         Self {
             celsius: temperature_c,
             kelvin,
-            inv_kelvin: 1.0 / kelvin,
+            inv_kelvin: T::from(1.0) / kelvin,
             ln_kelvin: kelvin.ln(),
             salinity,
             sqrt_salinity: salinity.sqrt(),
             ionic_strength,
             sqrt_ionic_strength: ionic_strength.sqrt(),
-            water_fraction: 1.0 - 0.001005 * salinity,
+            water_fraction: T::from(1.0) - salinity * 0.001005,
         }
     }
 
     /// ln(1 - 0.001005 S), the water-fraction term of the ln K written per kg of seawater.
-    pub fn ln_water_fraction(&self) -> f64 {
+    #[inline(always)]
+    pub fn ln_water_fraction(&self) -> T {
         self.water_fraction.ln()
     }
 
     /// log10(T / K), from the stored ln T.
-    pub fn log10_kelvin(&self) -> f64 {
+    #[inline(always)]
+    pub fn log10_kelvin(&self) -> T {
         self.ln_kelvin * std::f64::consts::LOG10_E
     }
 }
@@ -79,58 +83,60 @@ impl SampleTerms {
 /// // Hand evaluation at S = 35: 19.924·35 / (1000 - 35.175) = 697.34 / 964.825 = 0.722763
 /// assert!((acidscape_chem::constants::ionic_strength(35.0) - 0.722763).abs() < 1e-6);
 /// ```
-pub fn ionic_strength(salinity: f64) -> f64 {
-    19.924 * salinity / (1000.0 - 1.005 * salinity)
+#[inline(always)]
+pub fn ionic_strength<T: Real>(salinity: T) -> T {
+    salinity * 19.924 / (T::from(1000.0) - salinity * 1.005)
 }
 
-/// All constants at the sample's in-situ T, S and P. Acid constants are on the total scale
-/// (mol kg-1 of seawater) except where named free; totals are mol kg-1.
+/// All constants at the sample's in-situ T, S and P (`T = f64`; a lane of cells in the batch
+/// kernel). Acid constants are on the total scale (mol kg-1 of seawater) except where named free;
+/// totals are mol kg-1.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct EquilibriumConstants {
+pub struct EquilibriumConstants<T: Real = f64> {
     /// CO2 solubility K0 \[mol kg-1 atm-1\] at in-situ temperature and 1 atm (not pressure-corrected).
-    pub k0: f64,
+    pub k0: T,
     /// fCO2 / pCO2 at in-situ temperature and 1 atm total pressure.
-    pub fugacity_factor: f64,
+    pub fugacity_factor: T,
     /// K1 of carbonic acid (total scale).
-    pub k1: f64,
+    pub k1: T,
     /// K2 of carbonic acid (total scale).
-    pub k2: f64,
+    pub k2: T,
     /// KB of boric acid (total scale).
-    pub kb: f64,
+    pub kb: T,
     /// KW of water (total scale, mol² kg-2).
-    pub kw: f64,
+    pub kw: T,
     /// KS of bisulfate (free scale).
-    pub ks_free: f64,
+    pub ks_free: T,
     /// KF of hydrogen fluoride (total scale).
-    pub kf: f64,
+    pub kf: T,
     /// KF of hydrogen fluoride (free scale).
-    pub kf_free: f64,
+    pub kf_free: T,
     /// K1P of phosphoric acid (total scale).
-    pub k1p: f64,
+    pub k1p: T,
     /// K2P of phosphoric acid (total scale).
-    pub k2p: f64,
+    pub k2p: T,
     /// K3P of phosphoric acid (total scale).
-    pub k3p: f64,
+    pub k3p: T,
     /// KSi of silicic acid (total scale).
-    pub ksi: f64,
+    pub ksi: T,
     /// Ksp* of calcite \[mol² kg-2\].
-    pub ksp_calcite: f64,
+    pub ksp_calcite: T,
     /// Ksp* of aragonite \[mol² kg-2\].
-    pub ksp_aragonite: f64,
+    pub ksp_aragonite: T,
     /// Total boron \[mol kg-1\].
-    pub total_boron: f64,
+    pub total_boron: T,
     /// Total sulfate \[mol kg-1\].
-    pub total_sulfate: f64,
+    pub total_sulfate: T,
     /// Total fluoride \[mol kg-1\].
-    pub total_fluoride: f64,
+    pub total_fluoride: T,
     /// Calcium \[mol kg-1\].
-    pub calcium: f64,
+    pub calcium: T,
     /// \[H+\]total / \[H+\]free = 1 + ST/KS.
-    pub free_to_total: f64,
+    pub free_to_total: T,
     /// \[H+\]total / \[H+\]seawater = (1 + ST/KS) / (1 + ST/KS + FT/KF).
-    pub seawater_to_total: f64,
+    pub seawater_to_total: T,
     /// Validity ranges the sample falls outside.
-    pub validity: Validity,
+    pub validity: T::Validity,
 }
 
 /// Rejects conditions that are not numbers or not seawater at all (validity ranges are separate).
@@ -198,10 +204,26 @@ pub(crate) fn constants_unchecked(
     conditions: &Conditions,
     choice: &ConstantChoice,
 ) -> EquilibriumConstants {
-    let terms = SampleTerms::new(conditions.temperature_c, conditions.salinity);
-    let pressure_bar = conditions.pressure_dbar * 0.1;
-    let pt = PressureTerms::new(conditions.temperature_c, pressure_bar);
-    let salinity = conditions.salinity;
+    in_situ_constants(
+        conditions.temperature_c,
+        conditions.salinity,
+        conditions.pressure_dbar,
+        choice,
+    )
+}
+
+/// The assembly behind [`equilibrium_constants`], for one sample or a lane of cells: in-situ
+/// temperature \[°C\], practical salinity, sea pressure \[dbar\], all already validated.
+#[inline(always)]
+pub(crate) fn in_situ_constants<T: Real>(
+    temperature_c: T,
+    salinity: T,
+    pressure_dbar: T,
+    choice: &ConstantChoice,
+) -> EquilibriumConstants<T> {
+    let terms = SampleTerms::new(temperature_c, salinity);
+    let pressure_bar = pressure_dbar * 0.1;
+    let pt = PressureTerms::new(temperature_c, pressure_bar);
 
     let total_boron = totals::boron(salinity, choice.boron);
     let total_sulfate = totals::sulfate(salinity);
@@ -211,26 +233,23 @@ pub(crate) fn constants_unchecked(
     // Every constant is one exp of its ln K plus its pressure term (Millero 1995); factors that
     // change only its unit or scale multiply the exp instead of adding their ln to it.
     let water_fraction = terms.water_fraction;
-    let in_situ = |ln_k_surface: f64, coefficients: &pressure::PressureCoefficients| {
-        (ln_k_surface + pt.ln_factor(coefficients)).exp()
-    };
 
     // Free-scale KS and KF at the surface, then at in-situ pressure.
     let ln_ks_surface = dickson1990::ln_ks_per_kg_water(&terms);
     let ks_surface = ln_ks_surface.exp() * water_fraction;
-    let ks_free = in_situ(ln_ks_surface, &pressure::KS) * water_fraction;
-    let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
-    let free_to_total = 1.0 + total_sulfate / ks_free;
+    let ks_free = in_situ(&pt, ln_ks_surface, &pressure::KS) * water_fraction;
+    let free_to_total_surface = total_sulfate / ks_surface + 1.0;
+    let free_to_total = total_sulfate / ks_free + 1.0;
     // KF on the scale its paper gives, at the surface and in situ.
     let (ln_kf_surface, fluoride_scale) = match choice.fluoride {
-        FluorideSet::PerezFraga1987 => (perez_fraga1987::ln_kf(&terms), 1.0),
+        FluorideSet::PerezFraga1987 => (perez_fraga1987::ln_kf(&terms), T::from(1.0)),
         FluorideSet::DicksonRiley1979 => (
             dickson_riley1979::ln_kf_free_per_kg_water(&terms),
             water_fraction,
         ),
     };
     let kf_published_surface = ln_kf_surface.exp() * fluoride_scale;
-    let kf_published = in_situ(ln_kf_surface, &pressure::KF) * fluoride_scale;
+    let kf_published = in_situ(&pt, ln_kf_surface, &pressure::KF) * fluoride_scale;
     // FT/KF on the free scale. Perez & Fraga 1987 is on the total scale: its free-scale KF is
     // KF / ([H+]T/[H+]F at the surface), so FT/KF_free = (FT/KF)·[H+]T/[H+]F; formed as products
     // so that only two divisions lie between KS and the scale factors.
@@ -256,9 +275,6 @@ pub(crate) fn constants_unchecked(
     // at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
     let total_surface_to_total =
         free_to_total * free_to_seawater_surface / (free_to_seawater * free_to_total_surface);
-    let in_situ_total = |ln_k_surface_total: f64, coefficients: &pressure::PressureCoefficients| {
-        in_situ(ln_k_surface_total, coefficients) * total_surface_to_total
-    };
     let ln10 = std::f64::consts::LN_10;
     let (ln_k1, ln_k2, to_total) = match choice.carbonic {
         CarbonicSet::Lueker2000 => (
@@ -282,14 +298,16 @@ pub(crate) fn constants_unchecked(
             seawater_to_total,
         ),
     };
-    let k1 = in_situ(ln_k1, &pressure::K1) * to_total;
-    let k2 = in_situ(ln_k2, &pressure::K2) * to_total;
+    let k1 = in_situ(&pt, ln_k1, &pressure::K1) * to_total;
+    let k2 = in_situ(&pt, ln_k2, &pressure::K2) * to_total;
 
     let ksp_calcite = in_situ(
+        &pt,
         mucci1983::log10_ksp_calcite(&terms) * ln10,
         &pressure::CALCITE,
     );
     let ksp_aragonite = in_situ(
+        &pt,
         mucci1983::log10_ksp_aragonite(&terms) * ln10,
         &pressure::ARAGONITE,
     );
@@ -299,15 +317,19 @@ pub(crate) fn constants_unchecked(
         fugacity_factor: weiss1974::fugacity_factor(terms.kelvin),
         k1,
         k2,
-        kb: in_situ_total(dickson1990::ln_kb(&terms), &pressure::KB),
-        kw: in_situ_total(millero1995::ln_kw(&terms), &pressure::KW),
+        kb: in_situ(&pt, dickson1990::ln_kb(&terms), &pressure::KB) * total_surface_to_total,
+        kw: in_situ(&pt, millero1995::ln_kw(&terms), &pressure::KW) * total_surface_to_total,
         ks_free,
         kf: kf_free * free_to_total,
         kf_free,
-        k1p: in_situ_total(millero1995::ln_k1p(&terms), &pressure::K1P),
-        k2p: in_situ_total(millero1995::ln_k2p(&terms), &pressure::K2P),
-        k3p: in_situ_total(millero1995::ln_k3p(&terms), &pressure::K3P),
-        ksi: in_situ_total(millero1995::ln_ksi_per_kg_water(&terms), &pressure::KSI)
+        k1p: in_situ(&pt, millero1995::ln_k1p(&terms), &pressure::K1P) * total_surface_to_total,
+        k2p: in_situ(&pt, millero1995::ln_k2p(&terms), &pressure::K2P) * total_surface_to_total,
+        k3p: in_situ(&pt, millero1995::ln_k3p(&terms), &pressure::K3P) * total_surface_to_total,
+        ksi: in_situ(
+            &pt,
+            millero1995::ln_ksi_per_kg_water(&terms),
+            &pressure::KSI,
+        ) * total_surface_to_total
             * water_fraction,
         ksp_calcite,
         ksp_aragonite,
@@ -317,11 +339,16 @@ pub(crate) fn constants_unchecked(
         calcium,
         free_to_total,
         seawater_to_total,
-        validity: Validity::assess(
-            conditions.temperature_c,
-            salinity,
-            conditions.pressure_dbar,
-            choice,
-        ),
+        validity: T::assess_validity(temperature_c, salinity, pressure_dbar, choice),
     }
+}
+
+/// K at in-situ pressure from ln K at the surface: one exp of ln K plus the Millero 1995 term.
+#[inline(always)]
+fn in_situ<T: Real>(
+    pressure_terms: &PressureTerms<T>,
+    ln_k_surface: T,
+    coefficients: &pressure::PressureCoefficients,
+) -> T {
+    (ln_k_surface + pressure_terms.ln_factor(coefficients)).exp()
 }
