@@ -8,10 +8,13 @@
 
 mod dispatch;
 
-use crate::constants::{in_situ_constants, validate_conditions};
+use crate::constants::{in_situ_constants, validate_conditions, ACCEPTED_CONDITIONS};
 use crate::lanes::Lanes;
+use crate::real::Real;
 use crate::solver::{bracketed_halley, CarbonFixed, Equation, NonCarbonate};
-use crate::speciation::{check_alkalinity, check_dic, speciation, MICRO};
+use crate::speciation::{
+    check_alkalinity, check_dic, speciation, ACCEPTED_ALKALINITY, ACCEPTED_DIC, MICRO,
+};
 use crate::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution, Validity};
 use std::fmt;
 
@@ -366,8 +369,13 @@ pub(crate) fn solve_group<const N: usize, const FUSED: bool>(
     for (column, (_, slice)) in columns.iter_mut().zip(inputs.columns()) {
         column[..count].copy_from_slice(&slice[first..first + count]);
     }
+    // Most groups are all ocean water: one vector test of what `solve` accepts spares them the
+    // cell-by-cell screening (which names the problem of any other cell).
     let mut usable = [false; N];
-    for (lane, usable) in usable.iter_mut().enumerate() {
+    if count == N && all_accepted::<N, FUSED>(&columns) {
+        usable = [true; N];
+    }
+    for (lane, usable) in usable.iter_mut().enumerate().filter(|(_, u)| !**u) {
         let problem = if lane < count {
             let (conditions, alkalinity, dic) = inputs.cell(first + lane);
             screen(&conditions, alkalinity, dic)
@@ -432,6 +440,22 @@ pub(crate) fn solve_group<const N: usize, const FUSED: bool>(
             solve_alone(inputs, choice, outputs, cell, k.validity[lane]);
         }
     }
+}
+
+/// Whether every cell of a group passes every check of [`screen`].
+#[inline(always)]
+fn all_accepted<const N: usize, const FUSED: bool>(columns: &[[f64; N]; 7]) -> bool {
+    let [temperature_c, salinity, pressure_dbar, dic, alkalinity, phosphate, silicate] =
+        columns.map(Lanes::<N, FUSED>);
+    let [t, s, p, po4, si] = &ACCEPTED_CONDITIONS;
+    let accepted = t.contains(temperature_c)
+        & s.contains(salinity)
+        & p.contains(pressure_dbar)
+        & po4.contains(phosphate)
+        & si.contains(silicate)
+        & ACCEPTED_ALKALINITY.contains(alkalinity)
+        & ACCEPTED_DIC.contains(dic);
+    <Lanes<N, FUSED> as Real>::all(accepted)
 }
 
 /// A cell's inputs in the order of [`CellInputs::columns`].
@@ -615,5 +639,29 @@ mod tests {
             dispatch::solve_lanes_baseline(inputs, &ConstantChoice::default(), outputs)
         };
         assert_close(&run(&cells, baseline), &reference, 1e-10);
+    }
+
+    /// The copies for wider instruction sets, on a CPU that has them.
+    #[cfg(target_arch = "x86_64")]
+    #[test]
+    fn every_instruction_set_this_cpu_has_matches_the_scalar_solver() {
+        use std::arch::is_x86_feature_detected as has;
+        let cells = cells();
+        let reference = scalar_reference(&cells);
+        let choice = ConstantChoice::default();
+        if has!("avx2") && has!("fma") {
+            // SAFETY: the CPU has AVX2 and FMA, checked just above.
+            let avx2 = |i: &CellInputs<'_>, o: &mut CellOutputs<'_>| unsafe {
+                dispatch::solve_lanes_avx2(i, &choice, o)
+            };
+            assert_close(&run(&cells, avx2), &reference, 1e-10);
+        }
+        if has!("avx512f") {
+            // SAFETY: the CPU has AVX-512F, checked just above.
+            let avx512 = |i: &CellInputs<'_>, o: &mut CellOutputs<'_>| unsafe {
+                dispatch::solve_lanes_avx512(i, &choice, o)
+            };
+            assert_close(&run(&cells, avx512), &reference, 1e-10);
+        }
     }
 }

@@ -1,7 +1,7 @@
 //! Solving each input pair and assembling the full speciation.
 
 use crate::constants::{constants_unchecked, validate_conditions, EquilibriumConstants};
-use crate::error::{check_range, ChemError};
+use crate::error::{Accepted, ChemError};
 use crate::real::Real;
 use crate::solver::{solve_alkalinity, CarbonFixed, Contributions, NonCarbonate};
 use crate::{Conditions, ConstantChoice, InputPair, Solution};
@@ -13,44 +13,50 @@ const MAX_CONCENTRATION: f64 = 50_000.0;
 /// pH (total scale) range accepted as input and as a solution; outside it the pair describes no seawater.
 const PH_RANGE: (f64, f64) = (3.0, 12.0);
 
+/// Total alkalinity the solver accepts \[µmol kg-1\].
+pub(crate) const ACCEPTED_ALKALINITY: Accepted = Accepted {
+    field: "alkalinity",
+    min: 0.0,
+    max: MAX_CONCENTRATION,
+    expected: "total alkalinity between 0 and 50000 µmol kg-1",
+};
+
+/// DIC the solver accepts \[µmol kg-1\].
+pub(crate) const ACCEPTED_DIC: Accepted = Accepted {
+    field: "dic",
+    min: 1e-6,
+    max: MAX_CONCENTRATION,
+    expected: "dissolved inorganic carbon above 0 and at most 50000 µmol kg-1",
+};
+
+const ACCEPTED_PH: Accepted = Accepted {
+    field: "ph_total",
+    min: PH_RANGE.0,
+    max: PH_RANGE.1,
+    expected: "pH (total scale) between 3 and 12",
+};
+
+const ACCEPTED_PCO2: Accepted = Accepted {
+    field: "pco2_uatm",
+    min: 1e-6,
+    max: 1e6,
+    expected: "pCO2 above 0 and at most 1000000 µatm",
+};
+
 pub(crate) fn check_alkalinity(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "alkalinity",
-        value,
-        0.0,
-        MAX_CONCENTRATION,
-        "total alkalinity between 0 and 50000 µmol kg-1",
-    )
+    ACCEPTED_ALKALINITY.check(value)
 }
 
 pub(crate) fn check_dic(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "dic",
-        value,
-        1e-6,
-        MAX_CONCENTRATION,
-        "dissolved inorganic carbon above 0 and at most 50000 µmol kg-1",
-    )
+    ACCEPTED_DIC.check(value)
 }
 
 fn check_ph(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "ph_total",
-        value,
-        PH_RANGE.0,
-        PH_RANGE.1,
-        "pH (total scale) between 3 and 12",
-    )
+    ACCEPTED_PH.check(value)
 }
 
 fn check_pco2(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "pco2_uatm",
-        value,
-        1e-6,
-        1e6,
-        "pCO2 above 0 and at most 1000000 µatm",
-    )
+    ACCEPTED_PCO2.check(value)
 }
 
 /// Solves the carbonate system of one sample from any input pair with the chosen constants.

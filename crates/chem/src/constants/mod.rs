@@ -15,7 +15,7 @@ pub mod waters2014;
 pub mod weiss1974;
 
 use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet};
-use crate::error::{check_range, ChemError};
+use crate::error::{Accepted, ChemError};
 use crate::real::Real;
 use crate::Conditions;
 use pressure::PressureTerms;
@@ -139,43 +139,53 @@ pub struct EquilibriumConstants<T: Real = f64> {
     pub validity: T::Validity,
 }
 
+/// What the solver accepts of each condition at all (validity ranges are separate), in the order
+/// temperature, salinity, pressure, phosphate, silicate.
+pub(crate) const ACCEPTED_CONDITIONS: [Accepted; 5] = [
+    Accepted {
+        field: "temperature_c",
+        min: -10.0,
+        max: 60.0,
+        expected: "in-situ temperature between -10 and 60 °C",
+    },
+    Accepted {
+        field: "salinity",
+        min: f64::MIN_POSITIVE,
+        max: 60.0,
+        expected: "practical salinity above 0 and at most 60",
+    },
+    Accepted {
+        field: "pressure_dbar",
+        min: 0.0,
+        max: 12_000.0,
+        expected: "sea pressure between 0 (surface) and 12000 dbar",
+    },
+    Accepted {
+        field: "phosphate",
+        min: 0.0,
+        max: 1_000.0,
+        expected: "phosphate between 0 and 1000 µmol kg-1",
+    },
+    Accepted {
+        field: "silicate",
+        min: 0.0,
+        max: 5_000.0,
+        expected: "silicate between 0 and 5000 µmol kg-1",
+    },
+];
+
 /// Rejects conditions that are not numbers or not seawater at all (validity ranges are separate).
 pub(crate) fn validate_conditions(conditions: &Conditions) -> Result<(), ChemError> {
-    check_range(
-        "temperature_c",
+    let values = [
         conditions.temperature_c,
-        -10.0,
-        60.0,
-        "in-situ temperature between -10 and 60 °C",
-    )?;
-    check_range(
-        "salinity",
         conditions.salinity,
-        f64::MIN_POSITIVE,
-        60.0,
-        "practical salinity above 0 and at most 60",
-    )?;
-    check_range(
-        "pressure_dbar",
         conditions.pressure_dbar,
-        0.0,
-        12_000.0,
-        "sea pressure between 0 (surface) and 12000 dbar",
-    )?;
-    check_range(
-        "phosphate",
         conditions.phosphate,
-        0.0,
-        1_000.0,
-        "phosphate between 0 and 1000 µmol kg-1",
-    )?;
-    check_range(
-        "silicate",
         conditions.silicate,
-        0.0,
-        5_000.0,
-        "silicate between 0 and 5000 µmol kg-1",
-    )?;
+    ];
+    for (accepted, value) in ACCEPTED_CONDITIONS.iter().zip(values) {
+        accepted.check(value)?;
+    }
     Ok(())
 }
 
