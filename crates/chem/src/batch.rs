@@ -1,6 +1,6 @@
 //! Many cells at once from alkalinity and DIC: the batch kernel for gridded model output.
 //!
-//! Cells go through in lanes of [`LANE_WIDTH`]: constants, solver iterations and speciation run on
+//! Cells go through in lanes of 8 or 16: constants, solver iterations and speciation run on
 //! all cells of a lane together (the same generic code as [`crate::solve`], over [`Lanes`]), so
 //! the compiler emits SIMD instructions. A cell whose iteration has not converged within
 //! [`LANE_ITERATION_BUDGET`], or whose result fails a seawater test, is solved again by
@@ -18,8 +18,6 @@ use crate::speciation::{
 use crate::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution, Validity};
 use std::fmt;
 
-/// Cells solved side by side: four doubles fill one AVX2 register.
-pub(crate) const LANE_WIDTH: usize = 8;
 /// Halley iterations a lane may take before its unconverged cells go to the scalar solver. The
 /// scalar solver needs two or three on ocean water, so this is rarely reached.
 pub(crate) const LANE_ITERATION_BUDGET: u32 = 6;

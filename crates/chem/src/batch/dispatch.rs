@@ -1,9 +1,13 @@
-//! Picks the widest instruction set the CPU offers, at run time. The lane code (always lanes of
-//! [`LANE_WIDTH`] cells) is compiled for the baseline of the target (SSE2 on x86-64, NEON on
-//! aarch64: two doubles a register) and, on x86-64, again for AVX2 with FMA and for AVX-512 (four
-//! and eight doubles a register; these two use fused multiply-adds in `exp` and `ln`).
+//! Picks the widest instruction set the CPU offers, at run time. The lane code is compiled for
+//! the baseline of the target (SSE2 on x86-64, NEON on aarch64: two doubles a register; lanes of
+//! eight cells) and, on x86-64, again for AVX2 with FMA (four doubles a register; lanes of 16
+//! cells) and for AVX-512 (eight doubles a register; lanes of eight cells). Lane widths are what
+//! measured fastest here: a lane of several registers gives the processor independent work while
+//! divisions and square roots are in flight, until registers run out. Fused multiply-adds (in
+//! `exp` and `ln` only) are used where the instruction set guarantees them: AVX2 with FMA,
+//! AVX-512, and aarch64's baseline.
 
-use super::{solve_group, CellInputs, CellOutputs, LANE_ITERATION_BUDGET, LANE_WIDTH};
+use super::{solve_group, CellInputs, CellOutputs, LANE_ITERATION_BUDGET};
 use crate::ConstantChoice;
 
 /// Solves every cell with the best instruction set available.
@@ -31,7 +35,7 @@ pub(super) fn solve_lanes(
 
 /// A copy of the lane code compiled for an x86-64 instruction set beyond the baseline.
 macro_rules! x86_copy {
-    ($name:ident, $features:literal, $what:literal) => {
+    ($name:ident, $features:literal, $width:literal, $what:literal) => {
         #[doc = concat!("The lane code compiled for ", $what, ".")]
         ///
         /// # Safety
@@ -43,7 +47,7 @@ macro_rules! x86_copy {
             choice: &ConstantChoice,
             outputs: &mut CellOutputs<'_>,
         ) {
-            every_group::<true>(inputs, choice, outputs);
+            every_group::<$width, true>(inputs, choice, outputs);
         }
     };
 }
@@ -51,13 +55,18 @@ macro_rules! x86_copy {
 x86_copy!(
     solve_lanes_avx512,
     "avx512f,avx2,fma",
+    8,
     "AVX-512 (eight doubles a register)"
 );
 x86_copy!(
     solve_lanes_avx2,
     "avx2,fma",
+    16,
     "AVX2 and FMA (four doubles a register)"
 );
+
+/// Whether the target's baseline guarantees fused multiply-adds (aarch64 does).
+const BASELINE_FUSED: bool = cfg!(target_arch = "aarch64");
 
 /// The lane code compiled for the target's baseline.
 pub(super) fn solve_lanes_baseline(
@@ -65,25 +74,18 @@ pub(super) fn solve_lanes_baseline(
     choice: &ConstantChoice,
     outputs: &mut CellOutputs<'_>,
 ) {
-    every_group::<false>(inputs, choice, outputs);
+    every_group::<8, BASELINE_FUSED>(inputs, choice, outputs);
 }
 
 #[inline(always)]
-fn every_group<const FUSED: bool>(
+fn every_group<const N: usize, const FUSED: bool>(
     inputs: &CellInputs<'_>,
     choice: &ConstantChoice,
     outputs: &mut CellOutputs<'_>,
 ) {
     let cells = inputs.temperature_c.len();
-    for first in (0..cells).step_by(LANE_WIDTH) {
-        let count = (cells - first).min(LANE_WIDTH);
-        solve_group::<LANE_WIDTH, FUSED>(
-            inputs,
-            choice,
-            outputs,
-            first,
-            count,
-            LANE_ITERATION_BUDGET,
-        );
+    for first in (0..cells).step_by(N) {
+        let count = (cells - first).min(N);
+        solve_group::<N, FUSED>(inputs, choice, outputs, first, count, LANE_ITERATION_BUDGET);
     }
 }
