@@ -175,6 +175,25 @@ impl<'a> CellOutputs<'a> {
         }
     }
 
+    /// Writes the statuses of `count` cells from `first`, none of which has values.
+    fn put_failures(
+        &mut self,
+        first: usize,
+        count: usize,
+        statuses: impl Iterator<Item = CellStatus>,
+    ) {
+        let range = first..first + count;
+        for (status, failure) in self.status[range.clone()].iter_mut().zip(statuses) {
+            *status = failure;
+        }
+        self.validity[range.clone()].fill(Validity::default());
+        for (_, slice) in self.quantities() {
+            if let Some(slice) = slice {
+                slice[range.clone()].fill(f64::NAN);
+            }
+        }
+    }
+
     /// Writes an outcome without values (NaN in every quantity).
     fn put_failure(&mut self, cell: usize, status: CellStatus, validity: Validity) {
         self.put(cell, status, validity, [f64::NAN; QUANTITIES]);
@@ -369,30 +388,24 @@ pub(crate) fn solve_group<const N: usize, const FUSED: bool>(
     }
     // Most groups are all ocean water: one vector test of what `solve` accepts spares them the
     // cell-by-cell screening (which names the problem of any other cell).
-    let mut usable = [false; N];
-    if count == N && all_accepted::<N, FUSED>(&columns) {
-        usable = [true; N];
-    }
-    for (lane, usable) in usable.iter_mut().enumerate().filter(|(_, u)| !**u) {
-        let problem = if lane < count {
-            let (conditions, alkalinity, dic) = inputs.cell(first + lane);
-            screen(&conditions, alkalinity, dic)
-        } else {
-            Some(CellStatus::MissingInput)
-        };
-        match problem {
-            None => *usable = true,
-            Some(status) => {
-                if lane < count {
-                    outputs.put_failure(first + lane, status, Validity::default());
-                }
+    let mut problems = [None; N];
+    if !(count == N && all_accepted::<N, FUSED>(&columns)) {
+        for (lane, problem) in problems.iter_mut().enumerate() {
+            *problem = if lane < count {
+                let (conditions, alkalinity, dic) = inputs.cell(first + lane);
+                screen(&conditions, alkalinity, dic)
+            } else {
+                Some(CellStatus::MissingInput)
+            };
+            if problem.is_some() {
                 for (column, value) in columns.iter_mut().zip(column_values(&STAND_IN)) {
                     column[lane] = value;
                 }
             }
         }
     }
-    if !usable.contains(&true) {
+    if problems.iter().all(Option::is_some) {
+        outputs.put_failures(first, count, problems.iter().flatten().copied());
         return;
     }
     let [temperature_c, salinity, pressure_dbar, dic, alkalinity, phosphate, silicate] = columns;
@@ -422,20 +435,25 @@ pub(crate) fn solve_group<const N: usize, const FUSED: bool>(
     let accepted = ended.converged & s.is_seawater();
     let values = reported!(s);
 
-    if count == N && usable.iter().all(|&u| u) && (0..N).all(|lane| accepted.get(lane)) {
+    // Every lane is written at once, then the cells that are not solved lanes are rewritten.
+    if count == N {
         outputs.put_lanes(first, &values, &k.validity);
-        return;
     }
-    for lane in (0..count).filter(|&lane| usable[lane]) {
+    for (lane, problem) in problems.iter().enumerate().take(count) {
         let cell = first + lane;
-        if accepted.get(lane) {
-            let mut cell_values = [0.0; QUANTITIES];
-            for (value, quantity) in cell_values.iter_mut().zip(&values) {
-                *value = quantity.0[lane];
+        match problem {
+            Some(status) => outputs.put_failure(cell, *status, Validity::default()),
+            None if !accepted.get(lane) => {
+                solve_alone(inputs, choice, outputs, cell, k.validity[lane])
             }
-            outputs.put(cell, CellStatus::Solved, k.validity[lane], cell_values);
-        } else {
-            solve_alone(inputs, choice, outputs, cell, k.validity[lane]);
+            None if count < N => {
+                let mut cell_values = [0.0; QUANTITIES];
+                for (value, quantity) in cell_values.iter_mut().zip(&values) {
+                    *value = quantity.0[lane];
+                }
+                outputs.put(cell, CellStatus::Solved, k.validity[lane], cell_values);
+            }
+            None => {}
         }
     }
 }

@@ -24,6 +24,12 @@
 //!   from the carbonate-borate cubic start) inside the always-valid bracket of Munhoven 2013, with
 //!   bisection fallback; DIC+pH, TA+pH and DIC+pCO2 in closed form.
 //! - Revelle factor: analytical ∂ln pCO2/∂ln DIC at constant alkalinity.
+//!
+//! # Many cells
+//! [`solve_cells`] solves blocks of cells from alkalinity and DIC (slices in, slices out) with
+//! the same formulas as [`solve`], several cells per instruction (SIMD lanes, the widest
+//! instruction set the CPU has, chosen at run time); any cell the lanes cannot finish is handed
+//! to [`solve`], so results agree with it to within 1e-10 relative and statuses exactly.
 
 // Lets the synthetic-cell helpers shared with the benches and tests name this crate in unit tests.
 #[cfg(test)]
