@@ -421,6 +421,9 @@ pub(crate) fn solve_group<const N: usize, const FUSED: bool>(
     // Every lane is written at once, then the cells that are not solved lanes are rewritten.
     if count == N {
         outputs.put_lanes(first, &values, &k.validity);
+        if <Lanes<N, FUSED> as Real>::all(accepted) && problems.iter().all(Option::is_none) {
+            return;
+        }
     }
     for (lane, problem) in problems.iter().enumerate().take(count) {
         let cell = first + lane;
