@@ -1,16 +1,18 @@
 //! `draw series`: a regional quantity from the table `compare` writes, every run on one plot,
 //! the reference window shaded and each run's year of emergence marked.
 
+mod table;
+
 use crate::caption;
-use crate::error::{DrawError, Result};
+use crate::error::Result;
 use crate::naming::quantity_words;
 use crate::options::{parse_years, Page, PageRequest};
 use crate::source::parse_windows;
 use crate::{title, Drawn};
-use acidscape_comparison::COLUMNS;
 use acidscape_figures::{Captions, Figure, Series, SeriesSpec};
 use acidscape_gridio::IndicatorFile;
 use std::path::{Path, PathBuf};
+use table::{read_rows, select, Row, Selection};
 
 /// A time series as asked for on the command line.
 #[derive(Clone, Debug)]
@@ -36,23 +38,6 @@ pub struct SeriesRequest {
     pub page: PageRequest,
 }
 
-/// The rows of the table that matter here.
-#[derive(Clone, Debug)]
-struct Row {
-    run: String,
-    region: String,
-    layer: String,
-    period: String,
-    time: String,
-    year: Option<i64>,
-    quantity: String,
-    statistic: String,
-    threshold: Option<f64>,
-    value: Option<f64>,
-    units: String,
-    note: String,
-}
-
 /// A time-series figure with every option checked.
 pub struct SeriesPlan {
     series: Vec<Series>,
@@ -70,47 +55,7 @@ impl SeriesPlan {
             .unwrap_or_else(|| request.table.with_extension("nc"));
         let page = Page::new(&request.page, &[&request.table, &comparison])?;
         let rows = read_rows(&request.table)?;
-        let quantity = &request.quantity;
-        let statistic = request.statistic.as_deref().unwrap_or("mean");
-        let table = &request.table;
-        let wanted: Vec<&Row> = rows
-            .iter()
-            .filter(|r| r.period == "time_step" && r.quantity == *quantity)
-            .collect();
-        if wanted.is_empty() {
-            return Err(refusal(table, "quantity", quantity, &rows, |r| &r.quantity));
-        }
-        let region = match &request.region {
-            Some(region) => region.clone(),
-            None => only_one(table, "region", &wanted, |r| &r.region)?,
-        };
-        let wanted: Vec<&Row> = wanted.into_iter().filter(|r| r.region == region).collect();
-        if wanted.is_empty() {
-            return Err(refusal(table, "region", &region, &rows, |r| &r.region));
-        }
-        let two_d = wanted.iter().all(|r| r.layer.is_empty());
-        let layer = if two_d {
-            String::new()
-        } else {
-            request
-                .layer
-                .clone()
-                .unwrap_or_else(|| "surface".to_string())
-        };
-        let wanted: Vec<&Row> = wanted.into_iter().filter(|r| r.layer == layer).collect();
-        if wanted.is_empty() {
-            return Err(refusal(table, "layer", &layer, &rows, |r| &r.layer));
-        }
-        let wanted: Vec<&Row> = wanted
-            .into_iter()
-            .filter(|r| r.statistic == statistic)
-            .collect();
-        if wanted.is_empty() {
-            return Err(refusal(table, "statistic", statistic, &rows, |r| {
-                &r.statistic
-            }));
-        }
-        let wanted = with_threshold(table, wanted, request.threshold)?;
+        let chosen = select(&request.table, &rows, request)?;
         let windows = Windows::read(&comparison, request.reference_years.as_deref())?;
         let mut notes = Vec::new();
         if windows.reference.is_none() {
@@ -119,56 +64,20 @@ impl SeriesPlan {
                 comparison.display()
             ));
         }
-        let (series, emergence_words) = build_series(&rows, &wanted, &region, quantity);
+        let (series, emergence_words) =
+            build_series(&rows, &chosen.rows, &chosen.region, &request.quantity);
         let emergence_shown =
             emergence_words.is_some() || series.iter().any(|s| s.emergence_year.is_some());
-        let units = wanted[0].units.clone();
-        let words = quantity_words(quantity, None);
-        let measured = match statistic {
-            "fraction_below" => format!(
-                "share of the {} with {words} below {}",
-                if layer == "surface" || two_d {
-                    "area"
-                } else {
-                    "volume"
-                },
-                wanted[0].threshold.map_or(String::new(), |t| t.to_string())
-            ),
-            "mean" => words.clone(),
-            other => format!("{words}, {other}"),
-        };
-        let (before, after) = match layer.as_str() {
-            "" => (String::new(), String::new()),
-            "surface" => ("surface ".to_string(), String::new()),
-            "column" => ("whole-column ".to_string(), String::new()),
-            other => (String::new(), format!(" in the {} layer", en_dashes(other))),
-        };
-        let first = wanted
-            .iter()
-            .filter_map(|r| r.year)
-            .min()
-            .unwrap_or_default();
-        let last = wanted
-            .iter()
-            .filter_map(|r| r.year)
-            .max()
-            .unwrap_or_default();
-        let made_title = title(&[
-            region.clone(),
-            format!("{before}{measured}{after}"),
-            format!("regional mean, {first}–{last}"),
-        ]);
-        let weighting = match (statistic, layer.as_str()) {
-            ("mean", "") => "Area-weighted mean over the region's columns with a value.",
-            ("mean", "surface") => "Area-weighted mean over the region's surface cells.",
-            ("mean", _) => "Volume-weighted mean over the region's cells in the layer.",
-            _ => "",
-        };
+        let words = SeriesWords::new(&chosen, &request.quantity);
         let caption = caption::join(&[
             windows.synthetic.clone(),
             page.note.clone(),
             windows.constants.clone(),
-            Some(format!("{weighting} From {}.", file_name(table))),
+            Some(format!(
+                "{} From {}.",
+                words.weighting,
+                file_name(&request.table)
+            )),
             emergence_words,
             windows
                 .rule
@@ -176,13 +85,9 @@ impl SeriesPlan {
                 .filter(|_| emergence_shown)
                 .map(|r| emergence_rule_words(r)),
         ]);
-        let quantity_label = if statistic == "mean" { words } else { measured };
-        let text = Captions::new(
-            page.title.clone().unwrap_or(made_title),
-            quantity_label,
-            units,
-        )
-        .with_caption(caption);
+        let title = page.title.clone().unwrap_or(words.title);
+        let text =
+            Captions::new(title, words.axis, chosen.rows[0].units.clone()).with_caption(caption);
         let mut spec = SeriesSpec::new(text);
         spec.reference = windows.reference;
         spec.page = page.size;
@@ -222,6 +127,64 @@ impl SeriesPlan {
     }
 }
 
+/// The words of a series figure: its title, the value axis and how the values were weighted.
+struct SeriesWords {
+    title: String,
+    axis: String,
+    weighting: &'static str,
+}
+
+impl SeriesWords {
+    fn new(chosen: &Selection, quantity: &str) -> SeriesWords {
+        let (layer, statistic) = (chosen.layer.as_str(), chosen.statistic.as_str());
+        let words = quantity_words(quantity, None);
+        let measured = match statistic {
+            "fraction_below" => format!(
+                "share of the {} with {words} below {}",
+                if matches!(layer, "surface" | "") {
+                    "area"
+                } else {
+                    "volume"
+                },
+                chosen.rows[0]
+                    .threshold
+                    .map_or(String::new(), |t| t.to_string())
+            ),
+            "mean" => words.clone(),
+            other => format!("{words}, {other}"),
+        };
+        let (before, after) = match layer {
+            "" => (String::new(), String::new()),
+            "surface" => ("surface ".to_string(), String::new()),
+            "column" => ("whole-column ".to_string(), String::new()),
+            other => (String::new(), format!(" in the {} layer", en_dashes(other))),
+        };
+        let years = chosen.rows.iter().filter_map(|r| r.year);
+        let (first, last) = (years.clone().min(), years.max());
+        let span = format!("{}–{}", first.unwrap_or_default(), last.unwrap_or_default());
+        let kind = if statistic == "mean" {
+            "regional mean"
+        } else {
+            "regional"
+        };
+        let weighting = match (statistic, layer) {
+            ("mean", "") => "Area-weighted mean over the region's columns with a value.",
+            ("mean", "surface") => "Area-weighted mean over the region's surface cells.",
+            ("mean", _) => "Volume-weighted mean over the region's cells in the layer.",
+            _ => "",
+        };
+        SeriesWords {
+            title: title(&[
+                chosen.region.clone(),
+                format!("{before}{measured}{after}"),
+                format!("{kind}, {span}"),
+            ]),
+            axis: if statistic == "mean" { words } else { measured },
+            weighting,
+        }
+    }
+}
+
 /// The comparison's emergence rule (written per column) as it applies to a regional mean: its
 /// first clause, e.g. "Emergence of the regional mean: the first year from which the annual
 /// mean of omega_aragonite stays below ... in every later year of the run."
@@ -254,120 +217,6 @@ fn file_name(path: &Path) -> String {
         || path.display().to_string(),
         |n| n.to_string_lossy().into_owned(),
     )
-}
-
-/// An error naming what the table does hold for a column.
-fn refusal(
-    table: &Path,
-    what: &str,
-    given: &str,
-    rows: &[Row],
-    field: impl Fn(&Row) -> &String,
-) -> DrawError {
-    let mut seen: Vec<&str> = Vec::new();
-    for row in rows.iter().filter(|r| r.period == "time_step") {
-        let value = field(row).as_str();
-        if !seen.contains(&value) {
-            seen.push(value);
-        }
-    }
-    let listed: Vec<String> = seen
-        .iter()
-        .map(|s| {
-            if s.is_empty() {
-                "(none, for 2-D fields)".to_string()
-            } else {
-                format!("'{s}'")
-            }
-        })
-        .collect();
-    DrawError::file(
-        table,
-        format!(
-            "no time-step rows with {what} '{given}' (among the other choices); the table has {what}s {}",
-            listed.join(", ")
-        ),
-    )
-}
-
-/// The single value of a column among `rows`, or an error listing them.
-fn only_one(
-    table: &Path,
-    what: &str,
-    rows: &[&Row],
-    field: impl Fn(&Row) -> &String,
-) -> Result<String> {
-    let mut seen: Vec<&String> = Vec::new();
-    for row in rows {
-        if !seen.contains(&field(row)) {
-            seen.push(field(row));
-        }
-    }
-    match seen.as_slice() {
-        [one] => Ok((*one).clone()),
-        _ => Err(DrawError::option(
-            &format!("--{what}"),
-            format!(
-                "{} has {} {what}s; choose one: {}",
-                table.display(),
-                seen.len(),
-                seen.iter()
-                    .map(|s| format!("'{s}'"))
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
-        )),
-    }
-}
-
-/// The rows of one threshold (fractions below several thresholds need `--threshold`).
-fn with_threshold<'a>(
-    table: &Path,
-    rows: Vec<&'a Row>,
-    threshold: Option<f64>,
-) -> Result<Vec<&'a Row>> {
-    let mut thresholds: Vec<f64> = Vec::new();
-    for t in rows.iter().filter_map(|r| r.threshold) {
-        if !thresholds.contains(&t) {
-            thresholds.push(t);
-        }
-    }
-    let listed = || {
-        thresholds
-            .iter()
-            .map(f64::to_string)
-            .collect::<Vec<_>>()
-            .join(", ")
-    };
-    let chosen = match (threshold, thresholds.as_slice()) {
-        (None, []) => return Ok(rows),
-        (None, [one]) => *one,
-        (None, _) => {
-            return Err(DrawError::option(
-                "--threshold",
-                format!(
-                    "{} has several thresholds ({}); choose one",
-                    table.display(),
-                    listed()
-                ),
-            ))
-        }
-        (Some(t), _) if thresholds.contains(&t) => t,
-        (Some(t), _) => {
-            return Err(DrawError::option(
-                "--threshold",
-                format!(
-                    "{} has no threshold {t}; it has {}",
-                    table.display(),
-                    listed()
-                ),
-            ))
-        }
-    };
-    Ok(rows
-        .into_iter()
-        .filter(|r| r.threshold == Some(chosen))
-        .collect())
 }
 
 /// One series per run (in the table's order) and the caption's words on emergence.
@@ -434,62 +283,6 @@ fn decimal_year(time: &str) -> Option<f64> {
     let mut parts = time.split('-').map(|p| p.parse::<f64>().ok());
     let (year, month, day) = (parts.next()??, parts.next()??, parts.next()??);
     Some(year + ((month - 1.0) + (day - 0.5) / 31.0) / 12.0)
-}
-
-fn read_rows(table: &Path) -> Result<Vec<Row>> {
-    let fail = |why: String| DrawError::file(table, why);
-    let mut reader =
-        csv::Reader::from_path(table).map_err(|e| fail(format!("cannot read: {e}")))?;
-    let header = reader
-        .headers()
-        .map_err(|e| fail(format!("cannot read the header: {e}")))?
-        .clone();
-    let column = |name: &str| header.iter().position(|h| h == name);
-    let missing: Vec<&str> = COLUMNS
-        .iter()
-        .copied()
-        .filter(|n| column(n).is_none())
-        .collect();
-    if !missing.is_empty() {
-        return Err(fail(format!(
-            "not a regional table of compare: no column {}; expected the columns {}",
-            missing.join(", "),
-            COLUMNS.join(", ")
-        )));
-    }
-    let at = |name: &str| column(name).unwrap_or(usize::MAX);
-    let mut rows = Vec::new();
-    for (line, record) in reader.records().enumerate() {
-        let record = record.map_err(|e| fail(format!("row {}: {e}", line + 2)))?;
-        let text = |i: usize| record.get(i).unwrap_or("").to_string();
-        let number = |name: &str| -> Result<Option<f64>> {
-            let cell = text(at(name));
-            if cell.is_empty() {
-                return Ok(None);
-            }
-            cell.parse().map(Some).map_err(|_| {
-                fail(format!(
-                    "row {}, column {name}: '{cell}' is not a number",
-                    line + 2
-                ))
-            })
-        };
-        rows.push(Row {
-            run: text(at("run")),
-            region: text(at("region")),
-            layer: text(at("layer")),
-            period: text(at("period")),
-            time: text(at("time")),
-            year: number("year")?.map(|y| y as i64),
-            quantity: text(at("quantity")),
-            statistic: text(at("statistic")),
-            threshold: number("threshold")?,
-            value: number("value")?,
-            units: text(at("units")),
-            note: text(at("note")),
-        });
-    }
-    Ok(rows)
 }
 
 /// What the comparison's NetCDF adds: the reference window's years, the emergence rule, the

@@ -1,6 +1,8 @@
 //! Helpers shared by the command-line tests.
 #![allow(dead_code)]
 
+pub mod draw;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 

@@ -36,62 +36,65 @@ pub(crate) struct Line {
 
 /// Resolves the line of a section.
 pub(crate) fn line(source: &Source, request: &LineRequest) -> Result<Line> {
-    let given = [
-        request.path.is_some(),
-        request.row.is_some(),
-        request.column.is_some(),
-    ];
-    if given.iter().filter(|&&g| g).count() != 1 {
-        return Err(DrawError::option(
+    match (&request.path, request.row, request.column) {
+        (Some(text), None, None) => path_line(source, text),
+        (None, Some(j), None) => grid_line(source, false, j),
+        (None, None, Some(i)) => grid_line(source, true, i),
+        _ => Err(DrawError::option(
             "--path/--row/--column",
             "give exactly one: a path of points LON,LAT:LON,LAT, or a grid row or column",
+        )),
+    }
+}
+
+/// The cells along great circles through the given points, by distance.
+fn path_line(source: &Source, text: &str) -> Result<Line> {
+    let points = parse_path(text)?;
+    let cells: Vec<LineCell> = sample_path(&map_grid(source)?, &points)
+        .map_err(|e| DrawError::option("--path", e.to_string()))?
+        .into_iter()
+        .map(|c| LineCell {
+            j: c.j,
+            i: c.i,
+            x_start: c.start_km,
+            x_end: c.end_km,
+        })
+        .collect();
+    if cells.is_empty() {
+        return Err(DrawError::option(
+            "--path",
+            format!(
+                "'{text}' does not cross the grid of {}",
+                source.path().display()
+            ),
         ));
     }
+    let more = points.len() - 2;
+    let via = match more {
+        0 => String::new(),
+        1 => " via 1 point".to_string(),
+        n => format!(" via {n} points"),
+    };
+    let words = format!(
+        "from {} to {}{via}",
+        place(points[0]),
+        place(points[points.len() - 1])
+    );
+    Ok(Line {
+        cells,
+        axis: SectionAxis::DistanceKm,
+        words,
+    })
+}
+
+/// Every cell of a grid row (against distance) or column (`along` Y: against latitude where
+/// it rises or falls steadily, otherwise distance).
+fn grid_line(source: &Source, along: bool, fixed: usize) -> Result<Line> {
     let grid = source.file.grid();
-    let (lons, lats) = grid.column_centres();
-    let centre = |j: usize, i: usize| (lons[j * grid.cols + i], lats[j * grid.cols + i]);
-    if let Some(text) = &request.path {
-        let points = parse_path(text)?;
-        let cells: Vec<LineCell> = sample_path(&map_grid(source)?, &points)
-            .map_err(|e| DrawError::option("--path", e.to_string()))?
-            .into_iter()
-            .map(|c| LineCell {
-                j: c.j,
-                i: c.i,
-                x_start: c.start_km,
-                x_end: c.end_km,
-            })
-            .collect();
-        if cells.is_empty() {
-            return Err(DrawError::option(
-                "--path",
-                format!(
-                    "'{text}' does not cross the grid of {}",
-                    source.path().display()
-                ),
-            ));
-        }
-        let via = if points.len() > 2 {
-            let more = points.len() - 2;
-            format!(" via {more} point{}", if more == 1 { "" } else { "s" })
-        } else {
-            String::new()
-        };
-        let words = format!(
-            "from {} to {}{via}",
-            place(points[0]),
-            place(points[points.len() - 1])
-        );
-        return Ok(Line {
-            cells,
-            axis: SectionAxis::DistanceKm,
-            words,
-        });
-    }
-    let (along, count, fixed, what, limit) = match (request.row, request.column) {
-        (Some(j), _) => (false, grid.cols, j, "row", grid.rows),
-        (_, Some(i)) => (true, grid.rows, i, "column", grid.cols),
-        _ => unreachable!("one of path, row, column is given"),
+    let (count, what, limit) = if along {
+        (grid.rows, "column", grid.cols)
+    } else {
+        (grid.cols, "row", grid.rows)
     };
     if fixed >= limit {
         return Err(DrawError::option(
@@ -103,23 +106,23 @@ pub(crate) fn line(source: &Source, request: &LineRequest) -> Result<Line> {
             ),
         ));
     }
+    let (lons, lats) = grid.column_centres();
     let at = |k: usize| if along { (k, fixed) } else { (fixed, k) };
     let positions: Vec<(f64, f64)> = (0..count)
         .map(|k| {
             let (j, i) = at(k);
-            centre(j, i)
+            (lons[j * grid.cols + i], lats[j * grid.cols + i])
         })
         .collect();
     let latitudes: Vec<f64> = positions.iter().map(|p| p.1).collect();
-    let monotonic =
+    let steady =
         latitudes.windows(2).all(|w| w[1] > w[0]) || latitudes.windows(2).all(|w| w[1] < w[0]);
-    let (axis, x) = if along && monotonic && count > 1 {
+    let (axis, x) = if along && steady && count > 1 {
         (SectionAxis::Latitude, latitudes)
     } else {
         let mut x = vec![0.0];
         for w in positions.windows(2) {
-            let last = x[x.len() - 1];
-            x.push(last + great_circle_km(w[0], w[1]));
+            x.push(x[x.len() - 1] + great_circle_km(w[0], w[1]));
         }
         (SectionAxis::DistanceKm, x)
     };
