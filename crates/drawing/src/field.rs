@@ -100,7 +100,7 @@ impl ChosenField {
                 self.moment.words.clone(),
             ])
         });
-        let units = self.info.units.clone().unwrap_or_else(|| "1".to_string());
+        let units = self.meaning.units(&self.info);
         Captions::new(title, self.meaning.quantity(&self.info), units)
     }
 

@@ -64,7 +64,15 @@ impl MapPlan {
         let mut spec = MapSpec::new(text);
         spec.colouring = field.colouring;
         spec.page = field.page.size;
-        if meaning.is_horizon_depth() {
+        if meaning.is_emergence_year() {
+            spec.missing_label = format!(
+                "land, no data, or not emerged by the end of the run (see {})",
+                field
+                    .info
+                    .name
+                    .replacen("emergence_year", "emergence_status", 1)
+            );
+        } else if meaning.is_horizon_depth() {
             spec.missing_label = "land, or no horizon above the sea floor".to_string();
         } else if level.choice != LevelChoice::Whole && level.prefix != "surface" {
             spec.missing_label = "land, below the sea floor, or no data".to_string();

@@ -132,6 +132,11 @@ impl Meaning {
             && self.omega_mineral().is_some()
     }
 
+    /// Whether the values are years of emergence.
+    pub(crate) fn is_emergence_year(&self) -> bool {
+        self.relation == Relation::EmergenceYear
+    }
+
     /// Whether the values are a horizon depth.
     pub(crate) fn is_horizon_depth(&self) -> bool {
         !self.is_difference() && self.base.starts_with(HORIZON_DEPTH)
@@ -160,6 +165,15 @@ impl Meaning {
         } else {
             words
         }
+    }
+
+    /// The units shown: the variable's, except for years of emergence (stored with units
+    /// "1", drawn as calendar years).
+    pub(crate) fn units(&self, info: &FieldInfo) -> String {
+        if self.relation == Relation::EmergenceYear {
+            return "calendar year".to_string();
+        }
+        info.units.clone().unwrap_or_else(|| "1".to_string())
     }
 
     /// The quantity as the title names it: differences without the Δ, since the run words
