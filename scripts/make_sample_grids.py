@@ -959,7 +959,7 @@ def parse_args(argv):
                              "cmip-style only, written to DIR (do not commit)")
     parser.add_argument("--global-century", type=Path, metavar="DIR",
                         help="benchmark preset for pathway comparisons: century run on a 1-degree global grid, "
-                             "360x180x50, 50 annual steps, lossless (~4 GB per pathway; do not commit)")
+                             "360x180x50, 50 annual steps (or --steps N), lossless (~4 GB per pathway; do not commit)")
     parser.add_argument("--pathways", default=",".join(PATHWAYS),
                         help=f"comma-separated subset of {', '.join(PATHWAYS)} (default both)")
     parser.add_argument("--lossless", action="store_true",
@@ -973,9 +973,10 @@ def parse_args(argv):
         args.lossless = True
     args.months = ALL_MONTHS
     if args.global_century is not None:
-        if args.out is not None or args.size is not None or args.steps is not None or args.large is not None:
-            parser.error("--global-century sets its own output, size and steps; do not combine it with --out/--size/--steps/--large")
-        args.out, args.size, args.steps, args.runs = args.global_century, list(LARGE_SIZE), GLOBAL_CENTURY_STEPS, "century"
+        if args.out is not None or args.size is not None or args.large is not None:
+            parser.error("--global-century sets its own output and size; do not combine it with --out/--size/--large")
+        args.out, args.size, args.runs = args.global_century, list(LARGE_SIZE), "century"
+        args.steps = args.steps or GLOBAL_CENTURY_STEPS
         args.lossless, args.months = True, GLOBAL_MONTHS
         use_global_domain()
     if args.out is None:

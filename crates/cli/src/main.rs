@@ -4,6 +4,7 @@
 mod compare;
 mod compute;
 mod describe;
+mod draw;
 mod run_options;
 mod samples;
 
@@ -48,6 +49,9 @@ enum Command {
     /// with time of emergence, from outputs of `compute`
     #[command(after_help = format!("{CAUTIONS}\n\n{}", compare::COMPARE_CAUTIONS))]
     Compare(compare::CompareArgs),
+    /// Draw PNG figures (maps, sections, regional time series) from outputs of `compute` and
+    /// `compare`
+    Draw(draw::DrawArgs),
 }
 
 fn main() -> ExitCode {
@@ -57,6 +61,7 @@ fn main() -> ExitCode {
         Command::Describe(args) => describe::run(&args),
         Command::Compute(args) => compute::run(&args),
         Command::Compare(args) => compare::run(&args),
+        Command::Draw(args) => draw::run(&args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

@@ -5,37 +5,7 @@
 mod common;
 
 use acidscape_gridio::IndicatorFile;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-const BIN: &str = env!("CARGO_BIN_EXE_acidscape");
-
-fn acidscape(args: &[&str]) -> Output {
-    Command::new(BIN)
-        .args(args)
-        .current_dir(common::repository())
-        .output()
-        .unwrap()
-}
-
-fn compute(run: &str, pathway: &str, out: &Path) -> PathBuf {
-    let output = out.join(format!("{run}-{pathway}.nc"));
-    let inputs = format!("sample-grids/{run}/{pathway}/*.nc");
-    let result = acidscape(&["compute", &inputs, "-o", output.to_str().unwrap()]);
-    assert!(
-        result.status.success(),
-        "{}",
-        String::from_utf8_lossy(&result.stderr)
-    );
-    output
-}
-
-fn text(output: &Output) -> (String, String) {
-    (
-        String::from_utf8_lossy(&output.stdout).into_owned(),
-        String::from_utf8_lossy(&output.stderr).into_owned(),
-    )
-}
+use common::{acidscape, compute, text};
 
 #[test]
 fn compares_the_century_pathways_by_region() {

@@ -137,6 +137,7 @@ pub fn global_attributes(
     if let Some(rule) = emergence {
         attributes.push(("emergence_rule", rule.to_string()));
     }
+    attributes.extend(run_constants(plan));
     let synthetic = plan
         .runs
         .iter()
@@ -146,4 +147,38 @@ pub fn global_attributes(
         attributes.push(("comment", comment));
     }
     attributes
+}
+
+/// The constant choices `compute` records (`carbonic_acid_constants`, ...), copied from the
+/// runs so that figures and readers of the comparison can name them: the runs' common value,
+/// or each run's as "LABEL: VALUE; LABEL: VALUE" when they differ.
+fn run_constants(plan: &ComparisonPlan) -> Vec<(&'static str, String)> {
+    const KEYS: [&str; 3] = [
+        "carbonic_acid_constants",
+        "hydrogen_fluoride_constant",
+        "total_boron",
+    ];
+    KEYS.into_iter()
+        .filter_map(|key| {
+            let values: Vec<(String, String)> = plan
+                .runs
+                .iter()
+                .filter_map(|r| Some((r.label.clone(), r.file.global_attribute(key)?)))
+                .collect();
+            if values.len() != plan.runs.len() {
+                return None;
+            }
+            let shared = values.iter().all(|(_, v)| *v == values[0].1);
+            let text = if shared {
+                values[0].1.clone()
+            } else {
+                values
+                    .iter()
+                    .map(|(label, v)| format!("{label}: {v}"))
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            };
+            Some((key, text))
+        })
+        .collect()
 }
