@@ -7,6 +7,12 @@
 # first checks itself on sound and broken probe files. CDO and NCO read them (scripts/check_with_cdo_nco.sh).
 # The saturation horizons and the corrosive-extent time series are recomputed from each output's
 # own fields by an independent reader (scripts/check_horizons.py, numpy and xarray).
+#
+# Then `acidscape compare` on the two pathways of the century run (and on two-year
+# terrain-following and curvilinear runs generated here): its window means, changes,
+# differences and regional CSV against an independent computation
+# (scripts/check_comparison.py: xarray, numpy, pandas), a run compared with itself giving 0,
+# and the same CF, CDO and NCO checks on its NetCDF output.
 # Sample runs: sample-grids/<run>/<pathway>/ if present, else generated (small, SYNTHETIC)
 # into a temporary directory by scripts/make_sample_grids.py.
 # Usage: scripts/check_outputs.sh [--keep]   (--keep leaves the temporary directory)
@@ -59,6 +65,52 @@ fi
 if [[ ${#outputs[@]} -gt 0 ]]; then
     echo "== CDO and NCO"
     scripts/check_with_cdo_nco.sh "${outputs[@]}" || failed=1
+fi
+
+# Pathway comparison: whole years are needed. The bundled century run spans 2015-2100; the
+# small generated one (no sample-grids/) 2015-2017.
+if [[ "$grids" == sample-grids ]]; then windows=(reference=2015-2034 late=2081-2100); else windows=(reference=2015 late=2017); fi
+window_options=(); for w in "${windows[@]}"; do window_options+=(--window "$w"); done
+compared=()
+run_compare() { # NAME, then compare's arguments
+    local name=$1; shift
+    if "$bin" compare "$@" -o "$work/$name.nc" --overwrite >"$work/$name.log" 2>&1; then
+        compared+=("$work/$name.nc")
+    else
+        echo "compare failed ($name):"; cat "$work/$name.log"; failed=1
+    fi
+}
+moderate="$work/century-pathway-moderate.nc"; steep="$work/century-pathway-steep.nc"
+if [[ -f $moderate && -f $steep ]]; then
+    run_compare compare-century moderate="$moderate" steep="$steep" again="$moderate" "${window_options[@]}" \
+        --statistics mean,min,max,p90 --emergence 'omega_aragonite:2sd:below'
+    echo "== compare checked by an independent computation (xarray, numpy, pandas)"
+    python3 scripts/check_comparison.py --run moderate="$moderate" --run steep="$steep" --run again="$moderate" \
+        "${window_options[@]}" --comparison "$work/compare-century.nc" --table "$work/compare-century.csv" \
+        --identical moderate,again | grep -v "^ok " || failed=1
+    run_compare compare-century-regions moderate="$moderate" steep="$steep" "${window_options[@]}" \
+        --regions sample-grids/varnholm-regions.toml --emergence 'omega_aragonite<2.5'
+fi
+# Two whole years of the terrain-following (360_day) and curvilinear (standard) layouts.
+python3 scripts/make_sample_grids.py --out "$work/years" --size 12 10 6 --steps 24 \
+    --runs terrain-following,curvilinear --quiet
+for run in terrain-following curvilinear; do
+    for pathway in pathway-moderate pathway-steep; do
+        "$bin" compute "$work/years/$run/$pathway/"*.nc -o "$work/years-$run-$pathway.nc" --overwrite \
+            >"$work/years-$run-$pathway.log" 2>&1 || { cat "$work/years-$run-$pathway.log"; failed=1; }
+    done
+done
+run_compare compare-terrain-following moderate="$work/years-terrain-following-pathway-moderate.nc" \
+    steep="$work/years-terrain-following-pathway-steep.nc" --window first=2050 --window second=2051 --statistics mean,p50
+run_compare compare-curvilinear moderate="$work/years-curvilinear-pathway-moderate.nc" \
+    steep="$work/years-curvilinear-pathway-steep.nc" --window first=2095 --window second=2096 --emergence 'ph<8'
+if [[ ${#compared[@]} -gt 0 ]]; then
+    for suite in cf:1.8 cf:1.10; do
+        echo "== compare outputs: external readers and compliance-checker $suite"
+        python3 scripts/check_external_readers.py "${compared[@]}" --cf-suite "$suite" | sed 's/data \[[^]]*\]/data [...]/' || failed=1
+    done
+    echo "== compare outputs: CDO and NCO"
+    scripts/check_with_cdo_nco.sh "${compared[@]}" || failed=1
 fi
 if [[ $failed -eq 0 ]]; then echo "check_outputs: all outputs pass"; else echo "check_outputs: FAILED"; fi
 exit $failed

@@ -22,6 +22,12 @@ Usage (from the repository root):
     # never commit it)
     python3 scripts/make_sample_grids.py --large /scratch/acidscape-bench
 
+    # pathway-comparison benchmark preset: the century layout on a 1-degree
+    # global grid (the gulf's invented geography stretched over the globe),
+    # 360 x 180 x 50 levels, 50 annual steps 2015-2064, lossless; ~4 GB per
+    # pathway, never commit it
+    python3 scripts/make_sample_grids.py --global-century /scratch/acidscape-compare
+
 Runs:
     cmip-style         rectilinear, z-levels positive down, one variable per
                        file split in time, CMIP/OMIP names and units, noleap
@@ -82,11 +88,21 @@ DEFAULT_SIZES = {"century": (30, 22, 15)}
 DEFAULT_STEPS = {"cmip-style": 12, "terrain-following": 6, "curvilinear": 4, "century": 86}
 LARGE_SIZE = (360, 180, 50)
 LARGE_STEPS = 12
+GLOBAL_CENTURY_STEPS = 50
+# Months averaged into each annual mean (the global preset keeps two to stay quick to write).
+ALL_MONTHS = tuple(range(1, 13))
+GLOBAL_MONTHS = (2, 8)
 
 
 # ----------------------------------------------------------------------------
 # Geography of the invented gulf (all in non-dimensional domain coordinates)
 # ----------------------------------------------------------------------------
+
+
+def use_global_domain():
+    """Stretches the invented gulf over the whole globe (1-degree benchmark grids)."""
+    global LON_WEST, LON_EAST, LAT_SOUTH, LAT_NORTH
+    LON_WEST, LON_EAST, LAT_SOUTH, LAT_NORTH = 0.0, 360.0, -90.0, 90.0
 
 
 def domain_fraction(lon, lat):
@@ -457,6 +473,7 @@ class Job:
     pathways: list
     quiet: bool
     lossless: bool
+    months: tuple = ALL_MONTHS
 
     def digits(self, digits):
         """Decimal places kept by quantisation, or None (keep every bit) for lossless output."""
@@ -806,10 +823,10 @@ class YearToYear:
             self.dic.append(4.0 * d)  # umol kg-1 at the surface
 
 
-def annual_mean_water(depth, geo, lat2, year, trend, eddies, year_index, variability):
-    """Mean of the twelve monthly states of a year, plus that year's invented anomalies."""
+def annual_mean_water(depth, geo, lat2, year, trend, eddies, year_index, variability, months_used=ALL_MONTHS):
+    """Mean of the monthly states of a year (all twelve unless told), plus that year's invented anomalies."""
     months = []
-    for month in range(1, 13):
+    for month in months_used:
         step = 12 * year_index + month - 1
         months.append(water_properties(depth, geo, lat2, month, year + (month - 0.5) / 12.0, trend,
                                        eddies.displacement(step), eddies.surface_anomaly(step)))
@@ -857,12 +874,65 @@ def write_century(job):
                     written.append(path)
                 for local, step in enumerate(range(first, stop)):
                     water = annual_mean_water(centres[:, None, None], geo, lat2, axis.years[step], trend, eddies,
-                                              step, variability)
+                                              step, variability, job.months)
                     for name, var in variables.items():
                         write(var, np.where(wet, cmip_values(name, water), np.nan).astype("f4"), local)
         written += write_cmip_fixed(folder, pathway, lon, lat, geo, job.history, "century")
         job.report("century", pathway, len(CMIP_VARIABLES))
+    written += write_region_mask(job.out / "century", lon, lat, geo, job.history)
     return written
+
+
+REGION_CLASSES = ("northern_shelf", "aske_river_plume_coast", "skerra_island_shelf", "open_basin")
+
+
+def region_classes(lon2, lat2, geo):
+    """Region of each column from the invented bathymetry and geography, flag values 1 to 4 in
+    this order: the shelf (<= 200 m) of the northern coast, the water within 220 km of the
+    Aske River mouth shallower than 1000 m, the shelf around Skerra Island, the basin deeper
+    than 1000 m; the first rule that holds decides; columns no rule holds are in no region."""
+    xn, yn = domain_fraction(lon2, lat2)
+    island_r = np.hypot((xn - ISLAND_CENTRE[0]) / ISLAND_RADII[0], (yn - ISLAND_CENTRE[1]) / ISLAND_RADII[1])
+    depth = np.where(geo.land, np.inf, geo.bottom_depth)
+    classes = np.zeros(lon2.shape, dtype="i1")
+    rules = [
+        (depth <= 200.0) & (yn >= 0.65),
+        (geo.river_distance_km <= 220.0) & (depth <= 1000.0),
+        (depth <= 200.0) & (island_r <= 3.0),
+        np.isfinite(depth) & (depth > 1000.0),
+    ]
+    for value, rule in reversed(list(enumerate(rules, start=1))):
+        classes = np.where(rule & ~geo.land, value, classes)
+    return classes
+
+
+def write_region_mask(folder, lon, lat, geo, history):
+    """An integer region mask on the run's grid (CF flag_values/flag_meanings), for
+    `acidscape compare --regions FILE`."""
+    path = folder / "varnholm-regions-mask.nc"
+    path.parent.mkdir(parents=True, exist_ok=True)
+    lon2, lat2 = np.meshgrid(lon, lat)
+    with netCDF4.Dataset(path, "w", format="NETCDF4") as ds:
+        ds.setncatts({
+            "Conventions": "CF-1.10",
+            "title": "Varnholm Gulf synthetic regions (integer mask)",
+            "comment": SYNTHETIC_COMMENT,
+            "institution": "acidscape sample data (synthetic)",
+            "source": "scripts/make_sample_grids.py",
+            "history": history,
+            "scenario": SCENARIO,
+        })
+        add_rectilinear_horizontal(ds, lon, lat)
+        var = ds.createVariable("region", "i1", ("lat", "lon"), zlib=True, complevel=6, fill_value=np.int8(-1))
+        var.setncatts({
+            "long_name": "region of the Varnholm Gulf (synthetic)",
+            "flag_values": np.arange(1, len(REGION_CLASSES) + 1, dtype="i1"),
+            "flag_meanings": " ".join(REGION_CLASSES),
+            "comment": " ".join(region_classes.__doc__.split()),
+        })
+        classes = region_classes(lon2, lat2, geo)
+        var[:] = np.ma.masked_equal(classes, 0)
+    return [path]
 
 
 WRITERS = {
@@ -887,6 +957,9 @@ def parse_args(argv):
     parser.add_argument("--large", type=Path, metavar="DIR",
                         help=f"benchmark preset: {LARGE_SIZE[0]}x{LARGE_SIZE[1]}x{LARGE_SIZE[2]}, {LARGE_STEPS} steps, "
                              "cmip-style only, written to DIR (do not commit)")
+    parser.add_argument("--global-century", type=Path, metavar="DIR",
+                        help="benchmark preset for pathway comparisons: century run on a 1-degree global grid, "
+                             "360x180x50, 50 annual steps (or --steps N), lossless (~4 GB per pathway; do not commit)")
     parser.add_argument("--pathways", default=",".join(PATHWAYS),
                         help=f"comma-separated subset of {', '.join(PATHWAYS)} (default both)")
     parser.add_argument("--lossless", action="store_true",
@@ -898,8 +971,16 @@ def parse_args(argv):
             parser.error("--large sets its own output, size and steps; do not combine it with --out/--size/--steps")
         args.out, args.size, args.steps, args.runs = args.large, list(LARGE_SIZE), LARGE_STEPS, "cmip-style"
         args.lossless = True
+    args.months = ALL_MONTHS
+    if args.global_century is not None:
+        if args.out is not None or args.size is not None or args.large is not None:
+            parser.error("--global-century sets its own output and size; do not combine it with --out/--size/--large")
+        args.out, args.size, args.runs = args.global_century, list(LARGE_SIZE), "century"
+        args.steps = args.steps or GLOBAL_CENTURY_STEPS
+        args.lossless, args.months = True, GLOBAL_MONTHS
+        use_global_domain()
     if args.out is None:
-        parser.error("give --out DIR (or --large DIR)")
+        parser.error("give --out DIR (or --large DIR, or --global-century DIR)")
     runs = [r.strip() for r in args.runs.split(",") if r.strip()]
     unknown = [r for r in runs if r not in WRITERS]
     if unknown or not runs:
@@ -923,12 +1004,13 @@ def main(argv=None):
     options += ["--steps", str(args.steps)] if args.steps else []
     options += ["--runs", ",".join(args.runs), "--pathways", ",".join(args.pathways)]
     options += ["--lossless"] if args.lossless else []
+    options += ["--global-century"] if args.global_century is not None else []
     history = "scripts/make_sample_grids.py " + " ".join(options)
     written = []
     for run in args.runs:
         size = tuple(args.size or DEFAULT_SIZES.get(run, DEFAULT_SIZE))
         job = Job(args.out, size, args.steps or DEFAULT_STEPS[run], history, args.pathways, args.quiet,
-                  args.lossless)
+                  args.lossless, args.months)
         written += WRITERS[run](job)
     total = sum(p.stat().st_size for p in written)
     print(f"wrote {len(written)} files, {total / 1e6:.2f} MB, under {args.out}")

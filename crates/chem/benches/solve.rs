@@ -1,6 +1,10 @@
-//! Full speciation from (TA, DIC) with pressure corrections, over varied ocean cells (synthetic inputs).
+//! Full speciation from (TA, DIC) with pressure corrections, over varied ocean cells (synthetic
+//! inputs): one cell at a time through `solve`, and the same cells as one block through
+//! `solve_cells` with every quantity requested.
 
-use acidscape_chem::{equilibrium_constants, solve, Conditions, ConstantChoice, InputPair};
+use acidscape_chem::{
+    equilibrium_constants, solve, solve_cells, Conditions, ConstantChoice, InputPair,
+};
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::hint::black_box;
 
@@ -35,6 +39,15 @@ fn bench_solve(c: &mut Criterion) {
                 }
             }
             sum
+        })
+    });
+    let block = common::CellBlock::new(&cells);
+    let mut results = common::Results::new(cells.len());
+    group.bench_function("solve_cells_ta_dic_1024_cells", |b| {
+        b.iter(|| {
+            let mut outputs = results.every_quantity();
+            solve_cells(black_box(&block.inputs()), &choice, &mut outputs).unwrap();
+            results.omega_aragonite()[0]
         })
     });
     group.finish();

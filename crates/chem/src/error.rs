@@ -1,5 +1,6 @@
 //! Errors are values: bad input and samples with no physical solution.
 
+use crate::real::Real;
 use std::fmt;
 
 /// Why a sample could not be solved. Messages name the field and what was expected.
@@ -35,6 +36,30 @@ impl fmt::Display for ChemError {
 }
 
 impl std::error::Error for ChemError {}
+
+/// The values of one input that the solver accepts at all: `[min, max]`, finite bounds.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Accepted {
+    pub field: &'static str,
+    pub min: f64,
+    pub max: f64,
+    /// What was expected, with units, for the error message.
+    pub expected: &'static str,
+}
+
+impl Accepted {
+    /// The value, or the error naming the field and what was expected.
+    #[inline(always)]
+    pub(crate) fn check(&self, value: f64) -> Result<f64, ChemError> {
+        check_range(self.field, value, self.min, self.max, self.expected)
+    }
+
+    /// Per cell, whether [`Accepted::check`] would accept the value.
+    #[inline(always)]
+    pub(crate) fn contains<T: Real>(&self, value: T) -> T::Mask {
+        T::le(T::from(self.min), value) & T::le(value, T::from(self.max))
+    }
+}
 
 /// Rejects NaN, infinities and values outside `[min, max]` (finite bounds: NaN fails both
 /// comparisons, infinities fail one).

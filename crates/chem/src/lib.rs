@@ -24,18 +24,33 @@
 //!   from the carbonate-borate cubic start) inside the always-valid bracket of Munhoven 2013, with
 //!   bisection fallback; DIC+pH, TA+pH and DIC+pCO2 in closed form.
 //! - Revelle factor: analytical ∂ln pCO2/∂ln DIC at constant alkalinity.
+//!
+//! # Many cells
+//! [`solve_cells`] solves blocks of cells from alkalinity and DIC (slices in, slices out) with
+//! the same formulas as [`solve`], several cells per instruction (SIMD lanes, the widest
+//! instruction set the CPU has, chosen at run time); any cell the lanes cannot finish is handed
+//! to [`solve`], so results agree with it to within 1e-10 relative and statuses exactly.
 
+// Lets the synthetic-cell helpers shared with the benches and tests name this crate in unit tests.
+#[cfg(test)]
+extern crate self as acidscape_chem;
+
+mod batch;
 mod choice;
 pub mod constants;
 mod error;
+mod lanes;
+mod real;
 mod solver;
 mod speciation;
 mod uncertainty;
 mod validity;
 
+pub use batch::{solve_cells, CellInputs, CellOutputs, CellStatus, LengthMismatch};
 pub use choice::{BoronTotal, CarbonicSet, ConstantChoice, FluorideSet, UnknownKey, FIXED_SOURCES};
 pub use constants::{equilibrium_constants, EquilibriumConstants};
 pub use error::ChemError;
+pub use real::Real;
 pub use speciation::{solve, solve_with_constants};
 pub use uncertainty::{
     sensitivities, standard_uncertainties, uncertainty_budget, ConstantUncertainties,

@@ -1,55 +1,62 @@
 //! Solving each input pair and assembling the full speciation.
 
 use crate::constants::{constants_unchecked, validate_conditions, EquilibriumConstants};
-use crate::error::{check_range, ChemError};
-use crate::solver::{solve_alkalinity, CarbonFixed, NonCarbonate};
+use crate::error::{Accepted, ChemError};
+use crate::real::Real;
+use crate::solver::{solve_alkalinity, CarbonFixed, Contributions, NonCarbonate};
 use crate::{Conditions, ConstantChoice, InputPair, Solution};
 
 /// µmol kg-1 per mol kg-1.
-const MICRO: f64 = 1e6;
+pub(crate) const MICRO: f64 = 1e6;
 /// Highest concentration accepted \[µmol kg-1\] (50 mmol kg-1, far beyond any seawater).
 const MAX_CONCENTRATION: f64 = 50_000.0;
 /// pH (total scale) range accepted as input and as a solution; outside it the pair describes no seawater.
 const PH_RANGE: (f64, f64) = (3.0, 12.0);
 
-fn check_alkalinity(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "alkalinity",
-        value,
-        0.0,
-        MAX_CONCENTRATION,
-        "total alkalinity between 0 and 50000 µmol kg-1",
-    )
+/// Total alkalinity the solver accepts \[µmol kg-1\].
+pub(crate) const ACCEPTED_ALKALINITY: Accepted = Accepted {
+    field: "alkalinity",
+    min: 0.0,
+    max: MAX_CONCENTRATION,
+    expected: "total alkalinity between 0 and 50000 µmol kg-1",
+};
+
+/// DIC the solver accepts \[µmol kg-1\].
+pub(crate) const ACCEPTED_DIC: Accepted = Accepted {
+    field: "dic",
+    min: 1e-6,
+    max: MAX_CONCENTRATION,
+    expected: "dissolved inorganic carbon above 0 and at most 50000 µmol kg-1",
+};
+
+const ACCEPTED_PH: Accepted = Accepted {
+    field: "ph_total",
+    min: PH_RANGE.0,
+    max: PH_RANGE.1,
+    expected: "pH (total scale) between 3 and 12",
+};
+
+const ACCEPTED_PCO2: Accepted = Accepted {
+    field: "pco2_uatm",
+    min: 1e-6,
+    max: 1e6,
+    expected: "pCO2 above 0 and at most 1000000 µatm",
+};
+
+pub(crate) fn check_alkalinity(value: f64) -> Result<f64, ChemError> {
+    ACCEPTED_ALKALINITY.check(value)
 }
 
-fn check_dic(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "dic",
-        value,
-        1e-6,
-        MAX_CONCENTRATION,
-        "dissolved inorganic carbon above 0 and at most 50000 µmol kg-1",
-    )
+pub(crate) fn check_dic(value: f64) -> Result<f64, ChemError> {
+    ACCEPTED_DIC.check(value)
 }
 
 fn check_ph(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "ph_total",
-        value,
-        PH_RANGE.0,
-        PH_RANGE.1,
-        "pH (total scale) between 3 and 12",
-    )
+    ACCEPTED_PH.check(value)
 }
 
 fn check_pco2(value: f64) -> Result<f64, ChemError> {
-    check_range(
-        "pco2_uatm",
-        value,
-        1e-6,
-        1e6,
-        "pCO2 above 0 and at most 1000000 µatm",
-    )
+    ACCEPTED_PCO2.check(value)
 }
 
 /// Solves the carbonate system of one sample from any input pair with the chosen constants.
@@ -140,7 +147,8 @@ fn solve_given(
 }
 
 /// pH = -log10 \[H+\] (common practice), any scale.
-fn ph_from_h(h: f64) -> f64 {
+#[inline(always)]
+fn ph_from_h<T: Real>(h: T) -> T {
     -h.ln() * std::f64::consts::LOG10_E
 }
 
@@ -196,23 +204,36 @@ fn h_from_dic_co2(
     Ok((k.k1 + (k.k1 * k.k1 + 4.0 * k.k1 * k.k2 * excess).sqrt()) / (2.0 * excess))
 }
 
+/// Every output of the speciation at one \[H+\], in the units of [`Solution`] (µmol kg-1, µatm),
+/// for one sample or a lane of cells.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Speciation<T: Real> {
+    pub h_total: T,
+    pub ph_total: T,
+    pub ph_seawater: T,
+    pub ph_free: T,
+    pub dic: T,
+    pub alkalinity: T,
+    pub co2: T,
+    pub bicarbonate: T,
+    pub carbonate: T,
+    pub pco2_uatm: T,
+    pub fco2_uatm: T,
+    pub omega_aragonite: T,
+    pub omega_calcite: T,
+    pub revelle_factor: T,
+    /// Non-carbonate alkalinity contributions \[µmol kg-1\].
+    pub parts: Contributions<T>,
+}
+
 /// Full speciation at total-scale \[H+\] = h and DIC \[mol kg-1\].
-fn speciate(
-    h: f64,
-    dic: f64,
-    iterations: u32,
-    k: &EquilibriumConstants,
-    others: &NonCarbonate,
-) -> Result<Solution, ChemError> {
-    // ln then scale: glibc's ln takes 51 instructions a call here, its log10 88 (callgrind).
-    let ph_total = ph_from_h(h);
-    if !(ph_total >= PH_RANGE.0 && ph_total <= PH_RANGE.1) {
-        return Err(ChemError::NoSolution {
-            reason: format!(
-                "the inputs give pH {ph_total:.2} (total scale), outside the 3-12 of any seawater: check that alkalinity and DIC (or pH, pCO2) belong together and are in µmol kg-1"
-            ),
-        });
-    }
+#[inline(always)]
+pub(crate) fn speciation<T: Real>(
+    h: T,
+    dic: T,
+    k: &EquilibriumConstants<T>,
+    others: &NonCarbonate<T>,
+) -> Speciation<T> {
     let k12 = k.k1 * k.k2;
     let denominator = h * h + k.k1 * h + k12;
     let dic_over_denominator = dic / denominator;
@@ -228,11 +249,12 @@ fn speciate(
     // (dh/dDIC), x0 = h²/D the CO2* fraction, D = h² + K1 h + K1K2. With dTA = 0, dh/dDIC =
     // -(carbonate alkalinity/DIC)/TA'(h), and d ln x0/dh = 2/h - D'/D = (K1 h + 2 K1K2)/(h D);
     // carbonate alkalinity is DIC (K1 h + 2 K1K2)/D, so the factor is 1 - (CA/DIC)(CA)/(h TA').
-    let revelle_factor = 1.0 - at_h.carbonate * at_h.carbonate / (dic * h * at_h.slope);
+    let revelle_factor = T::from(1.0) - at_h.carbonate * at_h.carbonate / (dic * h * at_h.slope);
 
-    let solution = Solution {
+    Speciation {
         h_total: h,
-        ph_total,
+        // ln then scale: glibc's ln takes 51 instructions a call here, its log10 88 (callgrind).
+        ph_total: ph_from_h(h),
         ph_seawater: ph_from_h(h / k.seawater_to_total),
         ph_free: ph_from_h(h / k.free_to_total),
         dic: dic * MICRO,
@@ -245,57 +267,122 @@ fn speciate(
         omega_aragonite: k.calcium * carbonate / k.ksp_aragonite,
         omega_calcite: k.calcium * carbonate / k.ksp_calcite,
         revelle_factor,
-        alk_borate: parts.borate * MICRO,
-        alk_hydroxide: parts.hydroxide * MICRO,
-        alk_phosphate: parts.phosphate * MICRO,
-        alk_silicate: parts.silicate * MICRO,
-        alk_hydrogen_sulfate: parts.hydrogen_sulfate * MICRO,
-        alk_hydrogen_fluoride: parts.hydrogen_fluoride * MICRO,
-        alk_free_hydrogen: parts.free_hydrogen * MICRO,
-        iterations,
-        validity: k.validity,
-    };
-    if !all_finite(&solution) {
+        parts: Contributions {
+            borate: parts.borate * MICRO,
+            hydroxide: parts.hydroxide * MICRO,
+            phosphate: parts.phosphate * MICRO,
+            silicate: parts.silicate * MICRO,
+            free_hydrogen: parts.free_hydrogen * MICRO,
+            hydrogen_sulfate: parts.hydrogen_sulfate * MICRO,
+            hydrogen_fluoride: parts.hydrogen_fluoride * MICRO,
+        },
+    }
+}
+
+impl<T: Real> Speciation<T> {
+    /// pH (total scale) inside the 3-12 of any seawater.
+    #[inline(always)]
+    pub(crate) fn ph_in_range(&self) -> T::Mask {
+        T::le(T::from(PH_RANGE.0), self.ph_total) & T::le(self.ph_total, T::from(PH_RANGE.1))
+    }
+
+    /// Every output finite (the total-scale pH is covered by [`Self::ph_in_range`]).
+    #[inline(always)]
+    pub(crate) fn all_finite(&self) -> T::Mask {
+        let outputs = [
+            self.h_total,
+            self.ph_seawater,
+            self.ph_free,
+            self.dic,
+            self.alkalinity,
+            self.co2,
+            self.bicarbonate,
+            self.carbonate,
+            self.pco2_uatm,
+            self.fco2_uatm,
+            self.omega_aragonite,
+            self.omega_calcite,
+            self.revelle_factor,
+        ];
+        let mut all = self.h_total.is_finite();
+        for value in outputs {
+            all = all & value.is_finite();
+        }
+        for value in self.parts.each() {
+            all = all & value.is_finite();
+        }
+        all
+    }
+
+    /// Derived DIC and alkalinity no larger than any input may be.
+    #[inline(always)]
+    pub(crate) fn within_concentration_limit(&self) -> T::Mask {
+        let limit = T::from(MAX_CONCENTRATION);
+        T::le(self.dic, limit) & T::le(self.alkalinity.abs(), limit)
+    }
+
+    /// All three tests: the state is seawater, or [`speciate`] explains why not.
+    #[inline(always)]
+    pub(crate) fn is_seawater(&self) -> T::Mask {
+        self.ph_in_range() & self.all_finite() & self.within_concentration_limit()
+    }
+}
+
+/// Full speciation at total-scale \[H+\] = h and DIC \[mol kg-1\], or why it is no seawater.
+fn speciate(
+    h: f64,
+    dic: f64,
+    iterations: u32,
+    k: &EquilibriumConstants,
+    others: &NonCarbonate,
+) -> Result<Solution, ChemError> {
+    let s = speciation(h, dic, k, others);
+    if !s.ph_in_range() {
+        return Err(ChemError::NoSolution {
+            reason: format!(
+                "the inputs give pH {:.2} (total scale), outside the 3-12 of any seawater: check that alkalinity and DIC (or pH, pCO2) belong together and are in µmol kg-1",
+                s.ph_total
+            ),
+        });
+    }
+    if !s.all_finite() {
         return Err(ChemError::NoSolution {
             reason: "the speciation overflowed (non-finite result): inputs far outside seawater"
                 .to_string(),
         });
     }
     // A derived DIC or alkalinity beyond what any input may be is no seawater either.
-    if solution.dic > MAX_CONCENTRATION || solution.alkalinity.abs() > MAX_CONCENTRATION {
+    if !s.within_concentration_limit() {
         return Err(ChemError::NoSolution {
             reason: format!(
                 "the inputs imply DIC {:.0} and alkalinity {:.0} µmol kg-1, beyond the 50000 µmol kg-1 of any seawater: check the pH or pCO2",
-                solution.dic, solution.alkalinity
+                s.dic, s.alkalinity
             ),
         });
     }
-    Ok(solution)
-}
-
-fn all_finite(s: &Solution) -> bool {
-    [
-        s.h_total,
-        s.ph_seawater,
-        s.ph_free,
-        s.dic,
-        s.alkalinity,
-        s.co2,
-        s.bicarbonate,
-        s.carbonate,
-        s.pco2_uatm,
-        s.fco2_uatm,
-        s.omega_aragonite,
-        s.omega_calcite,
-        s.revelle_factor,
-        s.alk_borate,
-        s.alk_hydroxide,
-        s.alk_phosphate,
-        s.alk_silicate,
-        s.alk_hydrogen_sulfate,
-        s.alk_hydrogen_fluoride,
-        s.alk_free_hydrogen,
-    ]
-    .iter()
-    .all(|v| v.is_finite())
+    Ok(Solution {
+        h_total: s.h_total,
+        ph_total: s.ph_total,
+        ph_seawater: s.ph_seawater,
+        ph_free: s.ph_free,
+        dic: s.dic,
+        alkalinity: s.alkalinity,
+        co2: s.co2,
+        bicarbonate: s.bicarbonate,
+        carbonate: s.carbonate,
+        pco2_uatm: s.pco2_uatm,
+        fco2_uatm: s.fco2_uatm,
+        omega_aragonite: s.omega_aragonite,
+        omega_calcite: s.omega_calcite,
+        revelle_factor: s.revelle_factor,
+        alk_borate: s.parts.borate,
+        alk_hydroxide: s.parts.hydroxide,
+        alk_phosphate: s.parts.phosphate,
+        alk_silicate: s.parts.silicate,
+        alk_hydrogen_sulfate: s.parts.hydrogen_sulfate,
+        alk_hydrogen_fluoride: s.parts.hydrogen_fluoride,
+        alk_free_hydrogen: s.parts.free_hydrogen,
+        iterations,
+        validity: k.validity,
+    })
 }

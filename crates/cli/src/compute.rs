@@ -167,7 +167,7 @@ fn stop_on_signals() -> Result<StopRequest, Box<dyn Error>> {
 }
 
 /// The command line as typed, quoted where needed, for the history attribute.
-fn command_line() -> String {
+pub(crate) fn command_line() -> String {
     std::env::args()
         .map(|arg| {
             if arg.is_empty() || arg.contains(|c: char| c.is_whitespace() || "'\"$*?".contains(c)) {

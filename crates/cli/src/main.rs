@@ -1,8 +1,10 @@
 //! The `acidscape` command: a thin layer of clap options over the library crates.
 //! Each subcommand module exposes its clap `...Args` and `run(&Args) -> Result<(), Box<dyn std::error::Error>>`.
 
+mod compare;
 mod compute;
 mod describe;
+mod draw;
 mod run_options;
 mod samples;
 
@@ -43,6 +45,13 @@ enum Command {
     /// Compute indicator fields for a whole model run and write CF NetCDF
     #[command(after_help = CAUTIONS)]
     Compute(compute::ComputeArgs),
+    /// Compare runs (pathways, or a run and its control) over windows of years, by region,
+    /// with time of emergence, from outputs of `compute`
+    #[command(after_help = format!("{CAUTIONS}\n\n{}", compare::COMPARE_CAUTIONS))]
+    Compare(compare::CompareArgs),
+    /// Draw PNG figures (maps, sections, regional time series) from outputs of `compute` and
+    /// `compare`
+    Draw(draw::DrawArgs),
 }
 
 fn main() -> ExitCode {
@@ -51,6 +60,8 @@ fn main() -> ExitCode {
         Command::Samples(args) => samples::run(&args),
         Command::Describe(args) => describe::run(&args),
         Command::Compute(args) => compute::run(&args),
+        Command::Compare(args) => compare::run(&args),
+        Command::Draw(args) => draw::run(&args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

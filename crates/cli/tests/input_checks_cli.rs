@@ -8,18 +8,6 @@ use std::process::{Command, Output};
 
 const BIN: &str = env!("CARGO_BIN_EXE_acidscape");
 
-/// Held by each test: the tests write NetCDF-4 files in this process while others spawn
-/// acidscape, and a child inherits (HDF5 does not open files close-on-exec) a descriptor,
-/// with its HDF5 file lock, of a file another test is writing, which that test's own child
-/// then cannot open.
-static ONE_AT_A_TIME: std::sync::Mutex<()> = std::sync::Mutex::new(());
-
-fn one_at_a_time() -> std::sync::MutexGuard<'static, ()> {
-    ONE_AT_A_TIME
-        .lock()
-        .unwrap_or_else(std::sync::PoisonError::into_inner)
-}
-
 fn sample_copy(dir: &Path) -> Vec<PathBuf> {
     common::copy_sample_run(dir)
 }
@@ -42,7 +30,7 @@ fn text(bytes: &[u8]) -> String {
 
 #[test]
 fn describe_reports_implausible_inputs_and_compute_refuses_them_unless_accepted() {
-    let _serial = one_at_a_time();
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_copy(dir.path());
     // The second half-year of alkalinity labelled mmol m-3 while it holds mol m-3.
@@ -102,7 +90,7 @@ fn describe_reports_implausible_inputs_and_compute_refuses_them_unless_accepted(
 
 #[test]
 fn describe_shows_the_sampling_and_absent_nutrients() {
-    let _serial = one_at_a_time();
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs: Vec<PathBuf> = sample_copy(dir.path())
         .into_iter()
@@ -132,7 +120,7 @@ fn shift_time(path: &Path, days: f64) {
 
 #[test]
 fn a_gap_is_refused_unless_the_run_is_declared_irregular() {
-    let _serial = one_at_a_time();
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_copy(dir.path());
     // The second half-year of every variable moved on by 61 days: July and August are

@@ -12,6 +12,7 @@ pub(crate) enum TickKind {
     Number,
     Longitude,
     Latitude,
+    /// Whole-number steps, labels without decimals (years; any whole-number field).
     Year,
 }
 

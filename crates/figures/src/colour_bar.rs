@@ -26,7 +26,12 @@ impl<'a> ColourBar<'a> {
     /// A bar spanning `length` pixels (end triangles included).
     pub(crate) fn new(style: &Style, scale: &'a ColourScale, label: String, length: f64) -> Self {
         let gradient = length - 2.0 * bar_thickness(style);
-        let spec = AxisSpec::new(TickKind::Number, (scale.low(), scale.high()), None);
+        let kind = if scale.whole_numbers() {
+            TickKind::Year
+        } else {
+            TickKind::Number
+        };
+        let spec = AxisSpec::new(kind, (scale.low(), scale.high()), None);
         let axis = fit_axis(&spec, gradient, false, &style.label);
         Self { scale, label, axis }
     }

@@ -27,6 +27,11 @@ pub struct MapSpec {
     pub text: Captions,
     pub colouring: Colouring,
     pub contour: Option<ContourLevel>,
+    /// The field the contour is drawn on (ny × nx), when it is not the map's own values (e.g.
+    /// surface Ω on a map of horizon depth).
+    pub contour_values: Option<Vec<f64>>,
+    /// Legend text for the grey of missing cells.
+    pub missing_label: String,
     pub page: PageSize,
 }
 
@@ -38,6 +43,8 @@ impl MapSpec {
             text,
             colouring: Colouring::default(),
             contour: None,
+            contour_values: None,
+            missing_label: "land or no data".to_string(),
             page: PageSize::default(),
         }
     }
@@ -86,8 +93,10 @@ pub fn render_map(grid: &MapGrid, values: &[f64], spec: &MapSpec) -> Result<Figu
             label: contour.label.clone(),
         });
     }
+    let contoured = spec.contour_values.as_deref().unwrap_or(values);
+    FigureError::check_len("map contour values", ny * nx, contoured.len())?;
     if values.iter().any(|v| !v.is_finite()) {
-        legend.push(LegendEntry::missing("land or no data"));
+        legend.push(LegendEntry::missing(&spec.missing_label));
     }
     let frame = Frame::lay_out(
         &style,
@@ -104,7 +113,7 @@ pub fn render_map(grid: &MapGrid, values: &[f64], spec: &MapSpec) -> Result<Figu
     paint_figure(frame.size, spec.page.dpi, |area| {
         paint_cells(area, &frame.panel, &plane, values, &scale)?;
         if let Some(contour) = &spec.contour {
-            for line in contour_lines(values, (ny, nx), contour.level) {
+            for line in contour_lines(contoured, (ny, nx), contour.level) {
                 let pixels: Vec<(f64, f64)> = line
                     .iter()
                     .map(|&(fj, fi)| plane.at_index(fj, fi))

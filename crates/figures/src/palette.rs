@@ -105,6 +105,7 @@ pub struct ColourScale {
     high: f64,
     values_below: bool,
     values_above: bool,
+    whole_numbers: bool,
 }
 
 impl ColourScale {
@@ -154,6 +155,7 @@ impl ColourScale {
             high,
             values_below: valid[0] < low,
             values_above: valid[valid.len() - 1] > high,
+            whole_numbers: valid.iter().all(|v| v.fract() == 0.0),
         })
     }
 
@@ -173,6 +175,11 @@ impl ColourScale {
     /// Some values lie above the range.
     pub fn values_above(&self) -> bool {
         self.values_above
+    }
+
+    /// Every valid value is a whole number (years, counts): ticks step by whole numbers.
+    pub fn whole_numbers(&self) -> bool {
+        self.whole_numbers
     }
 
     /// Position of `value` along the palette, clamped to 0…1.
@@ -236,6 +243,15 @@ mod tests {
         let scale = ColourScale::for_values(Palette::PurpleOrange, &values, range).unwrap();
         assert_eq!((scale.low(), scale.high()), (-0.3, 0.3));
         assert_eq!(scale.colour(0.0), Palette::PurpleOrange.at(0.5));
+    }
+
+    #[test]
+    fn whole_number_fields_are_known() {
+        let years = [2036.0, 2041.0, f64::NAN];
+        let scale = ColourScale::for_values(Palette::Viridis, &years, ColourRange::default());
+        assert!(scale.unwrap().whole_numbers());
+        let scale = ColourScale::for_values(Palette::Viridis, &[1.5, 2.0], ColourRange::default());
+        assert!(!scale.unwrap().whole_numbers());
     }
 
     #[test]

@@ -114,6 +114,20 @@ fn deepest_data(columns: &[SectionColumn]) -> f64 {
         .fold(0.0, f64::max)
 }
 
+/// Whether any grey shows: a missing value, a column ending above the panel's bottom, or a
+/// gap between columns.
+fn shows_missing(columns: &[SectionColumn], depth: f64) -> bool {
+    let missing = columns.iter().any(|c| {
+        let shown = c.interfaces.iter().take_while(|&&d| d < depth).count();
+        let bottom = c.interfaces.last().copied().unwrap_or(0.0);
+        c.values.iter().take(shown).any(|v| !v.is_finite()) || bottom.is_nan() || bottom < depth
+    });
+    let gaps = columns
+        .windows(2)
+        .any(|w| (w[0].x_end - w[1].x_start).abs() > 1e-9);
+    missing || gaps
+}
+
 /// Draws a section of `columns` with its horizon lines.
 pub fn render_section(
     columns: &[SectionColumn],
@@ -154,7 +168,9 @@ pub fn render_section(
             label: line.label.clone(),
         })
         .collect();
-    legend.push(LegendEntry::missing("below the sea floor or no data"));
+    if shows_missing(columns, depth) {
+        legend.push(LegendEntry::missing("below the sea floor or no data"));
+    }
     let frame = Frame::lay_out(
         &style,
         FrameSpec {

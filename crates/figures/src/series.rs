@@ -119,8 +119,12 @@ pub fn render_series(series: &[Series], spec: &SeriesSpec) -> Result<Figure, Fig
         (x_range.0 - 1.0, x_range.1 + 1.0)
     };
     let values = series.iter().flat_map(|s| s.values.iter().copied());
-    let y_range =
+    let mut y_range =
         span(values, 0.06).ok_or_else(|| FigureError::input("time series: no valid values"))?;
+    if series.iter().any(|s| s.emergence_year.is_some()) {
+        // Headroom for the years of emergence written along the top of the panel.
+        y_range.1 += 0.12 * (y_range.1 - y_range.0);
+    }
     let n = series.len();
     let mut legend: Vec<LegendEntry> = series
         .iter()

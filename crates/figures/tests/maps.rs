@@ -195,6 +195,36 @@ fn contour_pixels_lie_between_the_cells_either_side_of_the_level() {
 }
 
 #[test]
+fn a_contour_can_follow_another_field_than_the_colours() {
+    // Colours: a constant; contour: the column index at 6.5 (e.g. surface Ω on a horizon map).
+    let (lons, lats) = gulf_axes();
+    let grid = one_degree_grid(&lons, &lats);
+    let cells = lons.len() * lats.len();
+    let mut spec = fixed_spec(0.0, 11.0);
+    spec.contour = Some(ContourLevel {
+        level: 6.5,
+        label: "other field = 6.5".into(),
+    });
+    spec.contour_values = Some((0..cells).map(|k| (k % lons.len()) as f64).collect());
+    spec.missing_label = "no horizon".into();
+    let figure = render_map(&grid, &vec![2.0; cells], &spec).unwrap();
+    let panel = figure.layout().panel;
+    let (left, _) = panel.to_pixel(lons[6], 0.0);
+    let (right, _) = panel.to_pixel(lons[7], 0.0);
+    let inner = panel.area;
+    let y = ((inner.top + inner.bottom) / 2.0) as u32;
+    let ink: Vec<f64> = ((inner.left as u32 + 4)..(inner.right as u32 - 4))
+        .filter(|&x| is_ink(figure.pixel(x, y).unwrap()))
+        .map(f64::from)
+        .collect();
+    assert!(!ink.is_empty(), "no contour drawn");
+    assert!(ink.iter().all(|&x| x > left && x < right), "{ink:?}");
+    spec.contour_values = Some(vec![0.0; 3]);
+    let err = render_map(&grid, &vec![2.0; cells], &spec).unwrap_err();
+    assert!(err.to_string().contains("map contour values"), "{err}");
+}
+
+#[test]
 fn the_title_is_drawn_with_the_bundled_font() {
     let (lons, lats) = gulf_axes();
     let grid = one_degree_grid(&lons, &lats);

@@ -36,6 +36,23 @@ fn spec() -> SectionSpec {
 }
 
 #[test]
+fn grey_is_explained_only_when_it_shows() {
+    // A 4 × 4 block of grey (anti-aliased text has a few grey pixels of its own).
+    let has_grey = |figure: &acidscape_figures::Figure| {
+        let grey = |x: u32, y: u32| figure.pixel(x, y) == Some(MISSING_GREY);
+        (0..figure.height().saturating_sub(4)).any(|y| {
+            (0..figure.width().saturating_sub(4))
+                .any(|x| (0..4).all(|d| (0..4).all(|e| grey(x + d, y + e))))
+        })
+    };
+    // The last column ends at 300 m: grey below it, and its legend swatch.
+    assert!(has_grey(&render_section(&columns(), &spec()).unwrap()));
+    // Every column full to the bottom: no grey anywhere, legend included.
+    let full: Vec<SectionColumn> = columns().into_iter().take(3).collect();
+    assert!(!has_grey(&render_section(&full, &spec()).unwrap()));
+}
+
+#[test]
 fn depth_runs_downwards_and_cells_take_their_colours() {
     let figure = render_section(&columns(), &spec()).unwrap();
     let panel = figure.layout().panel;

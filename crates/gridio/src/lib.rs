@@ -19,6 +19,7 @@ mod conversion;
 mod discovery;
 mod error;
 mod grid;
+mod indicator_file;
 mod integrity;
 mod mapping;
 mod native;
@@ -37,6 +38,11 @@ pub use catalog::silence_hdf5_diagnostics;
 pub use cell_geometry::{CellGeometry, ColumnField, VerticalCells};
 pub use cell_outlines::CellOutlines;
 pub use error::{GridError, Result};
+pub use indicator_file::{
+    bounds_between, CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid,
+    IndicatorFile, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate, CELL_AREA,
+    CELL_THICKNESS, SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
+};
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
 

@@ -10,7 +10,7 @@ use netcdf::types::NcVariableType;
 use netcdf::{AttributeValue, Extent};
 use std::ops::Range;
 
-fn write_error(variable: &str, e: netcdf::Error) -> GridError {
+pub(crate) fn write_error(variable: &str, e: netcdf::Error) -> GridError {
     GridError::Write {
         variable: variable.to_string(),
         message: e.to_string(),
@@ -18,7 +18,7 @@ fn write_error(variable: &str, e: netcdf::Error) -> GridError {
 }
 
 /// Defines a dimension unless the output has it already with the same length.
-fn ensure_dim(out: &mut netcdf::FileMut, name: &str, len: usize) -> Result<()> {
+pub(crate) fn ensure_dim(out: &mut netcdf::FileMut, name: &str, len: usize) -> Result<()> {
     match out.dimension(name).map(|d| d.len()) {
         Some(existing) if existing == len => Ok(()),
         Some(existing) => Err(GridError::Write {
@@ -86,7 +86,7 @@ fn copy_attributes(
 }
 
 /// Copies a time-independent variable (same type, dims, attributes, values).
-fn copy_static(file: &InputFile, name: &str, out: &mut netcdf::FileMut) -> Result<()> {
+pub(crate) fn copy_static(file: &InputFile, name: &str, out: &mut netcdf::FileMut) -> Result<()> {
     if out.variable(name).is_some() {
         return Ok(());
     }

@@ -271,30 +271,41 @@ impl VarSource {
             extents.push(extent);
             sizes.push(size);
         }
-        let read_error = |e: netcdf::Error| GridError::Read {
-            file: path.to_path_buf(),
-            variable: self.name.clone(),
-            message: e.to_string(),
-        };
-        // float32 data are read as stored and widened here, outside libnetcdf's lock
-        // (half the bytes copied under it, no libnetcdf type conversion); widening is exact.
-        let mut raw: Vec<f64> = if var.vartype() == NcVariableType::Float(FloatType::F32) {
-            let stored: Vec<f32> = var.get_values(extents).map_err(read_error)?;
-            stored.into_iter().map(f64::from).collect()
-        } else {
-            var.get_values(extents).map_err(read_error)?
-        };
-        let wanted: usize = sizes.iter().product();
-        if raw.len() != wanted {
-            return Err(GridError::Read {
-                file: path.to_path_buf(),
-                variable: self.name.clone(),
-                message: format!("short read: {} of {wanted} values", raw.len()),
-            });
-        }
+        let mut raw = read_hyperslab(&var, extents, &sizes, path)?;
         piece.mask.apply(&mut raw);
         Ok(to_canonical(raw, &piece.axes, &sizes))
     }
+}
+
+/// Reads a hyperslab as f64 and checks its length (`sizes`: the extents' counts). float32
+/// data are read as stored and widened here, outside libnetcdf's lock (half the bytes copied
+/// under it, no libnetcdf type conversion); widening is exact.
+pub(crate) fn read_hyperslab(
+    var: &netcdf::Variable,
+    extents: Vec<Extent>,
+    sizes: &[usize],
+    path: &Path,
+) -> Result<Vec<f64>> {
+    let read_error = |e: netcdf::Error| GridError::Read {
+        file: path.to_path_buf(),
+        variable: var.name(),
+        message: e.to_string(),
+    };
+    let raw: Vec<f64> = if var.vartype() == NcVariableType::Float(FloatType::F32) {
+        let stored: Vec<f32> = var.get_values(extents).map_err(read_error)?;
+        stored.into_iter().map(f64::from).collect()
+    } else {
+        var.get_values(extents).map_err(read_error)?
+    };
+    let wanted: usize = sizes.iter().product();
+    if raw.len() != wanted {
+        return Err(GridError::Read {
+            file: path.to_path_buf(),
+            variable: var.name(),
+            message: format!("short read: {} of {wanted} values", raw.len()),
+        });
+    }
+    Ok(raw)
 }
 
 fn describe_shape(dims: &[(Axis, usize)]) -> String {

@@ -1,6 +1,7 @@
 //! HF dissociation constant on the free scale: Dickson & Riley 1979, Marine Chemistry 7, 89-99.
 
 use super::SampleTerms;
+use crate::real::Real;
 
 /// ln KF (free scale, mol kg-1 of seawater): Dickson & Riley 1979, with the ionic strength and
 /// water-fraction terms of Dickson 1990.
@@ -14,12 +15,13 @@ use super::SampleTerms;
 /// let ln_kf = dickson_riley1979::ln_kf_free(&SampleTerms::new(25.0, 35.0));
 /// assert!((ln_kf - (-6.046766)).abs() < 2e-6);
 /// ```
-pub fn ln_kf_free(terms: &SampleTerms) -> f64 {
+pub fn ln_kf_free<T: Real>(terms: &SampleTerms<T>) -> T {
     ln_kf_free_per_kg_water(terms) + terms.ln_water_fraction()
 }
 
 /// ln KF (free scale, mol kg-1 of water): Dickson & Riley 1979 with the ionic-strength term of
 /// Dickson 1990; multiply KF by [`SampleTerms::water_fraction`] for mol kg-1 of seawater.
-pub fn ln_kf_free_per_kg_water(terms: &SampleTerms) -> f64 {
-    1590.2 * terms.inv_kelvin - 12.641 + 1.525 * terms.sqrt_ionic_strength
+#[inline(always)]
+pub fn ln_kf_free_per_kg_water<T: Real>(terms: &SampleTerms<T>) -> T {
+    terms.inv_kelvin * 1590.2 - 12.641 + terms.sqrt_ionic_strength * 1.525
 }

@@ -1,6 +1,7 @@
 //! K1 and K2 of carbonic acid on the total scale: Lueker, Dickson & Keeling 2000, Marine Chemistry 70, 105-119.
 
 use super::SampleTerms;
+use crate::real::Real;
 
 /// pK1 (total scale, mol kg-1): Lueker et al. 2000, eq. 35.
 ///
@@ -10,10 +11,11 @@ use super::SampleTerms;
 /// let pk1 = lueker2000::pk1(&SampleTerms::new(25.0, 35.0));
 /// assert!((pk1 - 5.8472).abs() < 5e-5);
 /// ```
-pub fn pk1(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn pk1<T: Real>(terms: &SampleTerms<T>) -> T {
     let s = terms.salinity;
-    3633.86 * terms.inv_kelvin - 61.2172 + 9.67770 * terms.ln_kelvin - 0.011555 * s
-        + 0.0001152 * s * s
+    terms.inv_kelvin * 3633.86 - 61.2172 + terms.ln_kelvin * 9.67770 - s * 0.011555
+        + s * 0.0001152 * s
 }
 
 /// pK2 (total scale, mol kg-1): Lueker et al. 2000, eq. 36.
@@ -24,8 +26,9 @@ pub fn pk1(terms: &SampleTerms) -> f64 {
 /// let pk2 = lueker2000::pk2(&SampleTerms::new(25.0, 35.0));
 /// assert!((pk2 - 8.9660).abs() < 5e-5);
 /// ```
-pub fn pk2(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn pk2<T: Real>(terms: &SampleTerms<T>) -> T {
     let s = terms.salinity;
-    471.78 * terms.inv_kelvin + 25.9290 - 3.16967 * terms.ln_kelvin - 0.01781 * s
-        + 0.0001122 * s * s
+    terms.inv_kelvin * 471.78 + 25.9290 - terms.ln_kelvin * 3.16967 - s * 0.01781
+        + s * 0.0001122 * s
 }

@@ -4,6 +4,7 @@
 
 use super::millero2006::{pure_water_pk1, pure_water_pk2, salinity_part};
 use super::SampleTerms;
+use crate::real::Real;
 
 /// pK1 (seawater scale, mol kg-1): Millero 2010, seawater-scale A1, B1, C1 (from memory).
 ///
@@ -13,7 +14,8 @@ use super::SampleTerms;
 /// let terms = SampleTerms::new(25.0, 35.0);
 /// assert!((millero2010::pk1(&terms) - 5.8401).abs() < 0.0054);
 /// ```
-pub fn pk1(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn pk1<T: Real>(terms: &SampleTerms<T>) -> T {
     pure_water_pk1(terms)
         + salinity_part(
             terms,
@@ -30,7 +32,8 @@ pub fn pk1(terms: &SampleTerms) -> f64 {
 /// // Refit of the Millero et al. 2006 data: agrees with its verified pK2* = 8.9636 within σ = 0.011.
 /// assert!((millero2010::pk2(&SampleTerms::new(25.0, 35.0)) - 8.9636).abs() < 0.011);
 /// ```
-pub fn pk2(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn pk2<T: Real>(terms: &SampleTerms<T>) -> T {
     pure_water_pk2(terms)
         + salinity_part(
             terms,

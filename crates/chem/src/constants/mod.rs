@@ -16,86 +16,92 @@ pub mod waters2014;
 pub mod weiss1974;
 
 use crate::choice::{CarbonicSet, ConstantChoice, FluorideSet, PhScale};
-use crate::error::{check_range, ChemError};
-use crate::validity::Validity;
+use crate::error::{Accepted, ChemError};
+use crate::real::Real;
 use crate::Conditions;
 use pressure::PressureTerms;
 
-/// Temperature and salinity terms shared by many constants, each evaluated once per sample.
+/// Temperature and salinity terms shared by many constants, each evaluated once per sample
+/// (`T = f64`) or once per lane of cells in the batch kernel.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct SampleTerms {
+pub struct SampleTerms<T: Real = f64> {
     /// Temperature \[°C\].
-    pub celsius: f64,
+    pub celsius: T,
     /// Temperature \[K\].
-    pub kelvin: f64,
+    pub kelvin: T,
     /// 1 / T \[K-1\].
-    pub inv_kelvin: f64,
+    pub inv_kelvin: T,
     /// ln(T / K).
-    pub ln_kelvin: f64,
+    pub ln_kelvin: T,
     /// Practical salinity.
-    pub salinity: f64,
+    pub salinity: T,
     /// √S.
-    pub sqrt_salinity: f64,
+    pub sqrt_salinity: T,
     /// Ionic strength \[mol kg-1 H2O\].
-    pub ionic_strength: f64,
+    pub ionic_strength: T,
     /// √I.
-    pub sqrt_ionic_strength: f64,
+    pub sqrt_ionic_strength: T,
     /// 1 - 0.001005 S: kg of water per kg of seawater, converting mol kg-1 of water to mol kg-1
     /// of seawater (Dickson 1990). Kept as a factor: its logarithm is only needed for printed ln K.
-    pub water_fraction: f64,
+    pub water_fraction: T,
 }
 
-impl SampleTerms {
+impl<T: Real> SampleTerms<T> {
     /// Terms at in-situ temperature \[°C\] and practical salinity.
-    pub fn new(temperature_c: f64, salinity: f64) -> Self {
-        let unset = Self {
-            celsius: 0.0,
-            kelvin: 0.0,
-            inv_kelvin: 0.0,
-            ln_kelvin: 0.0,
-            salinity: 0.0,
-            sqrt_salinity: 0.0,
-            ionic_strength: 0.0,
-            sqrt_ionic_strength: 0.0,
-            water_fraction: 0.0,
-        };
-        unset
-            .with_temperature(temperature_c)
-            .with_salinity(salinity)
+    #[inline(always)]
+    pub fn new(temperature_c: T, salinity: T) -> Self {
+        let unset = T::from(0.0);
+        Self {
+            celsius: unset,
+            kelvin: unset,
+            inv_kelvin: unset,
+            ln_kelvin: unset,
+            salinity: unset,
+            sqrt_salinity: unset,
+            ionic_strength: unset,
+            sqrt_ionic_strength: unset,
+            water_fraction: unset,
+        }
+        .with_temperature(temperature_c)
+        .with_salinity(salinity)
     }
 
     /// The same terms at another temperature \[°C\].
-    pub(crate) fn with_temperature(&self, temperature_c: f64) -> Self {
+    #[inline(always)]
+    pub(crate) fn with_temperature(&self, temperature_c: T) -> Self {
         let kelvin = temperature_c + 273.15;
         Self {
             celsius: temperature_c,
             kelvin,
-            inv_kelvin: 1.0 / kelvin,
+            inv_kelvin: T::from(1.0) / kelvin,
             ln_kelvin: kelvin.ln(),
             ..*self
         }
     }
 
     /// The same terms at another practical salinity.
-    pub(crate) fn with_salinity(&self, salinity: f64) -> Self {
+    #[inline(always)]
+    pub(crate) fn with_salinity(&self, salinity: T) -> Self {
         let ionic_strength = ionic_strength(salinity);
         Self {
             salinity,
             sqrt_salinity: salinity.sqrt(),
             ionic_strength,
             sqrt_ionic_strength: ionic_strength.sqrt(),
-            water_fraction: 1.0 - 0.001005 * salinity,
+            water_fraction: T::from(1.0) - salinity * 0.001005,
             ..*self
         }
     }
 
     /// ln(1 - 0.001005 S), the water-fraction term of the ln K written per kg of seawater.
-    pub fn ln_water_fraction(&self) -> f64 {
+    #[inline(always)]
+    pub fn ln_water_fraction(&self) -> T {
         self.water_fraction.ln()
     }
 
     /// log10(T / K), from the stored ln T.
-    pub fn log10_kelvin(&self) -> f64 {
+    #[inline(always)]
+    pub fn log10_kelvin(&self) -> T {
         self.ln_kelvin * std::f64::consts::LOG10_E
     }
 }
@@ -106,97 +112,109 @@ impl SampleTerms {
 /// // Hand evaluation at S = 35: 19.924·35 / (1000 - 35.175) = 697.34 / 964.825 = 0.722763
 /// assert!((acidscape_chem::constants::ionic_strength(35.0) - 0.722763).abs() < 1e-6);
 /// ```
-pub fn ionic_strength(salinity: f64) -> f64 {
-    19.924 * salinity / (1000.0 - 1.005 * salinity)
+#[inline(always)]
+pub fn ionic_strength<T: Real>(salinity: T) -> T {
+    salinity * 19.924 / (T::from(1000.0) - salinity * 1.005)
 }
 
-/// All constants at the sample's in-situ T, S and P. Acid constants are on the total scale
-/// (mol kg-1 of seawater) except where named free; totals are mol kg-1.
+/// All constants at the sample's in-situ T, S and P (`T = f64`; a lane of cells in the batch
+/// kernel). Acid constants are on the total scale (mol kg-1 of seawater) except where named free;
+/// totals are mol kg-1.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct EquilibriumConstants {
+pub struct EquilibriumConstants<T: Real = f64> {
     /// CO2 solubility K0 \[mol kg-1 atm-1\] at in-situ temperature and 1 atm (not pressure-corrected).
-    pub k0: f64,
+    pub k0: T,
     /// fCO2 / pCO2 at in-situ temperature and 1 atm total pressure.
-    pub fugacity_factor: f64,
+    pub fugacity_factor: T,
     /// K1 of carbonic acid (total scale).
-    pub k1: f64,
+    pub k1: T,
     /// K2 of carbonic acid (total scale).
-    pub k2: f64,
+    pub k2: T,
     /// KB of boric acid (total scale).
-    pub kb: f64,
+    pub kb: T,
     /// KW of water (total scale, mol² kg-2).
-    pub kw: f64,
+    pub kw: T,
     /// KS of bisulfate (free scale).
-    pub ks_free: f64,
+    pub ks_free: T,
     /// KF of hydrogen fluoride (total scale).
-    pub kf: f64,
+    pub kf: T,
     /// KF of hydrogen fluoride (free scale).
-    pub kf_free: f64,
+    pub kf_free: T,
     /// K1P of phosphoric acid (total scale).
-    pub k1p: f64,
+    pub k1p: T,
     /// K2P of phosphoric acid (total scale).
-    pub k2p: f64,
+    pub k2p: T,
     /// K3P of phosphoric acid (total scale).
-    pub k3p: f64,
+    pub k3p: T,
     /// KSi of silicic acid (total scale).
-    pub ksi: f64,
+    pub ksi: T,
     /// Ksp* of calcite \[mol² kg-2\].
-    pub ksp_calcite: f64,
+    pub ksp_calcite: T,
     /// Ksp* of aragonite \[mol² kg-2\].
-    pub ksp_aragonite: f64,
+    pub ksp_aragonite: T,
     /// Total boron \[mol kg-1\].
-    pub total_boron: f64,
+    pub total_boron: T,
     /// Total sulfate \[mol kg-1\].
-    pub total_sulfate: f64,
+    pub total_sulfate: T,
     /// Total fluoride \[mol kg-1\].
-    pub total_fluoride: f64,
+    pub total_fluoride: T,
     /// Calcium \[mol kg-1\].
-    pub calcium: f64,
+    pub calcium: T,
     /// \[H+\]total / \[H+\]free = 1 + ST/KS.
-    pub free_to_total: f64,
+    pub free_to_total: T,
     /// \[H+\]total / \[H+\]seawater = (1 + ST/KS) / (1 + ST/KS + FT/KF).
-    pub seawater_to_total: f64,
+    pub seawater_to_total: T,
     /// Validity ranges the sample falls outside.
-    pub validity: Validity,
+    pub validity: T::Validity,
 }
+
+/// What the solver accepts of each condition at all (validity ranges are separate), in the order
+/// temperature, salinity, pressure, phosphate, silicate.
+pub(crate) const ACCEPTED_CONDITIONS: [Accepted; 5] = [
+    Accepted {
+        field: "temperature_c",
+        min: -10.0,
+        max: 60.0,
+        expected: "in-situ temperature between -10 and 60 °C",
+    },
+    Accepted {
+        field: "salinity",
+        min: f64::MIN_POSITIVE,
+        max: 60.0,
+        expected: "practical salinity above 0 and at most 60",
+    },
+    Accepted {
+        field: "pressure_dbar",
+        min: 0.0,
+        max: 12_000.0,
+        expected: "sea pressure between 0 (surface) and 12000 dbar",
+    },
+    Accepted {
+        field: "phosphate",
+        min: 0.0,
+        max: 1_000.0,
+        expected: "phosphate between 0 and 1000 µmol kg-1",
+    },
+    Accepted {
+        field: "silicate",
+        min: 0.0,
+        max: 5_000.0,
+        expected: "silicate between 0 and 5000 µmol kg-1",
+    },
+];
 
 /// Rejects conditions that are not numbers or not seawater at all (validity ranges are separate).
 pub(crate) fn validate_conditions(conditions: &Conditions) -> Result<(), ChemError> {
-    check_range(
-        "temperature_c",
+    let values = [
         conditions.temperature_c,
-        -10.0,
-        60.0,
-        "in-situ temperature between -10 and 60 °C",
-    )?;
-    check_range(
-        "salinity",
         conditions.salinity,
-        f64::MIN_POSITIVE,
-        60.0,
-        "practical salinity above 0 and at most 60",
-    )?;
-    check_range(
-        "pressure_dbar",
         conditions.pressure_dbar,
-        0.0,
-        12_000.0,
-        "sea pressure between 0 (surface) and 12000 dbar",
-    )?;
-    check_range(
-        "phosphate",
         conditions.phosphate,
-        0.0,
-        1_000.0,
-        "phosphate between 0 and 1000 µmol kg-1",
-    )?;
-    check_range(
-        "silicate",
         conditions.silicate,
-        0.0,
-        5_000.0,
-        "silicate between 0 and 5000 µmol kg-1",
-    )?;
+    ];
+    for (accepted, value) in ACCEPTED_CONDITIONS.iter().zip(values) {
+        accepted.check(value)?;
+    }
     Ok(())
 }
 
@@ -225,14 +243,26 @@ pub(crate) fn constants_unchecked(
     conditions: &Conditions,
     choice: &ConstantChoice,
 ) -> EquilibriumConstants {
-    let terms = SampleTerms::new(conditions.temperature_c, conditions.salinity);
-    let pt = PressureTerms::new(conditions.temperature_c, conditions.pressure_dbar * 0.1);
-    let validity = Validity::assess(
+    in_situ_constants(
         conditions.temperature_c,
         conditions.salinity,
         conditions.pressure_dbar,
         choice,
-    );
+    )
+}
+
+/// The assembly behind [`equilibrium_constants`], for one sample or a lane of cells: in-situ
+/// temperature \[°C\], practical salinity, sea pressure \[dbar\], all already validated.
+#[inline(always)]
+pub(crate) fn in_situ_constants<T: Real>(
+    temperature_c: T,
+    salinity: T,
+    pressure_dbar: T,
+    choice: &ConstantChoice,
+) -> EquilibriumConstants<T> {
+    let terms = SampleTerms::new(temperature_c, salinity);
+    let pt = PressureTerms::new(temperature_c, pressure_dbar * 0.1);
+    let validity = T::assess_validity(temperature_c, salinity, pressure_dbar, choice);
     let parts = Ingredients {
         surface: surface_ingredients(&terms, choice),
         pressure: pressure_ingredients(&pt),
@@ -242,52 +272,52 @@ pub(crate) fn constants_unchecked(
 
 /// One number for each constant that has a pressure correction.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
-pub(crate) struct PerConstant {
-    pub ks: f64,
-    pub kf: f64,
-    pub k1: f64,
-    pub k2: f64,
-    pub kb: f64,
-    pub kw: f64,
-    pub k1p: f64,
-    pub k2p: f64,
-    pub k3p: f64,
-    pub ksi: f64,
-    pub calcite: f64,
-    pub aragonite: f64,
+pub(crate) struct PerConstant<T: Real = f64> {
+    pub ks: T,
+    pub kf: T,
+    pub k1: T,
+    pub k2: T,
+    pub kb: T,
+    pub kw: T,
+    pub k1p: T,
+    pub k2p: T,
+    pub k3p: T,
+    pub ksi: T,
+    pub calcite: T,
+    pub aragonite: T,
 }
 
 /// What the constants are made of at the surface, before exponentiation and scale conversion:
 /// each paper's ln K (on its own scale and mass basis), the totals and the water fraction.
 /// No exp: cheap enough to evaluate again at nearby temperatures and salinities.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub(crate) struct SurfaceIngredients {
+pub(crate) struct SurfaceIngredients<T: Real = f64> {
     /// ln K: KS per kg of water (free scale); KF on its paper's scale and basis; K1, K2 on their
     /// paper's scale; KSi per kg of water; the rest as published.
-    pub ln_k: PerConstant,
-    pub ln_k0: f64,
-    pub ln_fugacity_factor: f64,
-    pub water_fraction: f64,
-    pub total_boron: f64,
-    pub total_sulfate: f64,
-    pub total_fluoride: f64,
-    pub calcium: f64,
+    pub ln_k: PerConstant<T>,
+    pub ln_k0: T,
+    pub ln_fugacity_factor: T,
+    pub water_fraction: T,
+    pub total_boron: T,
+    pub total_sulfate: T,
+    pub total_fluoride: T,
+    pub calcium: T,
 }
 
 /// Everything the constants are assembled from: the surface ingredients and each constant's
 /// pressure term ln(K_P / K_0) (Millero 1995).
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub(crate) struct Ingredients {
-    pub surface: SurfaceIngredients,
-    pub pressure: PerConstant,
+pub(crate) struct Ingredients<T: Real = f64> {
+    pub surface: SurfaceIngredients<T>,
+    pub pressure: PerConstant<T>,
 }
 
 /// Each paper's formula at the sample's shared temperature and salinity terms.
 #[inline(always)]
-pub(crate) fn surface_ingredients(
-    terms: &SampleTerms,
+pub(crate) fn surface_ingredients<T: Real>(
+    terms: &SampleTerms<T>,
     choice: &ConstantChoice,
-) -> SurfaceIngredients {
+) -> SurfaceIngredients<T> {
     let ln10 = std::f64::consts::LN_10;
     let (k1, k2) = match choice.carbonic {
         CarbonicSet::Lueker2000 => (lueker2000::pk1(terms), lueker2000::pk2(terms)),
@@ -328,7 +358,7 @@ pub(crate) fn surface_ingredients(
 /// Each constant's Millero 1995 pressure term. Linear in the terms `pt`: given their
 /// derivatives (see [`PressureTerms::temperature_slope`]) it gives the terms' derivatives.
 #[inline(always)]
-pub(crate) fn pressure_ingredients(pt: &PressureTerms) -> PerConstant {
+pub(crate) fn pressure_ingredients<T: Real>(pt: &PressureTerms<T>) -> PerConstant<T> {
     PerConstant {
         ks: pt.ln_factor(&pressure::KS),
         kf: pt.ln_factor(&pressure::KF),
@@ -349,11 +379,11 @@ pub(crate) fn pressure_ingredients(pt: &PressureTerms) -> PerConstant {
 /// first; the other acid constants on the seawater scale (as Millero 1995 fitted them), then
 /// brought to the total scale with the in-situ KS and KF.
 #[inline(always)]
-pub(crate) fn assemble(
-    parts: &Ingredients,
+pub(crate) fn assemble<T: Real>(
+    parts: &Ingredients<T>,
     choice: &ConstantChoice,
-    validity: Validity,
-) -> EquilibriumConstants {
+    validity: T::Validity,
+) -> EquilibriumConstants<T> {
     let (surface, pressure) = (&parts.surface.ln_k, &parts.pressure);
     let water_fraction = parts.surface.water_fraction;
     let (total_sulfate, total_fluoride) =
@@ -361,16 +391,16 @@ pub(crate) fn assemble(
     // Every constant is one exp of its ln K plus its pressure term (Millero 1995); factors that
     // change only its unit or scale multiply the exp instead of adding their ln to it.
     let in_situ =
-        |ln_k_surface: f64, ln_pressure_factor: f64| (ln_k_surface + ln_pressure_factor).exp();
+        |ln_k_surface: T, ln_pressure_factor: T| (ln_k_surface + ln_pressure_factor).exp();
 
     // Free-scale KS and KF at the surface, then at in-situ pressure.
     let ks_surface = surface.ks.exp() * water_fraction;
     let ks_free = in_situ(surface.ks, pressure.ks) * water_fraction;
-    let free_to_total_surface = 1.0 + total_sulfate / ks_surface;
-    let free_to_total = 1.0 + total_sulfate / ks_free;
+    let free_to_total_surface = total_sulfate / ks_surface + 1.0;
+    let free_to_total = total_sulfate / ks_free + 1.0;
     // KF on the scale its paper gives, at the surface and in situ.
     let fluoride_scale = match choice.fluoride {
-        FluorideSet::PerezFraga1987 => 1.0,
+        FluorideSet::PerezFraga1987 => T::from(1.0),
         FluorideSet::DicksonRiley1979 => water_fraction,
     };
     let kf_published_surface = surface.kf.exp() * fluoride_scale;
@@ -400,7 +430,7 @@ pub(crate) fn assemble(
     // at in-situ pressure: (SWS/T at the surface) · (T/SWS in situ).
     let total_surface_to_total =
         free_to_total * free_to_seawater_surface / (free_to_seawater * free_to_total_surface);
-    let in_situ_total = |ln_k_surface_total: f64, ln_pressure_factor: f64| {
+    let in_situ_total = |ln_k_surface_total: T, ln_pressure_factor: T| {
         in_situ(ln_k_surface_total, ln_pressure_factor) * total_surface_to_total
     };
     let carbonic_to_total = match choice.carbonic.scale() {

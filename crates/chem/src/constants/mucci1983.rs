@@ -2,6 +2,7 @@
 //! Science 283, 780-799.
 
 use super::SampleTerms;
+use crate::real::Real;
 
 /// log10 Ksp* of calcite (mol² kg-2): Mucci 1983, Table 7 equation.
 ///
@@ -11,15 +12,15 @@ use super::SampleTerms;
 /// let log_ksp = mucci1983::log10_ksp_calcite(&SampleTerms::new(25.0, 35.0));
 /// assert!((log_ksp - (-6.3693)).abs() < 5e-4);
 /// ```
-pub fn log10_ksp_calcite(terms: &SampleTerms) -> f64 {
-    let t = terms.kelvin;
-    let (s, r) = (terms.salinity, terms.sqrt_salinity);
-    -171.9065 - 0.077993 * t
-        + 2839.319 * terms.inv_kelvin
-        + 71.595 * terms.log10_kelvin()
-        + (-0.77712 + 0.0028426 * t + 178.34 * terms.inv_kelvin) * r
-        - 0.07711 * s
-        + 0.0041249 * s * r
+#[inline(always)]
+pub fn log10_ksp_calcite<T: Real>(terms: &SampleTerms<T>) -> T {
+    log10_ksp(
+        terms,
+        [-171.9065, 2839.319],
+        [-0.77712, 0.0028426, 178.34],
+        -0.07711,
+        0.0041249,
+    )
 }
 
 /// log10 Ksp* of aragonite (mol² kg-2): Mucci 1983, Table 7 equation.
@@ -30,13 +31,27 @@ pub fn log10_ksp_calcite(terms: &SampleTerms) -> f64 {
 /// let log_ksp = mucci1983::log10_ksp_aragonite(&SampleTerms::new(25.0, 35.0));
 /// assert!((log_ksp - (-6.1883)).abs() < 5e-4);
 /// ```
-pub fn log10_ksp_aragonite(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn log10_ksp_aragonite<T: Real>(terms: &SampleTerms<T>) -> T {
+    log10_ksp(
+        terms,
+        [-171.945, 2903.293],
+        [-0.068393, 0.0017276, 88.135],
+        -0.10018,
+        0.0059415,
+    )
+}
+
+/// The form of both Mucci 1983 fits: log10 Ksp at S = 0, a0 - 0.077993 T + a1/T + 71.595 log10 T,
+/// plus (b0 + b1 T + b2/T)√S + c S + d S^1.5.
+#[inline(always)]
+fn log10_ksp<T: Real>(terms: &SampleTerms<T>, a: [f64; 2], b: [f64; 3], c: f64, d: f64) -> T {
     let t = terms.kelvin;
     let (s, r) = (terms.salinity, terms.sqrt_salinity);
-    -171.945 - 0.077993 * t
-        + 2903.293 * terms.inv_kelvin
-        + 71.595 * terms.log10_kelvin()
-        + (-0.068393 + 0.0017276 * t + 88.135 * terms.inv_kelvin) * r
-        - 0.10018 * s
-        + 0.0059415 * s * r
+    T::from(a[0]) - t * 0.077993
+        + terms.inv_kelvin * a[1]
+        + terms.log10_kelvin() * 71.595
+        + (t * b[1] + b[0] + terms.inv_kelvin * b[2]) * r
+        + s * c
+        + s * d * r
 }

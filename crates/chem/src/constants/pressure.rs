@@ -1,6 +1,8 @@
 //! Pressure dependence of the equilibrium constants: Millero 1995, Geochimica et Cosmochimica Acta 59,
 //! 661-677 (coefficients from memory, as tabulated in check-values.md).
 
+use crate::real::Real;
+
 /// Gas constant in cm³ bar mol-1 K-1 used with Millero 1995's ΔV and ΔK.
 pub const GAS_CONSTANT_CM3_BAR: f64 = 83.14472;
 
@@ -67,18 +69,19 @@ pub fn ln_pressure_factor(
 /// Terms shared by every constant's pressure correction at one temperature and pressure, so
 /// that each correction is five products: ln(K_P/K_0) = -(a0 x0 + a1 x1 + a2 x2) + b0 y0 + b1 y1.
 #[derive(Clone, Copy, Debug)]
-pub(crate) struct PressureTerms {
+pub(crate) struct PressureTerms<T: Real> {
     /// P/RT, t P/RT, t² P/RT: multiply a0, a1, a2 of ΔV.
-    volume: [f64; 3],
+    volume: [T; 3],
     /// ½ P²/RT·10⁻³, t ½ P²/RT·10⁻³: multiply b0, b1 of ΔK.
-    compressibility: [f64; 2],
+    compressibility: [T; 2],
 }
 
-impl PressureTerms {
-    pub(crate) fn new(temperature_c: f64, pressure_bar: f64) -> Self {
+impl<T: Real> PressureTerms<T> {
+    #[inline(always)]
+    pub(crate) fn new(temperature_c: T, pressure_bar: T) -> Self {
         let t = temperature_c;
-        let pressure_over_rt = pressure_bar / (GAS_CONSTANT_CM3_BAR * (t + 273.15));
-        let half_pressure2_over_rt = 0.5e-3 * pressure_bar * pressure_over_rt;
+        let pressure_over_rt = pressure_bar / ((t + 273.15) * GAS_CONSTANT_CM3_BAR);
+        let half_pressure2_over_rt = pressure_bar * 0.5e-3 * pressure_over_rt;
         Self {
             volume: [
                 pressure_over_rt,
@@ -89,6 +92,16 @@ impl PressureTerms {
         }
     }
 
+    #[inline(always)]
+    pub(crate) fn ln_factor(&self, c: &PressureCoefficients) -> T {
+        let [x0, x1, x2] = self.volume;
+        let [y0, y1] = self.compressibility;
+        y0 * c.compressibility[0] + y1 * c.compressibility[1]
+            - (x0 * c.volume[0] + x1 * c.volume[1] + x2 * c.volume[2])
+    }
+}
+
+impl PressureTerms<f64> {
     /// The derivative of each term with respect to temperature \[per °C\]. [`Self::ln_factor`]
     /// is linear in the terms, so applied to these it gives d ln(K_P/K_0)/dt exactly.
     pub(crate) fn temperature_slope(temperature_c: f64, pressure_bar: f64) -> Self {
@@ -113,12 +126,5 @@ impl PressureTerms {
             volume: [dx0, t * dx0, t * t * dx0],
             compressibility: [dy0, t * dy0],
         }
-    }
-
-    pub(crate) fn ln_factor(&self, c: &PressureCoefficients) -> f64 {
-        let [x0, x1, x2] = self.volume;
-        let [y0, y1] = self.compressibility;
-        c.compressibility[0] * y0 + c.compressibility[1] * y1
-            - (c.volume[0] * x0 + c.volume[1] * x1 + c.volume[2] * x2)
     }
 }

@@ -1,6 +1,7 @@
 //! CO2 solubility K0 and the CO2 fugacity coefficient: Weiss 1974, Marine Chemistry 2, 203-215.
 
 use super::SampleTerms;
+use crate::real::Real;
 
 /// Gas constant in cm³ atm mol-1 K-1 (CODATA), for the virial term.
 const GAS_CONSTANT_CM3_ATM: f64 = 82.057_366;
@@ -13,12 +14,12 @@ const GAS_CONSTANT_CM3_ATM: f64 = 82.057_366;
 /// let ln_k0 = weiss1974::ln_k0(&SampleTerms::new(25.0, 35.0));
 /// assert!((ln_k0 - (-3.5617)).abs() < 5e-4);
 /// ```
-pub fn ln_k0(terms: &SampleTerms) -> f64 {
+#[inline(always)]
+pub fn ln_k0<T: Real>(terms: &SampleTerms<T>) -> T {
     let t100 = terms.kelvin / 100.0;
-    -60.2409
-        + 93.4517 / t100
-        + 23.3585 * (terms.ln_kelvin - std::f64::consts::LN_10 * 2.0)
-        + terms.salinity * (0.023517 - 0.023656 * t100 + 0.0047036 * t100 * t100)
+    T::from(93.4517) / t100 - 60.2409
+        + (terms.ln_kelvin - std::f64::consts::LN_10 * 2.0) * 23.3585
+        + terms.salinity * (T::from(0.023517) - t100 * 0.023656 + t100 * 0.0047036 * t100)
 }
 
 /// fCO2 / pCO2 \[-\] at 1 atm total pressure: Weiss 1974, eqs. 5-9 (virial coefficient B and
@@ -32,13 +33,15 @@ pub fn ln_k0(terms: &SampleTerms) -> f64 {
 /// assert!((factor - expected).abs() < 2e-6);
 /// assert!((factor - 0.99681).abs() < 1e-5);
 /// ```
-pub fn fugacity_factor(kelvin: f64) -> f64 {
+#[inline(always)]
+pub fn fugacity_factor<T: Real>(kelvin: T) -> T {
     ln_fugacity_factor(kelvin).exp()
 }
 
 /// ln(fCO2 / pCO2) at 1 atm total pressure: the exponent of [`fugacity_factor`].
-pub fn ln_fugacity_factor(kelvin: f64) -> f64 {
-    let virial_b = -1636.75 + kelvin * (12.0408 + kelvin * (-3.27957e-2 + kelvin * 3.16528e-5));
-    let delta = 57.7 - 0.118 * kelvin;
-    (virial_b + 2.0 * delta) / (GAS_CONSTANT_CM3_ATM * kelvin)
+#[inline(always)]
+pub fn ln_fugacity_factor<T: Real>(kelvin: T) -> T {
+    let virial_b = kelvin * (kelvin * (kelvin * 3.16528e-5 - 3.27957e-2) + 12.0408) - 1636.75;
+    let delta = T::from(57.7) - kelvin * 0.118;
+    (virial_b + delta * 2.0) / (kelvin * GAS_CONSTANT_CM3_ATM)
 }

@@ -1,7 +1,53 @@
 //! Helpers shared by the command-line tests.
 #![allow(dead_code)]
 
+pub mod draw;
+
 use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// Runs the acidscape binary in the repository's root.
+pub fn acidscape(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_acidscape"))
+        .args(args)
+        .current_dir(repository())
+        .output()
+        .unwrap()
+}
+
+/// `acidscape compute` on a bundled SYNTHETIC sample run (`sample-grids/RUN/PATHWAY`), written
+/// as `RUN-PATHWAY.nc` in `out`.
+pub fn compute(run: &str, pathway: &str, out: &Path) -> PathBuf {
+    let output = out.join(format!("{run}-{pathway}.nc"));
+    let inputs = format!("sample-grids/{run}/{pathway}/*.nc");
+    let result = acidscape(&["compute", &inputs, "-o", output.to_str().unwrap()]);
+    assert!(
+        result.status.success(),
+        "{}",
+        String::from_utf8_lossy(&result.stderr)
+    );
+    output
+}
+
+/// Standard output and standard error as text.
+pub fn text(output: &Output) -> (String, String) {
+    (
+        String::from_utf8_lossy(&output.stdout).into_owned(),
+        String::from_utf8_lossy(&output.stderr).into_owned(),
+    )
+}
+
+/// Held by each test that writes NetCDF files in this process or spawns acidscape: a child
+/// inherits (HDF5 does not open files close-on-exec) a descriptor, with its HDF5 file lock, of
+/// a file another test has open, which that test's own child then cannot open.
+static ONE_AT_A_TIME: std::sync::Mutex<()> = std::sync::Mutex::new(());
+
+/// Runs the calling test alone among those that take this guard.
+pub fn one_at_a_time() -> std::sync::MutexGuard<'static, ()> {
+    ONE_AT_A_TIME
+        .lock()
+        .unwrap_or_else(std::sync::PoisonError::into_inner)
+}
 
 /// The repository's root.
 pub fn repository() -> PathBuf {
