@@ -14,9 +14,13 @@
 #   2. acidscape end to end on 1 core and on 2 cores (taskset pins the whole process, reader
 #      and writer threads included, with --threads matching; wall time, peak RSS via
 #      /usr/bin/time -v, cells/s and the read / convert+solve / write split from its summary);
-#   3. peak RSS on the 2*STEPS-step run (memory must stay flat as steps grow).
+#   3. the cost of saturation horizons and volumes: on 2 cores, the default job (horizons on)
+#      and the same with --no-horizons (and, with BASELINE=path/to/another/acidscape, that
+#      binary, e.g. a build from before a change), run in turn REPEAT times, so that a load
+#      change on a shared machine hits every variant alike; medians and their ratios;
+#   4. peak RSS on the 2*STEPS-step run (memory must stay flat as steps grow).
 # Usage: scripts/bench_pipeline.sh [DIR]
-#        (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50", REPEAT=3)
+#        (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50", REPEAT=3, BASELINE=)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 dir=${1:-${TMPDIR:-/tmp}/acidscape-bench}
@@ -97,6 +101,38 @@ write_s=$(printf '%s\n' "${writes[@]}" | median)
 floor=$(echo "$read_s + $write_s" | bc -l)
 printf 'write output (nccopy -d %s -s of our output, %s): %.2f s\n' "$level" "$(du -h "$out2" | cut -f1)" "$write_s"
 printf 'I/O floor (read + write): %.2f s; acidscape on 2 cores / floor: %.2f x\n' "$floor" "$(echo "$(cat "$dir/acidscape-2-cores.median") / $floor" | bc -l)"
+
+echo "== horizons and volumes: variants run in turn on 2 cores, $repeat rounds"
+variants=(horizons no-horizons)
+[[ -n "${BASELINE:-}" ]] && variants+=(baseline)
+declare -A turns=()
+for ((i = 1; i <= repeat; i++)); do
+    for variant in "${variants[@]}"; do
+        case $variant in
+            horizons) cmd=("$bin" compute);;
+            no-horizons) cmd=("$bin" compute --no-horizons);;
+            baseline) cmd=("$BASELINE" compute);;
+        esac
+        load=$(cut -d' ' -f1 /proc/loadavg)
+        /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "${cmd[@]}" "${half[@]}" -o "$dir/out-$variant.nc" \
+            --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
+            || { cat "$dir/turn.out"; exit 1; }
+        wall=$(cat "$dir/turn.time")
+        turns[$variant]+="$wall "
+        printf '  round %d %-12s wall %7.2f s (load before %s) %s\n' "$i" "$variant" "$wall" "$load" \
+            "$(grep -oE 'of which horizons and volumes [0-9.]+ s' "$dir/turn.out" || true)"
+    done
+done
+for variant in "${variants[@]}"; do
+    # shellcheck disable=SC2086
+    printf '%s\n' ${turns[$variant]} | median >"$dir/turn-$variant.median"
+    printf '%-12s median wall %7.2f s\n' "$variant" "$(cat "$dir/turn-$variant.median")"
+done
+printf 'horizons / no-horizons (medians): %.3f\n' "$(echo "$(cat "$dir/turn-horizons.median") / $(cat "$dir/turn-no-horizons.median")" | bc -l)"
+if [[ -n "${BASELINE:-}" ]]; then
+    printf 'horizons / baseline (medians): %.3f\n' "$(echo "$(cat "$dir/turn-horizons.median") / $(cat "$dir/turn-baseline.median")" | bc -l)"
+fi
+rm -f "$dir"/out-horizons.nc "$dir"/out-no-horizons.nc "$dir"/out-baseline.nc "$dir"/*.extent.csv
 
 echo "== memory as steps double: $((2 * steps)) steps, 2 cores"
 measure "acidscape-2x-steps" taskset -c 0,1 "$bin" compute "${all[@]}" -o "$dir/out-2x.nc" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"

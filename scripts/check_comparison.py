@@ -7,10 +7,12 @@ windows given with --window NAME=FIRST-LAST:
   * window means: every `FIELD_LABEL` variable of the comparison equals the mean over the
     window's years of the annual means (each step weighted by the length of its time bounds,
     the year of a step taken from the midpoint of its bounds with cftime), computed here with
-    xarray, within float32 storage precision; missing cells agree;
+    xarray, within float32 storage precision; missing cells agree; for horizon depths the
+    mean of the years that have a horizon (compare's documented rule);
   * changes and differences: `FIELD_LABEL_change` (window minus reference window) and
     `FIELD_LABEL_minus_BASE` (run minus the first run) agree with the same differences of the
-    means computed here; with --identical A,B the difference between runs A and B is exactly 0;
+    means computed here, as do horizon shoaling `horizon_shoaling_X_LABEL` (reference depth
+    minus window depth) and `horizon_shoaling_X_LABEL_versus_BASE` (base minus run); with --identical A,B the difference between runs A and B is exactly 0;
   * the CSV (read with pandas) has the documented columns, and its rows for the whole domain
     agree with area-weighted surface means and volume-weighted column means computed here with
     numpy (areas R^2 dlon (sin lat2 - sin lat1), R = 6371008.7714 m, the GRS80 mean radius,
@@ -76,9 +78,32 @@ class Run:
             out[year] = np.tensordot(weights, stack, axes=1) / weights.sum()
         return out
 
-    def window_mean(self, annual, first, last):
-        years = [y for y in annual if first <= y <= last]
-        return np.mean([annual[y] for y in years], axis=0)
+    def window_mean(self, annual, first, last, skip_missing=False):
+        """Mean over the window's years; with skip_missing, of the years with a value."""
+        stack = [annual[y] for y in annual if first <= y <= last]
+        if not skip_missing:
+            return np.mean(stack, axis=0)
+        stack = np.array(stack)
+        count = np.sum(~np.isnan(stack), axis=0)
+        return np.where(count > 0, np.nansum(stack, axis=0) / np.maximum(count, 1), np.nan)
+
+
+def is_horizon(field):
+    """Horizon depths: years without a horizon are left out (compare's documented rule), and
+    their changes are shoaling, in metres, positive where the horizon is shallower."""
+    return field.startswith("horizon_depth_")
+
+
+def change_name(field, label):
+    if is_horizon(field):
+        return f"horizon_shoaling_{field[len('horizon_depth_'):]}_{label}"
+    return f"{field}_{label}_change"
+
+
+def difference_name(field, label, base):
+    if is_horizon(field):
+        return f"horizon_shoaling_{field[len('horizon_depth_'):]}_{label}_versus_{base}"
+    return f"{field}_{label}_minus_{base}"
 
 
 class Checks:
@@ -100,6 +125,12 @@ class Checks:
             print(f"FAIL {what}: {detail}")
 
 
+def operand_scale(a, b):
+    """Largest magnitude of either operand of a difference: compare subtracts the stored
+    float32 means, so its differences carry float32 rounding of the larger operand."""
+    return np.nanmax(np.abs(np.concatenate([np.ravel(a), np.ravel(b)])))
+
+
 def stored(nc, name):
     return np.ma.filled(nc[name][:].astype("f8"), np.nan)
 
@@ -113,25 +144,27 @@ def check_windows(checks, runs, windows, comparison, reference):
             values = run.ds[field].values
             annual = run.annual(values)
             for w, (name, (first, last)) in enumerate(windows):
-                expected = run.window_mean(annual, first, last)
+                expected = run.window_mean(annual, first, last, skip_missing=is_horizon(field))
                 means[(label, field, w)] = expected
                 scale = np.nanmax(np.abs(expected)) if np.isfinite(expected).any() else 1.0
                 checks.close(f"{comparison}: {field}_{label} window {name} (mean of annual means)",
                              stored(nc, f"{field}_{label}")[w], expected, rtol=1e-6, atol=1e-6 * scale)
-            change = f"{field}_{label}_change"
+            change = change_name(field, label)
+            sign = -1.0 if is_horizon(field) else 1.0
             if change in nc.variables:
                 for w in range(len(windows)):
-                    expected = means[(label, field, w)] - means[(label, field, reference)]
-                    scale = np.nanmax(np.abs(means[(label, field, w)]))
+                    expected = sign * (means[(label, field, w)] - means[(label, field, reference)])
+                    scale = operand_scale(means[(label, field, w)], means[(label, field, reference)])
                     checks.close(f"{change} window {windows[w][0]}", stored(nc, change)[w], expected,
                                  rtol=0.0, atol=2e-6 * scale)
     for label, run in runs[1:]:
         for (l, field, w), mean in list(means.items()):
-            name = f"{field}_{label}_minus_{base_label}"
+            name = difference_name(field, label, base_label)
             if l != label or name not in nc.variables:
                 continue
-            expected = mean - means[(base_label, field, w)]
-            scale = np.nanmax(np.abs(mean))
+            sign = -1.0 if is_horizon(field) else 1.0
+            expected = sign * (mean - means[(base_label, field, w)])
+            scale = operand_scale(mean, means[(base_label, field, w)])
             checks.close(f"{name} window {windows[w][0]}", stored(nc, name)[w], expected, rtol=0.0, atol=2e-6 * scale)
     return nc
 
@@ -140,7 +173,7 @@ def weights(run):
     """Area per column and thickness per level (or per cell) of a compute output."""
     ds = run.ds
     if "cell_area" in ds:
-        area = ds["cell_area"].values
+        area = ds["cell_area"].values.astype("f8")  # float32 in the file; sums in double
     else:
         lat_b = ds[ds["lat"].attrs["bounds"]].values
         lon_b = ds[ds["lon"].attrs["bounds"]].values
@@ -148,7 +181,8 @@ def weights(run):
         width = np.deg2rad(np.abs(lon_b[:, 1] - lon_b[:, 0]))
         area = R * R * band[:, None] * width[None, :]
     if "cell_thickness" in ds:
-        thickness = ds["cell_thickness"].values
+        # Missing on land: weight 0 there (land cells have no value either).
+        thickness = np.nan_to_num(ds["cell_thickness"].values.astype("f8"), nan=0.0)
     else:
         lev_b = ds[ds["lev"].attrs["bounds"]].values
         thickness = np.abs(lev_b[:, 1] - lev_b[:, 0])[:, None, None]

@@ -18,9 +18,10 @@ echo "== what acidscape understands of one sample run"
 for run in cmip-style terrain-following curvilinear; do
     for pathway in pathway-moderate pathway-steep; do
         echo
-        echo "== indicators for $run, $pathway"
+        echo "== indicators, saturation horizons and corrosive water for $run, $pathway"
         "$bin" compute "sample-grids/$run/$pathway/*.nc" -o "$out/$run-$pathway.nc" --overwrite \
-            --indicators ph,co3,pco2,omega-aragonite,omega-calcite,revelle
+            --indicators ph,co3,pco2,omega-aragonite,omega-calcite,revelle \
+            --omega-thresholds aragonite=1.5,3
     done
 done
 
@@ -34,5 +35,18 @@ Done. Outputs (synthetic demonstration data, not model results or measurements):
   $(ls "$out" | sed "s|^|$out/|" | tr '\n' ' ')
 Look inside a NetCDF output:   ncdump -h $out/cmip-style-pathway-steep.nc
 Open it in Python:             xarray.open_dataset("$out/cmip-style-pathway-steep.nc")
+Saturation horizons:           horizon_depth_aragonite, horizon_depth_calcite (m below the sea
+                               surface, per time step; how each column's was found in
+                               horizon_status_*), horizon_depth_aragonite_1p5 and _3 for
+                               omega aragonite 1.5 and 3
+Corrosive water per step:      $out/cmip-style-pathway-steep.extent.csv (also in the NetCDF
+                               files as wet_volume, volume_below_threshold_aragonite, ...)
 The sample table's results:    $out/bottle-samples-results.csv
 MSG
+
+echo
+echo "== the first values of horizon_depth_aragonite, cmip-style, pathway-steep (m; _ is land)"
+ncdump -v horizon_depth_aragonite "$out/cmip-style-pathway-steep.nc" \
+    | sed -n '/^ horizon_depth_aragonite =/,+4p'
+echo "== its corrosive-water table (first rows)"
+head -6 "$out/cmip-style-pathway-steep.extent.csv"

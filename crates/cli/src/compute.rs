@@ -4,8 +4,8 @@ use crate::run_options::{ConstantOptions, RunOptions};
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
 use acidscape_pipeline::{
-    format_bytes, parse_list, parse_memory_size, run_job, IndicatorChoice, JobOptions, JobSummary,
-    Progress, StopRequest, FLAG_BITS,
+    format_bytes, parse_list, parse_memory_size, run_job, HorizonChoice, IndicatorChoice,
+    JobOptions, JobSummary, Progress, StopRequest, FLAG_BITS,
 };
 use clap::Args;
 use indicatif::{ProgressBar, ProgressStyle};
@@ -47,6 +47,20 @@ pub struct ComputeArgs {
     #[arg(long, value_name = "UNIT", default_value = "mol-m3")]
     pub concentration_units: String,
 
+    /// Do not compute saturation horizons and the extent of corrosive water (computed by
+    /// default whenever omega-aragonite or omega-calcite is)
+    #[arg(long)]
+    pub no_horizons: bool,
+
+    /// Extra saturation thresholds besides 1 for one mineral, e.g. aragonite=1.5,3 (repeat the
+    /// option for the other mineral); each gives its own horizon depths and extent
+    #[arg(
+        long = "omega-thresholds",
+        value_name = "MINERAL=LIST",
+        conflicts_with = "no_horizons"
+    )]
+    pub omega_thresholds: Vec<String>,
+
     /// Memory the job may use; slabs are sized to fit (e.g. 512MiB, 2GiB)
     #[arg(long, value_name = "SIZE", default_value = "2GiB")]
     pub memory_budget: String,
@@ -78,6 +92,14 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         concentration_unit: args.concentration_units.parse()?,
     };
     indicators.fields()?;
+    let mut horizons = HorizonChoice {
+        enabled: !args.no_horizons,
+        ..HorizonChoice::default()
+    };
+    for text in &args.omega_thresholds {
+        horizons.add_thresholds(text)?;
+    }
+    horizons.plan(&indicators)?;
     let memory_budget_bytes = parse_memory_size(&args.memory_budget)?;
     let constants = args.constants.choice()?;
     let stop_after_steps = match std::env::var(STOP_AFTER_STEPS_ENV) {
@@ -110,6 +132,7 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         deflate_level: args.deflate_level,
         stop_after_steps,
         max_rows_per_slab: None,
+        horizons,
         stop,
     };
     let mut progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {
@@ -170,8 +193,9 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
         "Wrote {output}\n\
          cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
          wall time: {:.2} s; throughput {:.3e} cells/s\n\
-         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s, write {:.2} s\n\
+         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s (of which horizons and volumes {:.2} s), write {:.2} s\n\
          {}\n\
+         {}\
          peak memory estimate: {}\n\
          open it with: ncdump -h {output}   or   python3 -c \"import xarray; print(xarray.open_dataset('{output}'))\"",
         summary.cells_processed,
@@ -184,8 +208,13 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
         summary.cells_processed as f64 / seconds,
         summary.read.as_secs_f64(),
         summary.compute.as_secs_f64(),
+        summary.columns.as_secs_f64(),
         summary.write.as_secs_f64(),
         flag_summary(summary, constants),
+        summary
+            .extent
+            .as_ref()
+            .map_or(String::new(), |e| format!("{e}horizon depths per step: the horizon_depth_* and horizon_status_* variables\n")),
         format_bytes(summary.plan.estimated_peak_bytes()),
     )
 }

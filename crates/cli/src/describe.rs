@@ -2,7 +2,10 @@
 
 use crate::run_options::RunOptions;
 use acidscape_gridio::Run;
-use acidscape_pipeline::{parse_memory_size, plan_slabs, IndicatorChoice};
+use acidscape_pipeline::geometry::ColumnGeometry;
+use acidscape_pipeline::{
+    parse_memory_size, plan_slabs, ColumnLoad, HorizonChoice, HorizonPlan, IndicatorChoice,
+};
 use clap::Args;
 use std::error::Error;
 
@@ -26,15 +29,30 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     let run = Run::open(&spec)?;
     println!("{}", run.report());
     let shape = run.shape();
-    let fields = IndicatorChoice::default().fields()?.len();
+    let indicators = IndicatorChoice::default();
+    let fields = indicators.fields()?.len();
+    let horizons = HorizonChoice::default().plan(&indicators)?;
+    let columns = horizons
+        .as_ref()
+        .map_or(ColumnLoad::default(), HorizonPlan::column_load);
     let plan = plan_slabs(
         [shape.levels, shape.rows, shape.cols],
         run.time_steps(),
         fields,
+        columns,
         budget,
     )?;
-    println!("Work split for `compute` with its default indicators:");
+    println!("Work split for `compute` with its default indicators and horizons:");
     println!("{plan}");
+    println!("Cells' geometry for the saturation horizons and volumes:");
+    match ColumnGeometry::of(&run) {
+        Ok(geometry) => {
+            println!("  cell areas: {}", geometry.area_source);
+            println!("  sea floor: {}", geometry.sea_floor_source);
+            println!("  level bounds: {}", geometry.vertical.describe());
+        }
+        Err(why) => println!("  compute would stop here unless given --no-horizons: {why}"),
+    }
     let implausible = run.implausible_inputs();
     if !implausible.is_empty() && !accepted {
         return Err(format!(

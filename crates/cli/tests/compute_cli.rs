@@ -199,6 +199,33 @@ fn bad_inputs_and_options_fail_before_any_output() {
         &compute(&inputs, &output, &["--memory-budget", "lots"], &[]),
         "--memory-budget",
     );
+    check_nothing_written(
+        &compute(&inputs, &output, &["--omega-thresholds", "quartz=1.5"], &[]),
+        "unknown mineral 'quartz'",
+    );
+    check_nothing_written(
+        &compute(
+            &inputs,
+            &output,
+            &[
+                "--indicators",
+                "ph,omega-aragonite",
+                "--omega-thresholds",
+                "calcite=2",
+            ],
+            &[],
+        ),
+        "omega-calcite is not among the indicators computed",
+    );
+    check_nothing_written(
+        &compute(
+            &inputs,
+            &output,
+            &["--no-horizons", "--omega-thresholds", "aragonite=1.5"],
+            &[],
+        ),
+        "--no-horizons",
+    );
 
     // An output directory that cannot exist (its parent is a file) fails before compute.
     let blocker = dir.path().join("a-file");
@@ -461,7 +488,8 @@ fn copied_and_touched_inputs_resume_and_changed_ones_are_refused() {
     assert!(partial(&output).exists() && !output.exists());
 }
 
-/// The end-of-run summary counts every bit of the flag as the output holds it.
+/// The end-of-run summary counts every bit of the flag as the output holds it, and reports
+/// the corrosive water as the extent table holds it.
 #[test]
 fn the_summary_counts_each_flag_bit() {
     let dir = tempfile::tempdir().unwrap();
@@ -506,4 +534,34 @@ fn the_summary_counts_each_flag_bit() {
         stdout.contains(&format!("and {no_flag} with no flag set")),
         "{stdout}"
     );
+    assert_summary_reports_the_extent_table(&stdout, &output);
+}
+
+/// The end-of-run summary reports the corrosive water of the first and last step as the
+/// table beside the output holds it.
+fn assert_summary_reports_the_extent_table(stdout: &str, output: &Path) {
+    let table = std::fs::read_to_string(output.with_extension("extent.csv")).unwrap();
+    let value = |step: usize, quantity: &str| -> f64 {
+        let prefix = format!(",{step},{quantity},aragonite,1,");
+        let line = table
+            .lines()
+            .find(|l| l.contains(&prefix))
+            .unwrap_or_else(|| panic!("no {quantity} at step {step}:\n{table}"));
+        line.split(',').nth(5).unwrap().parse().unwrap()
+    };
+    for step in [1, SAMPLE_STEPS] {
+        let fraction = 100.0 * value(step, "volume_fraction_below_threshold");
+        let depth = value(step, "mean_horizon_depth");
+        let line = stdout
+            .lines()
+            .find(|l| l.trim_start().starts_with(&format!("step {step} (")))
+            .unwrap_or_else(|| panic!("no line for step {step}: {stdout}"));
+        assert!(
+            line.contains(&format!(
+                "aragonite: {fraction:.1} % of the volume, mean horizon depth {depth:.0} m"
+            )),
+            "{line}"
+        );
+    }
+    assert!(stdout.contains("out.extent.csv"), "{stdout}");
 }

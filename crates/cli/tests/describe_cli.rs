@@ -43,7 +43,17 @@ fn explains_a_cmip_style_run_and_its_work_split() {
     );
     let text = String::from_utf8_lossy(&out.stdout);
     for expected in [
-        "dissic", "talk", "thetao", "mol m-3", "noleap", "12 steps", "slab",
+        "dissic",
+        "talk",
+        "thetao",
+        "mol m-3",
+        "noleap",
+        "12 steps",
+        "slab",
+        // The geometry the horizons and volumes would use (sample-grids/README.md).
+        "cell areas: the run's 'areacello'",
+        "sea floor: the run's 'deptho'",
+        "level bounds: level bounds 'lev_bnds' of 'lev'",
     ] {
         assert!(
             text.contains(expected),

@@ -11,6 +11,7 @@ use acidscape_drawing::{
 use acidscape_figures::Palette;
 use common::draw::*;
 use common::{acidscape, compute, text};
+use std::path::Path;
 
 #[test]
 fn comparisons_give_difference_maps_sections_and_regional_series_of_the_right_data() {
@@ -84,27 +85,47 @@ fn comparisons_give_difference_maps_sections_and_regional_series_of_the_right_da
         Some((1.0, "omega_aragonite_steep".to_string()))
     );
 
-    // A section along grid column 20 shows that column's late-window values and the horizon
-    // where they cross 1 (linear in depth on ln Ω between the level centres).
-    let section = SectionPlan::new(&section_request(
-        &pathways,
-        "omega_aragonite_steep",
-        window("late"),
-        LineRequest {
-            column: Some(20),
-            ..LineRequest::default()
-        },
-        dir.path().join("c.png"),
-    ))
-    .unwrap();
-    let centres = read_all(&pathways, "lev");
-    let bounds = read_all(&pathways, "lev_bnds");
-    let levels: Vec<Vec<f64>> = (0..centres.len())
-        .map(|k| read_level(&pathways, "omega_aragonite_steep", 1, k))
-        .collect();
+    // A section along grid column 20 shows that column's late-window values and the
+    // window-mean horizon depths the comparison wrote.
+    let along_column_20 = |file: &Path, out: &str| {
+        SectionPlan::new(&section_request(
+            file,
+            "omega_aragonite_steep",
+            window("late"),
+            LineRequest {
+                column: Some(20),
+                ..LineRequest::default()
+            },
+            dir.path().join(out),
+        ))
+        .unwrap()
+    };
+    let section = along_column_20(&pathways, "c.png");
+    let horizons = section.horizons();
+    assert_eq!(horizons[0].1, "horizon_depth_aragonite_steep");
+    assert!(!horizons[0].2, "read from the file, not computed");
+    let written = read_map(&pathways, "horizon_depth_aragonite_steep", 1);
     let (columns, lines) = section.data().unwrap();
     assert_eq!(columns.len(), 22);
-    let mut crossings = 0;
+    let mut found = 0;
+    for (j, depth) in lines[0].depths.iter().enumerate() {
+        let want = written[j * 30 + 20];
+        assert!(
+            *depth == want || (depth.is_nan() && want.is_nan()),
+            "column {j}"
+        );
+        found += usize::from(want.is_finite());
+    }
+    assert!(found > 10);
+    let values_of_column_20 = |file: &Path| {
+        let centres = read_all(file, "lev");
+        let bounds = read_all(file, "lev_bnds");
+        let levels: Vec<Vec<f64>> = (0..centres.len())
+            .map(|k| read_level(file, "omega_aragonite_steep", 1, k))
+            .collect();
+        (centres, bounds, levels)
+    };
+    let (_, bounds, levels) = values_of_column_20(&pathways);
     for (j, column) in columns.iter().enumerate() {
         let expected: Vec<f64> = levels.iter().map(|l| l[j * 30 + 20]).collect();
         let same = column
@@ -115,6 +136,33 @@ fn comparisons_give_difference_maps_sections_and_regional_series_of_the_right_da
         assert!(same, "column {j}: {:?} vs {expected:?}", column.values);
         assert_eq!(column.interfaces[0], bounds[0]);
         assert_eq!(column.interfaces[1], bounds[1]);
+    }
+
+    // Without horizon depths in the comparison, the section finds where the window-mean
+    // profile crosses 1 (linear in depth on ln Ω between the level centres).
+    let omega_only = dir.path().join("omega-only.nc");
+    let result = acidscape(&[
+        "compare",
+        &s,
+        "--window",
+        "reference=2015-2034,late=2081-2100",
+        "--fields",
+        "omega_aragonite,omega_calcite",
+        "-o",
+        omega_only.to_str().unwrap(),
+    ]);
+    assert!(result.status.success(), "{}", text(&result).1);
+    let section = along_column_20(&omega_only, "c2.png");
+    assert_eq!(section.horizons()[0].1, "omega_aragonite_steep");
+    assert!(
+        section.horizons()[0].2,
+        "computed from the window-mean profile"
+    );
+    let (centres, _, levels) = values_of_column_20(&omega_only);
+    let (_, lines) = section.data().unwrap();
+    let mut crossings = 0;
+    for j in 0..22 {
+        let expected: Vec<f64> = levels.iter().map(|l| l[j * 30 + 20]).collect();
         let first_below = expected.iter().position(|&v| v < 1.0);
         if let Some(k) = first_below.filter(|&k| k > 0) {
             let (w0, w1) = (expected[k - 1], expected[k]);

@@ -13,6 +13,8 @@ pub mod units;
 
 mod axes;
 mod catalog;
+mod cell_geometry;
+mod cell_outlines;
 mod conversion;
 mod discovery;
 mod error;
@@ -33,6 +35,8 @@ mod timeline;
 mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
+pub use cell_geometry::{CellGeometry, ColumnField, VerticalCells};
+pub use cell_outlines::CellOutlines;
 pub use error::{GridError, Result};
 pub use indicator_file::{
     bounds_between, CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid,
@@ -140,6 +144,9 @@ pub struct SlabInputs {
     pub silicate: Vec<f64>,
     /// Density used for per-volume <-> per-mass [kg m-3].
     pub density_kg_m3: Vec<f64>,
-    /// Depth of the cell centre [m], positive down.
+    /// Depth of the cell centre [m], positive down (below the datum for parametric
+    /// coordinates: add `surface_height_m` for the depth below the sea surface).
     pub depth_m: Vec<f64>,
+    /// Free-surface height above the datum per column (rows × cols) [m]; 0 on fixed levels.
+    pub surface_height_m: Vec<f64>,
 }

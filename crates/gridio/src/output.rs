@@ -142,7 +142,7 @@ fn copy_with_bounds(
 }
 
 /// The grid file if it has the variable, else the first file that does.
-fn holder<'f>(run: &Run, files: &'f [InputFile], name: &str) -> Option<&'f InputFile> {
+pub(crate) fn holder<'f>(run: &Run, files: &'f [InputFile], name: &str) -> Option<&'f InputFile> {
     let grid = &files[run.grid_file];
     if grid.nc.variable(name).is_some() {
         return Some(grid);

@@ -389,6 +389,40 @@ impl Run {
         Some((date(t.values.first()), date(t.values.last())))
     }
 
+    /// The time of every step in the run's calendar as ISO 8601 text: the date alone
+    /// ("2015-01-16") when every step falls at midnight, else date and time
+    /// ("2015-01-16T12:00:00"). One empty string for a run without time.
+    pub fn step_dates(&self) -> Vec<String> {
+        let Some(t) = &self.time else {
+            return vec![String::new()];
+        };
+        let dates: Vec<Option<crate::calendar::DateTime>> = t
+            .values
+            .iter()
+            .map(|v| t.axis.to_datetime(*v).ok())
+            .collect();
+        let midnight = dates
+            .iter()
+            .flatten()
+            .all(|d| d.hour == 0 && d.minute == 0 && d.second == 0.0);
+        dates
+            .iter()
+            .map(|d| match d {
+                None => String::new(),
+                Some(d) if midnight => format!("{:04}-{:02}-{:02}", d.year, d.month, d.day),
+                Some(d) => format!(
+                    "{:04}-{:02}-{:02}T{:02}:{:02}:{:02}",
+                    d.year,
+                    d.month,
+                    d.day,
+                    d.hour,
+                    d.minute,
+                    d.second.floor() as u32
+                ),
+            })
+            .collect()
+    }
+
     /// Conversions applied, checks accepted and approximations made, for output metadata.
     pub fn provenance(&self) -> Vec<(String, String)> {
         crate::report::provenance(self)

@@ -86,7 +86,11 @@ impl Run {
         let cols = self.shape.cols;
         let cells = self.shape.levels * raw.rows.len() * cols;
 
-        // Depth and sea pressure per cell.
+        // Depth and sea pressure per cell; the free surface per column.
+        let surface_height_m = match &raw.heights {
+            Some((_, eta)) => eta.clone(),
+            None => vec![0.0; raw.rows.len() * cols],
+        };
         let (depth_m, mut pressure_dbar) =
             self.depth_and_pressure(&raw.rows, &raw.latitude, raw.heights);
         let step = raw.step;
@@ -193,6 +197,7 @@ impl Run {
             silicate,
             pressure_dbar,
             depth_m,
+            surface_height_m,
         }
     }
 

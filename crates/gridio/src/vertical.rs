@@ -80,10 +80,7 @@ impl Vertical {
             Vertical::Surface => 1,
             Vertical::Depths { depth_m, .. } => depth_m.len(),
             Vertical::Pressures { dbar, .. } => dbar.len(),
-            Vertical::Parametric(p) => match &p.formula {
-                Formula::Sigma { sigma } => sigma.len(),
-                Formula::SG1 { s, .. } | Formula::SG2 { s, .. } => s.len(),
-            },
+            Vertical::Parametric(p) => p.formula.level_values().len(),
         }
     }
 
@@ -168,21 +165,150 @@ impl Vertical {
                 let levels = self.levels();
                 let mut z = Vec::with_capacity(levels * columns);
                 for k in 0..levels {
-                    for c in 0..columns {
-                        let (e, d) = (eta[c], depth[c]);
-                        z.push(match &p.formula {
-                            Formula::Sigma { sigma } => sigma_height(sigma[k], e, d),
-                            Formula::SG1 { s, c: cs, depth_c } => {
-                                s_g1_height(s[k], cs[k], *depth_c, e, d)
-                            }
-                            Formula::SG2 { s, c: cs, depth_c } => {
-                                s_g2_height(s[k], cs[k], *depth_c, e, d)
-                            }
-                        });
-                    }
+                    z.extend((0..columns).map(|c| p.formula.height(k, eta[c], depth[c])));
                 }
                 Ok((z, eta))
             }
+        }
+    }
+}
+
+/// A coordinate's `formula_terms`, parsed, with what an error about it must name.
+struct FormulaTerms<'a> {
+    pairs: Vec<(String, String)>,
+    text: &'a str,
+    standard_name: &'a str,
+    file: &'a std::path::Path,
+    variable: &'a str,
+}
+
+impl<'a> FormulaTerms<'a> {
+    fn parse(
+        text: &'a str,
+        standard_name: &'a str,
+        file: &'a std::path::Path,
+        variable: &'a str,
+    ) -> Result<Self> {
+        let mut terms = FormulaTerms {
+            pairs: Vec::new(),
+            text,
+            standard_name,
+            file,
+            variable,
+        };
+        terms.pairs = parse_formula_terms(text).ok_or_else(|| {
+            terms.fail(format!(
+                "formula_terms \"{text}\" is not of the form \"term: variable term: variable ...\""
+            ))
+        })?;
+        Ok(terms)
+    }
+
+    fn fail(&self, message: String) -> GridError {
+        GridError::Metadata {
+            file: self.file.to_path_buf(),
+            variable: self.variable.to_string(),
+            message,
+        }
+    }
+
+    /// The variable named for `key`, or an error saying the term is missing.
+    fn get(&self, key: &str) -> Result<String> {
+        self.pairs
+            .iter()
+            .find(|(k, _)| k == key)
+            .map(|(_, v)| v.clone())
+            .ok_or_else(|| {
+                self.fail(format!(
+                    "formula_terms \"{}\" lacks the term '{key}:' needed by {}",
+                    self.text, self.standard_name
+                ))
+            })
+    }
+}
+
+/// The formula of the parametric coordinate `name` in `file` (its `standard_name` and
+/// `formula_terms` text given), with its per-level terms and `depth_c` read from the file.
+pub(crate) fn formula_from(
+    file: &InputFile,
+    name: &str,
+    standard_name: &str,
+    terms_text: &str,
+) -> Result<Formula> {
+    let fail = |message: String| GridError::Metadata {
+        file: file.path.clone(),
+        variable: name.to_string(),
+        message,
+    };
+    let terms = FormulaTerms::parse(terms_text, standard_name, &file.path, name)?;
+    let term = |key: &str| terms.get(key);
+    let values_of = |key: &str| -> Result<Vec<f64>> {
+        let v = term(key)?;
+        let var = require_var(file, &v, "formula_terms")?;
+        read_all(&file.path, &var)
+    };
+    let formula = match standard_name {
+        "ocean_sigma_coordinate" => Formula::Sigma {
+            sigma: values_of("sigma")?,
+        },
+        "ocean_s_coordinate_g1" | "ocean_s_coordinate_g2" => {
+            let s = values_of("s")?;
+            let c = values_of("C")?;
+            let dc_name = term("depth_c")?;
+            let dc_var = require_var(file, &dc_name, "formula_terms")?;
+            let depth_c_raw = read_all(&file.path, &dc_var)?;
+            let dc_units = attr_text(&dc_var, "units").unwrap_or_else(|| "m".to_string());
+            let dc_factor = units::parse_length(&dc_units).map(|u| u.to_m).map_err(|e| GridError::Units {
+                file: file.path.clone(),
+                variable: dc_name.clone(),
+                message: e.to_string(),
+            })?;
+            let depth_c = depth_c_raw
+                .first()
+                .copied()
+                .filter(|v| v.is_finite() && *v >= 0.0)
+                .ok_or_else(|| fail(format!("depth_c variable '{dc_name}' must hold one finite, non-negative value")))?
+                * dc_factor;
+            if c.len() != s.len() {
+                return Err(fail(format!("formula term C has {} values but s has {}", c.len(), s.len())));
+            }
+            if standard_name == "ocean_s_coordinate_g1" {
+                Formula::SG1 { s, c, depth_c }
+            } else {
+                Formula::SG2 { s, c, depth_c }
+            }
+        }
+        other => {
+            return Err(fail(format!(
+                "parametric vertical coordinate '{other}' is not supported; expected ocean_sigma_coordinate, ocean_s_coordinate_g1 or ocean_s_coordinate_g2"
+            )))
+        }
+    };
+    let levels_values = formula.level_values();
+    if !strictly_monotonic(levels_values) {
+        return Err(fail(format!(
+            "vertical coordinate values are not strictly monotonic ({levels_values:?})"
+        )));
+    }
+    Ok(formula)
+}
+
+impl Formula {
+    /// The nondimensional coordinate of each level (sigma or s).
+    pub fn level_values(&self) -> &[f64] {
+        match self {
+            Formula::Sigma { sigma } => sigma,
+            Formula::SG1 { s, .. } | Formula::SG2 { s, .. } => s,
+        }
+    }
+
+    /// Height of level `k` [m, positive up, relative to the datum] for free-surface height
+    /// `eta` and sea-floor depth `depth` [m] (CF Conventions Appendix D).
+    pub fn height(&self, k: usize, eta: f64, depth: f64) -> f64 {
+        match self {
+            Formula::Sigma { sigma } => sigma_height(sigma[k], eta, depth),
+            Formula::SG1 { s, c, depth_c } => s_g1_height(s[k], c[k], *depth_c, eta, depth),
+            Formula::SG2 { s, c, depth_c } => s_g2_height(s[k], c[k], *depth_c, eta, depth),
         }
     }
 }
@@ -224,23 +350,8 @@ pub(crate) fn vertical_from(
     };
     let standard_name = attr_text(&var, "standard_name").unwrap_or_default();
     if let Some(terms_text) = attr_text(&var, "formula_terms") {
-        let terms = parse_formula_terms(&terms_text).ok_or_else(|| {
-            fail(format!(
-                "formula_terms \"{terms_text}\" is not of the form \"term: variable term: variable ...\""
-            ))
-        })?;
-        let term = |key: &str| -> Result<String> {
-            terms
-                .iter()
-                .find(|(k, _)| k == key)
-                .map(|(_, v)| v.clone())
-                .ok_or_else(|| fail(format!("formula_terms \"{terms_text}\" lacks the term '{key}:' needed by {standard_name}")))
-        };
-        let values_of = |key: &str| -> Result<Vec<f64>> {
-            let v = term(key)?;
-            let var = require_var(file, &v, "formula_terms")?;
-            read_all(&file.path, &var)
-        };
+        let terms = FormulaTerms::parse(&terms_text, &standard_name, &file.path, name)?;
+        let term = |key: &str| terms.get(key);
         let length_factor = |var_name: &str, source: &VarSource| -> Result<f64> {
             let holder = &files[source.pieces[0].file];
             let v = require_var(holder, var_name, "formula_terms")?;
@@ -253,58 +364,14 @@ pub(crate) fn vertical_from(
                     message: e.to_string(),
                 })
         };
-        let formula = match standard_name.as_str() {
-            "ocean_sigma_coordinate" => Formula::Sigma {
-                sigma: values_of("sigma")?,
-            },
-            "ocean_s_coordinate_g1" | "ocean_s_coordinate_g2" => {
-                let s = values_of("s")?;
-                let c = values_of("C")?;
-                let dc_name = term("depth_c")?;
-                let dc_var = require_var(file, &dc_name, "formula_terms")?;
-                let depth_c_raw = read_all(&file.path, &dc_var)?;
-                let dc_units = attr_text(&dc_var, "units").unwrap_or_else(|| "m".to_string());
-                let dc_factor = units::parse_length(&dc_units).map(|u| u.to_m).map_err(|e| GridError::Units {
-                    file: file.path.clone(),
-                    variable: dc_name.clone(),
-                    message: e.to_string(),
-                })?;
-                let depth_c = depth_c_raw
-                    .first()
-                    .copied()
-                    .filter(|v| v.is_finite() && *v >= 0.0)
-                    .ok_or_else(|| fail(format!("depth_c variable '{dc_name}' must hold one finite, non-negative value")))?
-                    * dc_factor;
-                if c.len() != s.len() {
-                    return Err(fail(format!("formula term C has {} values but s has {}", c.len(), s.len())));
-                }
-                if standard_name == "ocean_s_coordinate_g1" {
-                    Formula::SG1 { s, c, depth_c }
-                } else {
-                    Formula::SG2 { s, c, depth_c }
-                }
-            }
-            other => {
-                return Err(fail(format!(
-                    "parametric vertical coordinate '{other}' is not supported; expected ocean_sigma_coordinate, ocean_s_coordinate_g1 or ocean_s_coordinate_g2"
-                )))
-            }
-        };
-        let levels_values = match &formula {
-            Formula::Sigma { sigma } => sigma,
-            Formula::SG1 { s, .. } | Formula::SG2 { s, .. } => s,
-        };
-        if !strictly_monotonic(levels_values) {
-            return Err(fail(format!(
-                "vertical coordinate values are not strictly monotonic ({levels_values:?})"
-            )));
-        }
+        let formula = formula_from(file, name, &standard_name, &terms_text)?;
         let eta_name = term("eta")?;
         let depth_name = term("depth")?;
         let eta = locate(&eta_name)?;
         let depth = locate(&depth_name)?;
         let eta_to_m = length_factor(&eta_name, &eta)?;
         let depth_to_m = length_factor(&depth_name, &depth)?;
+        let term_vars = terms.pairs.iter().map(|(_, v)| v.clone()).collect();
         return Ok(Vertical::Parametric(Box::new(Parametric {
             name: name.to_string(),
             standard_name,
@@ -313,7 +380,7 @@ pub(crate) fn vertical_from(
             eta_to_m,
             depth,
             depth_to_m,
-            term_vars: terms.into_iter().map(|(_, v)| v).collect(),
+            term_vars,
         })));
     }
     let values = read_all(&file.path, &var)?;

@@ -184,21 +184,6 @@ fn dimension_order_does_not_change_the_slab() {
     assert_eq!(read[1].salinity[c], s);
 }
 
-fn single_file_run(
-    dir: &std::path::Path,
-    coords: Vec<common::Var>,
-    extra_dims: &[(&'static str, usize)],
-) -> Run {
-    let g = GRID;
-    let mut vars = coords;
-    vars.extend(required_vars("tzyx", 0..1, g));
-    let mut all_dims = dims(g, 1);
-    all_dims.extend_from_slice(extra_dims);
-    let path = dir.join("run.nc");
-    write_nc(&path, &all_dims, &vars);
-    Run::open(&spec(vec![path.display().to_string()])).unwrap()
-}
-
 #[test]
 fn positive_up_and_down_give_the_same_depths() {
     let dir = tempdir().unwrap();
@@ -219,40 +204,6 @@ fn positive_up_and_down_give_the_same_depths() {
     }
     assert_eq!(depths[0], depths[1]);
     assert_eq!(depths[0][40], 1000.0);
-}
-
-fn parametric_coords(standard_name: &str, formula_terms: &str) -> Vec<common::Var> {
-    let g = GRID;
-    let mut coords = coordinates(g, &[15.5], "days since 2015-01-01", "noleap");
-    let levels = match standard_name {
-        "ocean_sigma_coordinate" => vec![-0.75, -0.25, -0.05],
-        _ => vec![-0.9, -0.5, -0.1],
-    };
-    coords[1] = common::Var::new("lev", &["lev"], levels)
-        .attr("standard_name", standard_name)
-        .attr("positive", "up")
-        .attr("formula_terms", formula_terms)
-        .attr("units", "1");
-    coords.push(common::Var::new("Cs", &["lev"], vec![-0.8, -0.3, -0.05]));
-    coords.push(common::Var::new("hc", &[], vec![10.0]).attr("units", "m"));
-    // Bathymetry 100 m + 50 m per row; free surface 0.5 m + 0.25 m per column (synthetic).
-    let h: Vec<f64> = (0..g.rows)
-        .flat_map(|j| (0..g.cols).map(move |_| 100.0 + 50.0 * j as f64))
-        .collect();
-    coords.push(
-        common::Var::new("h", &["lat", "lon"], h)
-            .attr("units", "m")
-            .attr("standard_name", "sea_floor_depth_below_geoid"),
-    );
-    let zeta: Vec<f64> = (0..g.rows)
-        .flat_map(|_| (0..g.cols).map(|i| 0.5 + 0.25 * i as f64))
-        .collect();
-    coords.push(
-        common::Var::new("zeta", &["time", "lat", "lon"], zeta)
-            .attr("units", "m")
-            .attr("standard_name", "sea_surface_height_above_geoid"),
-    );
-    coords
 }
 
 #[test]

@@ -21,42 +21,98 @@ pub struct SlabResult {
     pub fields: Vec<Vec<f32>>,
     pub flags: Vec<Flag>,
     pub counts: FlagCounts,
+    /// Ω as solved, in f64, for the column analysis (horizons, corrosive extent); empty
+    /// unless asked for with [`KeepOmega`].
+    pub omega: SaturationStates,
 }
 
-/// One rayon task's share: first cell index, its piece of every field, its flags.
-type Block<'a> = (usize, Vec<&'a mut [f32]>, &'a mut [Flag]);
+/// Ω aragonite and Ω calcite per cell of a slab in f64 (NaN where a cell has no value).
+#[derive(Debug, Default)]
+pub struct SaturationStates {
+    pub aragonite: Vec<f64>,
+    pub calcite: Vec<f64>,
+}
+
+/// Which saturation states [`solve_slab`] keeps in f64 besides the output fields.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct KeepOmega {
+    pub aragonite: bool,
+    pub calcite: bool,
+}
+
+/// One rayon task's share: first cell index, its piece of every field, its flags, its piece
+/// of each kept saturation state.
+type Block<'a> = (
+    usize,
+    Vec<&'a mut [f32]>,
+    &'a mut [Flag],
+    [Option<&'a mut [f64]>; 2],
+);
 
 /// Cells handed to one rayon task: large enough to amortise scheduling.
 const CELLS_PER_TASK: usize = 4096;
 
-/// Solves every cell of `inputs` and fills the requested fields and the flags.
+/// Solves every cell of `inputs` and fills the requested fields, the flags and the kept
+/// saturation states (in `spare`'s buffers, which may hold a previous slab's values).
 pub fn solve_slab(
     inputs: &SlabInputs,
     fields: &[OutputField],
     choice: &ConstantChoice,
+    keep: KeepOmega,
+    spare: SaturationStates,
 ) -> SlabResult {
     let cells = inputs.shape.iter().product::<usize>();
     let mut values: Vec<Vec<f32>> = fields.iter().map(|_| vec![VALUE_FILL; cells]).collect();
     let mut flags = vec![FLAG_FILL; cells];
+    // The kept states reuse `spare` (the previous slab's) as they are: every cell is written
+    // once below, on the rayon pool, so no pass over the slab precedes the solve.
+    let kept = |on: bool, mut buffer: Vec<f64>| {
+        if on {
+            buffer.resize(cells, 0.0);
+            buffer
+        } else {
+            Vec::new()
+        }
+    };
+    let mut omega = [
+        kept(keep.aragonite, spare.aragonite),
+        kept(keep.calcite, spare.calcite),
+    ];
 
     // Split every field and the flags into the same blocks, then hand blocks to rayon.
     let mut blocks: Vec<Block<'_>> = flags
         .chunks_mut(CELLS_PER_TASK)
         .enumerate()
-        .map(|(i, f)| (i * CELLS_PER_TASK, Vec::with_capacity(fields.len()), f))
+        .map(|(i, f)| {
+            let start = i * CELLS_PER_TASK;
+            (start, Vec::with_capacity(fields.len()), f, [None, None])
+        })
         .collect();
     for field in values.iter_mut() {
         for (block, chunk) in blocks.iter_mut().zip(field.chunks_mut(CELLS_PER_TASK)) {
             block.1.push(chunk);
         }
     }
+    for (m, states) in omega.iter_mut().enumerate() {
+        for (block, chunk) in blocks.iter_mut().zip(states.chunks_mut(CELLS_PER_TASK)) {
+            block.3[m] = Some(chunk);
+        }
+    }
     let counts = blocks
         .into_par_iter()
-        .map(|(start, mut outs, flag_block)| {
+        .map(|(start, mut outs, flag_block, mut states)| {
             let mut counts = FlagCounts::default();
             for (offset, flag) in flag_block.iter_mut().enumerate() {
                 let cell = start + offset;
-                *flag = solve_cell(inputs, cell, fields, choice, |k, v| outs[k][offset] = v);
+                let put = |k: usize, v: f32| outs[k][offset] = v;
+                let mut omega = [f64::NAN; 2];
+                let put_omega = |aragonite: f64, calcite: f64| omega = [aragonite, calcite];
+                *flag = solve_cell(inputs, cell, fields, choice, put, put_omega);
+                for (state, value) in states.iter_mut().zip(omega) {
+                    if let Some(state) = state {
+                        state[offset] = value;
+                    }
+                }
                 counts.record(*flag);
             }
             counts
@@ -72,17 +128,23 @@ pub fn solve_slab(
         fields: values,
         flags,
         counts,
+        omega: SaturationStates {
+            aragonite: std::mem::take(&mut omega[0]),
+            calcite: std::mem::take(&mut omega[1]),
+        },
     }
 }
 
-/// Solves one cell; calls `put(field index, value)` for each field when solved and
-/// returns the flag (or [`FLAG_FILL`] for land: every primary input missing).
+/// Solves one cell; calls `put(field index, value)` for each field and `put_omega(Ω
+/// aragonite, Ω calcite)` when solved, and returns the flag (or [`FLAG_FILL`] for land: every
+/// primary input missing).
 pub fn solve_cell(
     inputs: &SlabInputs,
     cell: usize,
     fields: &[OutputField],
     choice: &ConstantChoice,
     mut put: impl FnMut(usize, f32),
+    mut put_omega: impl FnMut(f64, f64),
 ) -> Flag {
     let temperature_c = inputs.temperature_c[cell];
     let salinity = inputs.salinity[cell];
@@ -156,6 +218,7 @@ pub fn solve_cell(
         }
         return NO_PHYSICAL_SOLUTION | ranges(solution.validity);
     }
+    put_omega(solution.omega_aragonite, solution.omega_calcite);
     // Only breaches that can move an indicator count (KF's range does not: Validity::MATERIAL).
     ranges(solution.validity)
 }

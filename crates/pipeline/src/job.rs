@@ -2,15 +2,19 @@
 //! (see [`crate::stream`]), durable progress after every time step, and the final rename.
 //! Any failure once the partial output holds finished work leaves it resumable.
 
+use crate::columns::ColumnWork;
 use crate::error::nc;
+use crate::extent_table::{write_extent_table, ExtentOverview};
 use crate::flags::{Flag, FlagCounts};
+use crate::geometry::ColumnGeometry;
+use crate::horizon_choice::{HorizonChoice, HorizonPlan};
 use crate::indicators::{IndicatorChoice, OutputField};
 use crate::leftovers::{check_leftovers, remove_leftovers, Leftovers};
 use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
     FLAG_VARIABLE,
 };
-use crate::plan::{plan_slabs, SlabPlan};
+use crate::plan::{plan_slabs, ColumnLoad, SlabPlan};
 use crate::repair::restore_cut_tail;
 use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
 use crate::stop::StopRequest;
@@ -58,6 +62,8 @@ pub struct JobOptions {
     pub stop_after_steps: Option<usize>,
     /// Upper limit on rows per slab, below what the budget allows (tests, tuning).
     pub max_rows_per_slab: Option<usize>,
+    /// Saturation horizons and the extent of corrosive water.
+    pub horizons: HorizonChoice,
     /// Set from outside (signal handlers) to stop after the current slab.
     pub stop: StopRequest,
 }
@@ -78,15 +84,30 @@ pub struct JobSummary {
     /// file I/O only, `compute` the unit and TEOS-10 conversions plus the solver.
     pub read: Duration,
     pub compute: Duration,
+    /// Of `compute`: the column analysis (horizons, thicknesses, corrosive extent).
+    pub columns: Duration,
     pub write: Duration,
+    /// The corrosive-extent table written beside the output, with its first and last steps.
+    pub extent: Option<ExtentOverview>,
+}
+
+/// What a job plans to do: the slabs, the output fields and the horizons.
+#[derive(Clone, Debug)]
+pub struct JobPlan {
+    pub slabs: SlabPlan,
+    pub fields: Vec<OutputField>,
+    pub horizons: Option<HorizonPlan>,
+    /// The output file.
+    pub output: PathBuf,
 }
 
 /// Plans a job without running it: checks options and output path, and splits the work.
-pub fn plan_job(
-    run: &Run,
-    options: &JobOptions,
-) -> Result<(SlabPlan, Vec<OutputField>), PipelineError> {
+pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineError> {
     let fields = options.indicators.fields()?;
+    let horizons = options.horizons.plan(&options.indicators)?;
+    let columns = horizons
+        .as_ref()
+        .map_or(ColumnLoad::default(), HorizonPlan::column_load);
     if !(0..=9).contains(&options.deflate_level) {
         return Err(PipelineError::Option {
             option: "--deflate-level".into(),
@@ -101,13 +122,19 @@ pub fn plan_job(
         [shape.levels, shape.rows, shape.cols],
         run.time_steps(),
         fields.len(),
+        columns,
         options.memory_budget_bytes,
     )?;
     if let Some(limit) = options.max_rows_per_slab {
         plan.limit_rows_per_slab(limit);
     }
     check_output_path(run, options, plan.steps)?;
-    Ok((plan, fields))
+    Ok(JobPlan {
+        slabs: plan,
+        fields,
+        horizons,
+        output: options.output.clone(),
+    })
 }
 
 /// Refuses outputs that would overwrite an input, and leftovers the user did not say what
@@ -148,7 +175,12 @@ fn check_output_path(run: &Run, options: &JobOptions, steps: usize) -> Result<()
 
 /// Lines describing everything but the inputs' content that decides the output's values
 /// (see [`ProgressRecord`]).
-fn job_description(run: &Run, plan: &SlabPlan, options: &JobOptions) -> Vec<String> {
+fn job_description(
+    run: &Run,
+    plan: &SlabPlan,
+    options: &JobOptions,
+    work: Option<&ColumnWork>,
+) -> Vec<String> {
     let mut job = vec![format!("acidscape {}", env!("CARGO_PKG_VERSION"))];
     job.push(format!(
         "grid {} {} {} steps {}",
@@ -161,6 +193,13 @@ fn job_description(run: &Run, plan: &SlabPlan, options: &JobOptions) -> Vec<Stri
     job.push(format!("time axis {:016x}", time.finish()));
     job.push(format!("constants {}", options.constants.describe()));
     job.push(options.indicators.describe());
+    job.push(options.horizons.describe());
+    if let Some(work) = work {
+        let g = work.geometry();
+        job.push(format!("cell areas: {}", g.area_source));
+        job.push(format!("sea floor: {}", g.sea_floor_source));
+        job.push(format!("level bounds: {}", g.vertical.describe()));
+    }
     job.extend(
         run.provenance()
             .into_iter()
@@ -182,12 +221,13 @@ fn input_records(run: &Run) -> Result<Vec<InputRecord>, PipelineError> {
 /// does not start where the interrupted run stopped.
 fn starting_record(
     run: &Run,
-    plan: &SlabPlan,
+    job: &JobPlan,
     options: &JobOptions,
+    work: Option<&ColumnWork>,
     resuming: bool,
     progress: &mut dyn Progress,
 ) -> Result<ProgressRecord, PipelineError> {
-    let job = job_description(run, plan, options);
+    let job = job_description(run, &job.slabs, options, work);
     let inputs = input_records(run)?;
     let output = &options.output;
     if !resuming {
@@ -233,7 +273,9 @@ pub fn run_job(
     progress: &mut dyn Progress,
 ) -> Result<JobSummary, PipelineError> {
     let started = Instant::now();
-    let (plan, fields) = plan_job(run, options)?;
+    let job = plan_job(run, options)?;
+    let work = column_work(run, &job)?;
+    let plan = &job.slabs;
     let output = options.output.clone();
     let partial = partial_path(&output);
     let record_path = progress_path(&output);
@@ -244,7 +286,7 @@ pub fn run_job(
             "the interrupted run had not finished any time step: starting from the beginning",
         );
     }
-    let mut record = starting_record(run, &plan, options, resuming, progress)?;
+    let mut record = starting_record(run, &job, options, work.as_ref(), resuming, progress)?;
     let ended = Ending {
         partial: &partial,
         steps_total: plan.steps,
@@ -268,11 +310,11 @@ pub fn run_job(
     let first_read = read_started.elapsed();
 
     let (mut file, layout) = if resuming {
-        let opened = open_partial(&partial, &plan, first_step, &options.command_line, progress);
+        let opened = open_partial(&partial, plan, first_step, &options.command_line, progress);
         // A partial output that cannot be opened says so itself, with the way out.
         opened?
     } else {
-        create_partial(run, &plan, &fields, options, &partial)?
+        create_partial(run, &job, options, work.as_ref(), &partial)?
     };
     record
         .save(&record_path)
@@ -290,30 +332,69 @@ pub fn run_job(
         record: &mut record,
         record_path: &record_path,
     };
-    let streamed = stream(run, &plan, &fields, options, first, slabs, sink, progress);
+    let streamed = stream(
+        run,
+        plan,
+        &job.fields,
+        options,
+        work.as_ref(),
+        first,
+        slabs,
+        sink,
+        progress,
+    );
     progress.finish();
     let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
-    if record.steps_done < plan.steps {
-        return Err(PipelineError::Internal(format!(
-            "only {} of {} time steps were written",
-            record.steps_done, plan.steps
-        )));
-    }
-    finish_output(file, &partial, &output).map_err(|e| ended.kept(e, plan.steps))?;
+    let extent = finish_job(run, &job, work.as_ref(), file, &record)
+        .map_err(|e| ended.kept(e, plan.steps))?;
     let _ = fs::remove_file(&record_path);
     sync_parent(&output);
 
     Ok(JobSummary {
         output,
-        plan,
+        plan: job.slabs,
         first_step,
         cells_processed: times.cells,
         counts: record.counts,
         wall: started.elapsed(),
         read: first_read + times.read,
         compute: times.compute,
+        columns: times.columns,
         write: times.write,
+        extent,
     })
+}
+
+/// The column analysis of a job, when it computes horizons: reads the cells' geometry.
+fn column_work(run: &Run, job: &JobPlan) -> Result<Option<ColumnWork>, PipelineError> {
+    let Some(plan) = &job.horizons else {
+        return Ok(None);
+    };
+    let geometry = ColumnGeometry::of(run)?;
+    Ok(Some(ColumnWork::new(plan.clone(), geometry)))
+}
+
+/// Once every step is written: the extent table (read back from the output), then the
+/// output closed, made durable and renamed into place.
+fn finish_job(
+    run: &Run,
+    job: &JobPlan,
+    work: Option<&ColumnWork>,
+    file: netcdf::FileMut,
+    record: &ProgressRecord,
+) -> Result<Option<ExtentOverview>, PipelineError> {
+    let (output, partial) = (&job.output, partial_path(&job.output));
+    if record.steps_done < job.slabs.steps {
+        return Err(PipelineError::Internal(format!(
+            "only {} of {} time steps were written",
+            record.steps_done, job.slabs.steps
+        )));
+    }
+    let extent = work
+        .map(|w| write_extent_table(&file, &partial, output, &run.step_dates(), w))
+        .transpose()?;
+    finish_output(file, &partial, output)?;
+    Ok(extent)
 }
 
 /// How a job that ends early reports it: once the partial output holds finished work (or
@@ -349,9 +430,9 @@ impl Ending<'_> {
 /// failure removes the half-defined file: nothing of value is lost.
 fn create_partial(
     run: &Run,
-    plan: &SlabPlan,
-    fields: &[OutputField],
+    job: &JobPlan,
     options: &JobOptions,
+    work: Option<&ColumnWork>,
     partial: &Path,
 ) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
     remove_leftovers(&options.output)?;
@@ -365,7 +446,15 @@ fn create_partial(
             indicators: options.indicators.clone(),
             deflate_level: options.deflate_level,
         };
-        let layout = define_output(&mut file, partial, run, plan, fields, &meta)?;
+        let layout = define_output(
+            &mut file,
+            partial,
+            run,
+            &job.slabs,
+            &job.fields,
+            &meta,
+            work,
+        )?;
         nc(file.sync(), partial, || "flushing definitions".into())?;
         sync_file(partial)?;
         Ok((file, layout))

@@ -7,8 +7,13 @@
 //! so only reading and writing wait on each other. See [`plan`] for the memory model.
 
 pub mod cells;
+pub mod column_output;
+pub mod columns;
 mod error;
+pub mod extent_table;
 pub mod flags;
+pub mod geometry;
+pub mod horizon_choice;
 pub mod indicators;
 pub mod job;
 mod leftovers;
@@ -22,12 +27,14 @@ mod stream;
 
 pub use cells::VALUE_FILL;
 pub use error::PipelineError;
+pub use extent_table::{extent_table_path, ExtentOverview};
 pub use flags::{Flag, FlagBit, FlagCounts, FLAG_BITS, FLAG_FILL};
+pub use horizon_choice::{HorizonChoice, HorizonPlan};
 pub use indicators::{
     parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale,
 };
-pub use job::{plan_job, run_job, JobOptions, JobSummary, NoProgress, Progress};
+pub use job::{plan_job, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Progress};
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};
-pub use plan::{plan_slabs, SlabPlan};
+pub use plan::{plan_slabs, ColumnLoad, SlabPlan};
 pub use stop::{signal_name, StopRequest};

@@ -1,6 +1,10 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
 use crate::cells::{SlabResult, VALUE_FILL};
+use crate::column_output::{
+    define_cell_area, define_column_outputs, ColumnDefinition, CELL_MEASURES,
+};
+use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::flags::{flag_masks, flag_meanings, Flag, ALL_FLAG_BITS, FLAG_BITS, FLAG_FILL};
 use crate::indicators::{IndicatorChoice, OutputField};
@@ -80,6 +84,11 @@ impl OutputLayout {
         extents
     }
 
+    /// The time dimension's name, when the output has one.
+    pub fn time_dim(&self) -> Option<&str> {
+        self.has_time.then(|| self.dims[0].as_str())
+    }
+
     fn chunk(&self, plan: &SlabPlan) -> Vec<usize> {
         let mut chunk = Vec::with_capacity(4);
         if self.has_time {
@@ -113,6 +122,7 @@ pub fn define_output(
     plan: &SlabPlan,
     fields: &[OutputField],
     meta: &OutputMetadata,
+    columns: Option<&ColumnWork>,
 ) -> Result<OutputLayout, PipelineError> {
     let axes = run.write_coordinates(file, 0..plan.steps)?;
     let layout =
@@ -131,6 +141,17 @@ pub fn define_output(
         meta.constants.boron.key()
     );
     let cell_methods = input_cell_methods(&run.input_files());
+    let column_definition = ColumnDefinition {
+        path,
+        layout: &layout,
+        axes: &axes,
+        plan,
+        chunk: &chunk,
+        deflate_level: meta.deflate_level,
+    };
+    if let Some(work) = columns {
+        define_cell_area(file, &column_definition, work)?;
+    }
 
     for field in fields {
         let mut var = nc(file.add_variable::<f32>(field.name, &dims), path, || {
@@ -170,6 +191,9 @@ pub fn define_output(
         if let Some(methods) = &cell_methods {
             attributes.push(("cell_methods", methods.clone()));
         }
+        if columns.is_some() {
+            attributes.push(("cell_measures", CELL_MEASURES.to_string()));
+        }
         for (name, value) in attributes {
             nc(var.put_attribute(name, value), path, || {
                 format!("writing attribute '{name}' of '{}'", field.name)
@@ -180,7 +204,10 @@ pub fn define_output(
         })?;
     }
 
-    define_flag(file, path, &dims, &chunk, &axes, meta)?;
+    define_flag(file, path, &dims, &chunk, &axes, meta, columns.is_some())?;
+    if let Some(work) = columns {
+        define_column_outputs(file, &column_definition, work)?;
+    }
 
     for (name, value) in global_attributes(run, meta) {
         nc(file.add_attribute(&name, value), path, || {
@@ -222,6 +249,7 @@ fn define_flag(
     chunk: &[usize],
     axes: &acidscape_gridio::OutputAxes,
     meta: &OutputMetadata,
+    with_cell_area: bool,
 ) -> Result<(), PipelineError> {
     let mut flag = nc(file.add_variable::<Flag>(FLAG_VARIABLE, dims), path, || {
         format!("defining variable '{FLAG_VARIABLE}'")
@@ -246,6 +274,9 @@ fn define_flag(
     }
     if let Some(grid_mapping) = &axes.grid_mapping {
         texts.push(("grid_mapping", grid_mapping.clone()));
+    }
+    if with_cell_area {
+        texts.push(("cell_measures", CELL_MEASURES.to_string()));
     }
     for (name, value) in texts {
         nc(flag.put_attribute(name, value), path, what)?;

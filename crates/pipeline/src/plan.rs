@@ -8,6 +8,13 @@
 //!   [`INPUT_SLABS_IN_FLIGHT`] slabs exist at once (one being read, one queued, one being solved);
 //! - outputs: 4 B per cell per indicator (f32) + 2 B quality flag (i16); up to
 //!   [`OUTPUT_SLABS_IN_FLIGHT`] at once (one being filled, one queued, one being written);
+//! - saturation horizons and corrosive extent (when computed, see [`ColumnLoad`]): Ω in f64
+//!   for each mineral with horizons, 8 B per cell, one slab's worth (filled by the solve, read
+//!   by the column analysis, then reused by the next slab's solve); the cell thickness, 4 B
+//!   per cell (f32), up to [`OUTPUT_SLABS_IN_FLIGHT`] slabs; per column of a slab, 4 B depth
+//!   and 1 B status per horizon and 4 B sea-floor depth, up to [`OUTPUT_SLABS_IN_FLIGHT`]
+//!   slabs; and for the whole job 16 B per column of the grid (cell area and sea-floor
+//!   depth, f64);
 //! - a fixed [`FIXED_OVERHEAD_BYTES`] for the libraries, HDF5 chunk caches and threads.
 
 use crate::memory::format_bytes;
@@ -29,6 +36,50 @@ pub const FIXED_OVERHEAD_BYTES: u64 = 128 * 1024 * 1024;
 /// fetch small regions without decompressing whole time steps.
 pub const CHUNK_TARGET_BYTES: u64 = 4 * 1024 * 1024;
 
+/// What the column analysis (horizons, corrosive extent) adds to a job, for the memory model.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct ColumnLoad {
+    /// Minerals whose Ω is kept in f64 for horizons (0: no column analysis).
+    pub minerals: usize,
+    /// Horizon fields (one per mineral and threshold).
+    pub horizons: usize,
+}
+
+/// Bytes per cell of Ω kept in f64, per mineral.
+pub const OMEGA_BYTES_PER_CELL: u64 = 8;
+/// Bytes per cell of the cell-thickness output (f32).
+pub const THICKNESS_BYTES_PER_CELL: u64 = 4;
+/// Bytes per grid column held for the whole job: cell area and sea-floor depth (f64).
+pub const GEOMETRY_BYTES_PER_COLUMN: u64 = 16;
+
+impl ColumnLoad {
+    /// Bytes per cell of a slab across everything in flight.
+    fn bytes_per_cell(&self) -> u64 {
+        if self.minerals == 0 {
+            return 0;
+        }
+        OMEGA_BYTES_PER_CELL * self.minerals as u64
+            + OUTPUT_SLABS_IN_FLIGHT * THICKNESS_BYTES_PER_CELL
+    }
+
+    /// Bytes per column of a slab across everything in flight.
+    fn bytes_per_column(&self) -> u64 {
+        if self.minerals == 0 {
+            return 0;
+        }
+        OUTPUT_SLABS_IN_FLIGHT * (5 * self.horizons as u64 + 4)
+    }
+
+    /// Bytes held for the whole job for a grid of `columns` columns.
+    fn fixed_bytes(&self, columns: u64) -> u64 {
+        if self.minerals == 0 {
+            0
+        } else {
+            GEOMETRY_BYTES_PER_COLUMN * columns
+        }
+    }
+}
+
 /// The split of a run into slabs, and the chunk shape of the output variables.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct SlabPlan {
@@ -42,6 +93,8 @@ pub struct SlabPlan {
     pub chunk: [usize; 3],
     /// Output variables (indicators) per cell, not counting the quality flag.
     pub output_fields: usize,
+    /// What the column analysis adds.
+    pub columns: ColumnLoad,
     /// The budget the plan was made for, in bytes.
     pub budget_bytes: u64,
 }
@@ -64,13 +117,21 @@ impl SlabPlan {
 
     /// Bytes per cell of a slab across everything in flight (see the module notes).
     pub fn bytes_per_cell(&self) -> u64 {
-        bytes_per_cell(self.output_fields)
+        bytes_per_cell(self.output_fields, self.columns)
+    }
+
+    /// Bytes held whatever the slab size: the fixed allowance and the per-column geometry.
+    pub fn fixed_bytes(&self) -> u64 {
+        FIXED_OVERHEAD_BYTES
+            + self
+                .columns
+                .fixed_bytes((self.shape[1] * self.shape[2]) as u64)
     }
 
     /// Estimated peak memory of a compute job with this plan.
     pub fn estimated_peak_bytes(&self) -> u64 {
-        FIXED_OVERHEAD_BYTES
-            + self.rows_per_slab as u64 * self.cells_per_row() * self.bytes_per_cell()
+        self.fixed_bytes()
+            + self.rows_per_slab as u64 * row_bytes(self.shape, self.output_fields, self.columns)
     }
 
     /// Makes slabs at most `limit` rows (at least one), with chunks no taller than a slab.
@@ -115,7 +176,7 @@ impl fmt::Display for SlabPlan {
             format_bytes(self.estimated_peak_bytes()),
             self.bytes_per_cell(),
             self.output_fields,
-            format_bytes(FIXED_OVERHEAD_BYTES)
+            format_bytes(self.fixed_bytes())
         )?;
         write!(
             f,
@@ -125,18 +186,28 @@ impl fmt::Display for SlabPlan {
     }
 }
 
-fn bytes_per_cell(output_fields: usize) -> u64 {
+fn bytes_per_cell(output_fields: usize, columns: ColumnLoad) -> u64 {
     INPUT_SLABS_IN_FLIGHT * (INPUT_BYTES_PER_CELL + READ_SCRATCH_BYTES_PER_CELL)
         + OUTPUT_SLABS_IN_FLIGHT
             * (4 * output_fields as u64 + std::mem::size_of::<crate::flags::Flag>() as u64)
+        + columns.bytes_per_cell()
+}
+
+/// Bytes of one grid row of slab (all levels × all columns) across everything in flight.
+fn row_bytes(shape: [usize; 3], output_fields: usize, columns: ColumnLoad) -> u64 {
+    let [levels, _, cols] = shape;
+    (levels * cols) as u64 * bytes_per_cell(output_fields, columns)
+        + cols as u64 * columns.bytes_per_column()
 }
 
 /// Splits a run of `shape` = [levels, rows, cols] and `steps` time steps into slabs that
-/// fit `budget_bytes`, for `output_fields` indicators. Fails when even one row does not fit.
+/// fit `budget_bytes`, for `output_fields` indicators and the column analysis `columns`.
+/// Fails when even one row does not fit.
 pub fn plan_slabs(
     shape: [usize; 3],
     steps: usize,
     output_fields: usize,
+    columns: ColumnLoad,
     budget_bytes: u64,
 ) -> Result<SlabPlan, PipelineError> {
     let [levels, rows, cols] = shape;
@@ -148,8 +219,9 @@ pub fn plan_slabs(
             ),
         });
     }
-    let row_bytes = (levels * cols) as u64 * bytes_per_cell(output_fields);
-    let minimum = FIXED_OVERHEAD_BYTES + row_bytes;
+    let row_bytes = row_bytes(shape, output_fields, columns);
+    let fixed = FIXED_OVERHEAD_BYTES + columns.fixed_bytes((rows * cols) as u64);
+    let minimum = fixed + row_bytes;
     if budget_bytes < minimum {
         return Err(PipelineError::Option {
             option: "--memory-budget".into(),
@@ -158,13 +230,12 @@ pub fn plan_slabs(
                 format_bytes(budget_bytes),
                 levels,
                 format_bytes(row_bytes),
-                format_bytes(FIXED_OVERHEAD_BYTES),
+                format_bytes(fixed),
                 format_bytes(minimum)
             ),
         });
     }
-    let fitting_rows =
-        ((budget_bytes - FIXED_OVERHEAD_BYTES) / row_bytes).min(rows as u64) as usize;
+    let fitting_rows = ((budget_bytes - fixed) / row_bytes).min(rows as u64) as usize;
 
     // Chunks: whole rows of all levels when a row is small, else one row split by levels.
     let chunk_row_bytes = (levels * cols * 4) as u64;
@@ -191,6 +262,7 @@ pub fn plan_slabs(
         rows_per_slab,
         chunk,
         output_fields,
+        columns,
         budget_bytes,
     })
 }
@@ -201,12 +273,17 @@ mod tests {
 
     const GIB: u64 = 1024 * 1024 * 1024;
     const MIB: u64 = 1024 * 1024;
+    /// Both minerals, Ω = 1 only (the default indicators).
+    const HORIZONS: ColumnLoad = ColumnLoad {
+        minerals: 2,
+        horizons: 2,
+    };
 
     #[test]
     fn respects_the_budget_and_covers_every_row_once() {
         // 1/4° global-like grid: 75 levels x 720 rows x 1440 columns (synthetic sizes).
         for budget in [256 * MIB, 512 * MIB, GIB, 2 * GIB, 16 * GIB] {
-            let plan = plan_slabs([75, 720, 1440], 3, 5, budget).unwrap();
+            let plan = plan_slabs([75, 720, 1440], 3, 5, HORIZONS, budget).unwrap();
             assert!(plan.estimated_peak_bytes() <= budget, "{plan}");
             assert!(plan.rows_per_slab >= 1);
             assert_eq!(plan.rows_per_slab % plan.chunk[1], 0);
@@ -223,8 +300,8 @@ mod tests {
 
     #[test]
     fn a_larger_budget_gives_larger_slabs_until_one_step_fits() {
-        let small = plan_slabs([50, 180, 360], 12, 5, 256 * MIB).unwrap();
-        let large = plan_slabs([50, 180, 360], 12, 5, 8 * GIB).unwrap();
+        let small = plan_slabs([50, 180, 360], 12, 5, HORIZONS, 256 * MIB).unwrap();
+        let large = plan_slabs([50, 180, 360], 12, 5, HORIZONS, 8 * GIB).unwrap();
         assert!(small.rows_per_slab < large.rows_per_slab);
         assert_eq!(large.rows_per_slab, 180);
         assert_eq!(large.slabs_per_step(), 1);
@@ -232,14 +309,14 @@ mod tests {
 
     #[test]
     fn peak_does_not_depend_on_time_steps() {
-        let few = plan_slabs([50, 180, 360], 12, 5, GIB).unwrap();
-        let many = plan_slabs([50, 180, 360], 1200, 5, GIB).unwrap();
+        let few = plan_slabs([50, 180, 360], 12, 5, HORIZONS, GIB).unwrap();
+        let many = plan_slabs([50, 180, 360], 1200, 5, HORIZONS, GIB).unwrap();
         assert_eq!(few.estimated_peak_bytes(), many.estimated_peak_bytes());
     }
 
     #[test]
     fn refuses_a_budget_below_one_row() {
-        let err = plan_slabs([75, 720, 1440], 1, 5, 130 * MIB)
+        let err = plan_slabs([75, 720, 1440], 1, 5, ColumnLoad::default(), 130 * MIB)
             .unwrap_err()
             .to_string();
         assert!(err.contains("too small"), "{err}");
@@ -247,16 +324,25 @@ mod tests {
     }
 
     #[test]
+    fn horizons_shrink_slabs_but_stay_inside_the_budget() {
+        let plain = plan_slabs([50, 180, 360], 12, 5, ColumnLoad::default(), 512 * MIB).unwrap();
+        let with = plan_slabs([50, 180, 360], 12, 5, HORIZONS, 512 * MIB).unwrap();
+        assert!(with.bytes_per_cell() > plain.bytes_per_cell());
+        assert!(with.estimated_peak_bytes() <= 512 * MIB, "{with}");
+        assert!(with.fixed_bytes() == plain.fixed_bytes() + 16 * 180 * 360);
+    }
+
+    #[test]
     fn chunks_stay_near_the_target_for_wide_rows() {
         // 100 levels x 40000 columns x 4 B = 16 MB per row: chunks split levels.
-        let plan = plan_slabs([100, 10, 40000], 1, 1, 64 * GIB).unwrap();
+        let plan = plan_slabs([100, 10, 40000], 1, 1, ColumnLoad::default(), 64 * GIB).unwrap();
         assert_eq!(plan.chunk[1], 1);
         assert!((plan.chunk[0] * plan.chunk[2] * 4) as u64 <= CHUNK_TARGET_BYTES);
     }
 
     #[test]
     fn resumes_from_a_later_step() {
-        let plan = plan_slabs([2, 10, 4], 3, 1, GIB).unwrap();
+        let plan = plan_slabs([2, 10, 4], 3, 1, ColumnLoad::default(), GIB).unwrap();
         let slabs: Vec<_> = plan.slabs(2).collect();
         assert_eq!(slabs, vec![(2, 0..10)]);
     }

@@ -1,7 +1,9 @@
 //! The overlapping read → solve → write loop of a job, with durable progress after every
 //! finished time step and a clean stop when asked.
 
-use crate::cells::{solve_slab, SlabResult};
+use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult};
+use crate::column_output::{write_columns, write_extent_step};
+use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
 use crate::indicators::OutputField;
 use crate::job::{JobOptions, Progress};
@@ -30,8 +32,41 @@ pub(crate) struct Sink<'a> {
 pub(crate) struct StageTimes {
     pub read: Duration,
     pub compute: Duration,
+    /// Of `compute`: the column analysis (horizons, thicknesses, extent).
+    pub columns: Duration,
     pub write: Duration,
     pub cells: u64,
+}
+
+/// A solved slab with its column analysis, on its way to the writer.
+pub(crate) struct Solved {
+    cells: SlabResult,
+    columns: Option<ColumnResult>,
+}
+
+/// Solves one slab and analyses its columns; the f64 Ω the analysis needed are dropped
+/// before the slab goes on to the writer.
+fn solve(
+    run: &Run,
+    raw: RawSlab,
+    fields: &[OutputField],
+    options: &JobOptions,
+    work: Option<&ColumnWork>,
+    busy: &mut (Duration, Duration),
+    spare: &mut SaturationStates,
+) -> Result<Solved, PipelineError> {
+    let t = Instant::now();
+    let inputs = run.convert_slab(raw);
+    let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
+    let buffers = std::mem::take(spare);
+    let mut cells = solve_slab(&inputs, fields, &options.constants, keep, buffers);
+    let solved = t.elapsed();
+    let columns = work.map(|w| w.analyse(&inputs, &cells)).transpose()?;
+    // Kept for the next slab's states (no allocation, no zeroing).
+    *spare = std::mem::take(&mut cells.omega);
+    busy.0 += t.elapsed();
+    busy.1 += t.elapsed() - solved;
+    Ok(Solved { cells, columns })
 }
 
 /// Streams `slabs` (the first already read) through the solver into `sink`. Returns the
@@ -42,19 +77,19 @@ pub(crate) fn stream(
     plan: &SlabPlan,
     fields: &[OutputField],
     options: &JobOptions,
+    work: Option<&ColumnWork>,
     first: Option<RawSlab>,
     slabs: impl Iterator<Item = (usize, Range<usize>)> + Send,
     sink: Sink<'_>,
     progress: &mut dyn Progress,
 ) -> Result<StageTimes, PipelineError> {
-    let constants = options.constants;
     let stop = &options.stop;
     let mut times = StageTimes::default();
     std::thread::scope(|scope| -> Result<StageTimes, PipelineError> {
         // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
         // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
         let (input_tx, input_rx) = sync_channel::<Result<RawSlab, GridError>>(1);
-        let (result_tx, result_rx) = sync_channel::<Result<SlabResult, GridError>>(1);
+        let (result_tx, result_rx) = sync_channel::<Result<Solved, PipelineError>>(1);
         let reader = scope.spawn(move || {
             let mut busy = Duration::ZERO;
             if let Some(slab) = first {
@@ -77,14 +112,12 @@ pub(crate) fn stream(
             busy
         });
         let solver = scope.spawn(move || {
-            let mut busy = Duration::ZERO;
+            let mut busy = (Duration::ZERO, Duration::ZERO);
+            let mut spare = SaturationStates::default();
             for item in input_rx {
-                let item = item.map(|inputs| {
-                    let t = Instant::now();
-                    let result = solve_slab(&run.convert_slab(inputs), fields, &constants);
-                    busy += t.elapsed();
-                    result
-                });
+                let item = item
+                    .map_err(PipelineError::from)
+                    .and_then(|raw| solve(run, raw, fields, options, work, &mut busy, &mut spare));
                 let failed = item.is_err();
                 if result_tx.send(item).is_err() || failed {
                     break;
@@ -93,27 +126,45 @@ pub(crate) fn stream(
             busy
         });
 
-        let written = write_results(result_rx, plan, fields, options, sink, progress, &mut times);
+        let stages = Stages {
+            plan,
+            fields,
+            options,
+            work,
+        };
+        let written = write_results(result_rx, &stages, sink, progress, &mut times);
         times.read = reader
             .join()
             .map_err(|_| PipelineError::Internal("the reader thread panicked".into()))?;
-        times.compute = solver
+        (times.compute, times.columns) = solver
             .join()
             .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
         written.map(|()| times)
     })
 }
 
+/// What the writer needs to know of the job.
+struct Stages<'a> {
+    plan: &'a SlabPlan,
+    fields: &'a [OutputField],
+    options: &'a JobOptions,
+    work: Option<&'a ColumnWork>,
+}
+
 /// The writing end of [`stream`], on the calling thread (the output handle never moves).
 fn write_results(
-    results: impl IntoIterator<Item = Result<SlabResult, GridError>>,
-    plan: &SlabPlan,
-    fields: &[OutputField],
-    options: &JobOptions,
+    results: impl IntoIterator<Item = Result<Solved, PipelineError>>,
+    stages: &Stages,
     sink: Sink<'_>,
     progress: &mut dyn Progress,
     times: &mut StageTimes,
 ) -> Result<(), PipelineError> {
+    let Stages {
+        plan,
+        fields,
+        options,
+        work,
+    } = *stages;
     let Sink {
         file,
         partial,
@@ -121,18 +172,35 @@ fn write_results(
         record,
         record_path,
     } = sink;
+    // The corrosive extent of the step being written, merged slab by slab.
+    let mut extent = None;
     for item in results {
-        let result = item?;
+        let Solved {
+            cells: result,
+            columns,
+        } = item?;
         let t = Instant::now();
         write_slab(file, partial, layout, fields, &result)?;
+        if let (Some(work), Some(columns)) = (work, columns) {
+            write_columns(file, partial, layout, work, &columns, plan.shape)?;
+            match &mut extent {
+                None => extent = Some(columns.extent),
+                Some(sum) => sum
+                    .merge(&columns.extent)
+                    .map_err(|e| PipelineError::Internal(e.to_string()))?,
+            }
+        }
         times.write += t.elapsed();
         let cells = result.flags.len() as u64;
         times.cells += cells;
         record.counts += result.counts;
         progress.advance(cells);
         if result.rows.end == plan.shape[1] {
-            // A finished time step: make it durable, then record it.
+            // A finished time step: its extent, then make it durable and record it.
             let t = Instant::now();
+            if let (Some(work), Some(sum)) = (work, extent.take()) {
+                write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
+            }
             nc(file.sync(), partial, || {
                 format!("flushing time step {}", result.step + 1)
             })?;

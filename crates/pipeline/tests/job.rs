@@ -341,6 +341,17 @@ fn resume_refuses_changed_options() {
         err.contains("differ") && err.contains("indicators="),
         "{err}"
     );
+    // Other horizon thresholds would give other variables: refused as well.
+    let mut thresholds = options(&output, IndicatorChoice::default());
+    thresholds.resume = true;
+    thresholds.horizons.add_thresholds("aragonite=1.5").unwrap();
+    let err = run_job(&run, &thresholds, &mut NoProgress)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains("differ") && err.contains("aragonite=[1.5]"),
+        "{err}"
+    );
     assert!(
         partial_path(&output).exists(),
         "a refused resume keeps the partial file"

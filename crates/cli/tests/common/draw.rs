@@ -73,15 +73,25 @@ pub fn window(name: &str) -> WhenRequest {
 /// One time step (or window) and level of a float variable, read with the netCDF library
 /// itself (fill as NaN): (time, level, lat, lon) layout.
 pub fn read_level(file: &Path, name: &str, t: usize, level: usize) -> Vec<f64> {
+    read_floats(file, name, &[t, level])
+}
+
+/// One time step (or window) of a 2-D float variable, read with the netCDF library itself
+/// (fill as NaN): (time, lat, lon) layout.
+pub fn read_map(file: &Path, name: &str, t: usize) -> Vec<f64> {
+    read_floats(file, name, &[t])
+}
+
+/// The leading indices `at` and all of the remaining dimensions of a float variable.
+fn read_floats(file: &Path, name: &str, at: &[usize]) -> Vec<f64> {
     let nc = netcdf::open(file).unwrap();
     let var = nc.variable(name).unwrap();
-    let dims: Vec<usize> = var.dimensions().iter().map(|d| d.len()).collect();
-    let extents = vec![
-        Extent::from(t..t + 1),
-        Extent::from(level..level + 1),
-        Extent::from(0..dims[2]),
-        Extent::from(0..dims[3]),
-    ];
+    let extents: Vec<Extent> = (var.dimensions().iter().enumerate())
+        .map(|(d, dim)| match at.get(d) {
+            Some(&i) => Extent::from(i..i + 1),
+            None => Extent::from(0..dim.len()),
+        })
+        .collect();
     let values: Vec<f32> = var.get_values(extents).unwrap();
     values
         .into_iter()

@@ -460,3 +460,55 @@ pub fn open_dir(
     };
     acidscape_gridio::Run::open(&spec).map_err(|e| e.to_string())
 }
+
+/// A one-step run in one file `run.nc`: `coords` plus the four required variables.
+pub fn single_file_run(
+    dir: &Path,
+    coords: Vec<Var>,
+    extra_dims: &[(&'static str, usize)],
+) -> acidscape_gridio::Run {
+    let mut vars = coords;
+    vars.extend(required_vars("tzyx", 0..1, GRID));
+    let mut all_dims = dims(GRID, 1);
+    all_dims.extend_from_slice(extra_dims);
+    let path = dir.join("run.nc");
+    write_nc(&path, &all_dims, &vars);
+    acidscape_gridio::Run::open(&spec(vec![path.display().to_string()])).unwrap()
+}
+
+/// Coordinates of a one-step parametric run: levels -0.9, -0.5, -0.1 (sigma: -0.75, -0.25,
+/// -0.05), C = Cs, depth_c = hc = 10 m, bathymetry h = 100 m + 50 m per row, free surface
+/// zeta = 0.5 m + 0.25 m per column (synthetic).
+pub fn parametric_coords(standard_name: &str, formula_terms: &str) -> Vec<Var> {
+    let g = GRID;
+    let mut coords = coordinates(g, &[15.5], "days since 2015-01-01", "noleap");
+    let levels = match standard_name {
+        "ocean_sigma_coordinate" => vec![-0.75, -0.25, -0.05],
+        _ => vec![-0.9, -0.5, -0.1],
+    };
+    coords[1] = Var::new("lev", &["lev"], levels)
+        .attr("standard_name", standard_name)
+        .attr("positive", "up")
+        .attr("formula_terms", formula_terms)
+        .attr("units", "1");
+    coords.push(Var::new("Cs", &["lev"], vec![-0.8, -0.3, -0.05]));
+    coords.push(Var::new("hc", &[], vec![10.0]).attr("units", "m"));
+    // Bathymetry 100 m + 50 m per row; free surface 0.5 m + 0.25 m per column (synthetic).
+    let h: Vec<f64> = (0..g.rows)
+        .flat_map(|j| (0..g.cols).map(move |_| 100.0 + 50.0 * j as f64))
+        .collect();
+    coords.push(
+        Var::new("h", &["lat", "lon"], h)
+            .attr("units", "m")
+            .attr("standard_name", "sea_floor_depth_below_geoid"),
+    );
+    let zeta: Vec<f64> = (0..g.rows)
+        .flat_map(|_| (0..g.cols).map(|i| 0.5 + 0.25 * i as f64))
+        .collect();
+    coords.push(
+        Var::new("zeta", &["time", "lat", "lon"], zeta)
+            .attr("units", "m")
+            .attr("standard_name", "sea_surface_height_above_geoid"),
+    );
+    coords
+}

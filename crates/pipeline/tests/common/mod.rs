@@ -3,10 +3,12 @@
 
 #![allow(dead_code)]
 
+pub mod analytic;
+
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
 use acidscape_pipeline::{
-    ConcentrationUnit, Indicator, IndicatorChoice, JobOptions, PhScale, StopRequest,
+    ConcentrationUnit, HorizonChoice, Indicator, IndicatorChoice, JobOptions, PhScale, StopRequest,
 };
 use std::path::{Path, PathBuf};
 
@@ -32,6 +34,7 @@ pub fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
         deflate_level: 4,
         stop_after_steps: None,
         max_rows_per_slab: None,
+        horizons: HorizonChoice::default(),
         stop: StopRequest::new(),
     }
 }
@@ -44,21 +47,29 @@ pub fn every_indicator() -> IndicatorChoice {
     }
 }
 
-/// Every value of every indicator and of the flag, bit for bit.
+/// Every value of every variable, bit for bit (indicators, flag, horizons, geometry, extent
+/// time series, coordinates), and the extent tables beside the files byte for byte.
 pub fn assert_same_output(expected: &Path, actual: &Path) {
-    for field in every_indicator().fields().unwrap() {
-        let bits = |path: &Path| -> Vec<u32> {
-            read_f32(path, field.name)
-                .iter()
-                .map(|v| v.to_bits())
-                .collect()
-        };
-        assert_eq!(bits(expected), bits(actual), "{} differs", field.name);
-    }
-    assert_eq!(
-        read_i16(expected, "quality_flag"),
-        read_i16(actual, "quality_flag")
+    let (a, b) = (
+        netcdf::open(expected).unwrap(),
+        netcdf::open(actual).unwrap(),
     );
+    let names = |f: &netcdf::File| -> Vec<String> { f.variables().map(|v| v.name()).collect() };
+    assert_eq!(names(&a), names(&b));
+    for name in names(&a) {
+        let bits = |f: &netcdf::File| -> Vec<u64> {
+            let var = f.variable(&name).unwrap();
+            let values: Vec<f64> = if var.dimensions().is_empty() {
+                vec![var.get_value::<f64, _>(()).unwrap()]
+            } else {
+                var.get_values::<f64, _>(..).unwrap()
+            };
+            values.iter().map(|v| v.to_bits()).collect()
+        };
+        assert_eq!(bits(&a), bits(&b), "{name} differs");
+    }
+    let table = |p: &Path| std::fs::read(acidscape_pipeline::extent_table_path(p)).ok();
+    assert_eq!(table(expected), table(actual), "the extent tables differ");
 }
 
 pub const LEVELS: usize = 4;
@@ -182,49 +193,22 @@ fn write_file(path: &Path, steps: std::ops::Range<usize>, compressed: bool) {
             .unwrap();
         v.put_values(&bounds, (0..times.len(), 0..2)).unwrap();
     }
-    let depth_bounds = [0.0, 10.0, 10.0, 200.0, 200.0, 2000.0, 10_000.0, 11_000.0];
-    {
-        let mut v = file.add_variable::<f64>("lev", &["lev"]).unwrap();
-        v.put_attribute("standard_name", "depth").unwrap();
-        v.put_attribute("units", "m").unwrap();
-        v.put_attribute("positive", "down").unwrap();
-        v.put_attribute("axis", "Z").unwrap();
-        v.put_attribute("bounds", "lev_bnds").unwrap();
-        v.put_values(&DEPTHS, 0..LEVELS).unwrap();
-        let mut b = file
-            .add_variable::<f64>("lev_bnds", &["lev", "bnds"])
-            .unwrap();
-        b.put_values(&depth_bounds, (0..LEVELS, 0..2)).unwrap();
-    }
-    for (name, axis, units, standard, centres) in [
-        (
-            "lat",
-            "Y",
-            "degrees_north",
-            "latitude",
-            vec![-30.0, -10.0, 10.0, 30.0],
-        ),
-        (
-            "lon",
-            "X",
-            "degrees_east",
-            "longitude",
-            vec![10.0, 30.0, 50.0, 70.0, 90.0],
-        ),
-    ] {
-        let bounds: Vec<f64> = centres.iter().flat_map(|c| [c - 10.0, c + 10.0]).collect();
-        let n = centres.len();
-        let mut v = file.add_variable::<f64>(name, &[name]).unwrap();
-        v.put_attribute("standard_name", standard).unwrap();
-        v.put_attribute("units", units).unwrap();
-        v.put_attribute("axis", axis).unwrap();
-        v.put_attribute("bounds", format!("{name}_bnds")).unwrap();
-        v.put_values(&centres, 0..n).unwrap();
-        let mut b = file
-            .add_variable::<f64>(&format!("{name}_bnds"), &[name, "bnds"])
-            .unwrap();
-        b.put_values(&bounds, (0..n, 0..2)).unwrap();
-    }
+    write_depth_levels(
+        &mut file,
+        &DEPTHS,
+        &[
+            [0.0, 10.0],
+            [10.0, 200.0],
+            [200.0, 2000.0],
+            [10_000.0, 11_000.0],
+        ],
+    );
+    write_lat_lon(
+        &mut file,
+        &[-30.0, -10.0, 10.0, 30.0],
+        &[10.0, 30.0, 50.0, 70.0, 90.0],
+        10.0,
+    );
 
     let variables = [
         ("thetao", "sea_water_potential_temperature", "degC"),
@@ -311,4 +295,46 @@ pub fn read_i16(path: &Path, name: &str) -> Vec<i16> {
         .variable(name)
         .unwrap_or_else(|| panic!("no variable {name}"));
     var.get_values::<i16, _>(..).unwrap()
+}
+
+/// 1-D latitude and longitude with CF bounds `half_width` degrees either side of each centre
+/// (dimensions `lat`, `lon`, `bnds` must exist).
+pub fn write_lat_lon(file: &mut netcdf::FileMut, lat: &[f64], lon: &[f64], half_width: f64) {
+    for (name, axis, units, standard, centres) in [
+        ("lat", "Y", "degrees_north", "latitude", lat),
+        ("lon", "X", "degrees_east", "longitude", lon),
+    ] {
+        let n = centres.len();
+        let bounds: Vec<f64> = centres
+            .iter()
+            .flat_map(|c| [c - half_width, c + half_width])
+            .collect();
+        let mut v = file.add_variable::<f64>(name, &[name]).unwrap();
+        v.put_attribute("standard_name", standard).unwrap();
+        v.put_attribute("units", units).unwrap();
+        v.put_attribute("axis", axis).unwrap();
+        v.put_attribute("bounds", format!("{name}_bnds")).unwrap();
+        v.put_values(centres, 0..n).unwrap();
+        let mut b = file
+            .add_variable::<f64>(&format!("{name}_bnds"), &[name, "bnds"])
+            .unwrap();
+        b.put_values(&bounds, (0..n, 0..2)).unwrap();
+    }
+}
+
+/// Depth levels `lev` (positive down) with CF bounds `lev_bnds` (dimensions `lev`, `bnds`).
+pub fn write_depth_levels(file: &mut netcdf::FileMut, centres: &[f64], bounds: &[[f64; 2]]) {
+    let n = centres.len();
+    let mut v = file.add_variable::<f64>("lev", &["lev"]).unwrap();
+    v.put_attribute("standard_name", "depth").unwrap();
+    v.put_attribute("units", "m").unwrap();
+    v.put_attribute("positive", "down").unwrap();
+    v.put_attribute("axis", "Z").unwrap();
+    v.put_attribute("bounds", "lev_bnds").unwrap();
+    v.put_values(centres, 0..n).unwrap();
+    let flat: Vec<f64> = bounds.iter().flatten().copied().collect();
+    let mut b = file
+        .add_variable::<f64>("lev_bnds", &["lev", "bnds"])
+        .unwrap();
+    b.put_values(&flat, (0..n, 0..2)).unwrap();
 }
