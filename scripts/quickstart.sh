@@ -26,6 +26,34 @@ for run in cmip-style terrain-following curvilinear; do
 done
 
 echo
+echo "== a century of annual means under both pathways: indicators and horizons, then compared"
+for pathway in moderate steep; do
+    "$bin" compute "sample-grids/century/pathway-$pathway/*.nc" -o "$out/century-$pathway.nc" --overwrite \
+        --indicators ph,co3,pco2,omega-aragonite,omega-calcite
+done
+"$bin" compare moderate="$out/century-moderate.nc" steep="$out/century-steep.nc" \
+    --window reference=2015-2034 --window late=2081-2100 \
+    --regions sample-grids/varnholm-regions.toml --emergence 'omega_aragonite:2sd:below' \
+    -o "$out/century-pathways.nc" --overwrite
+
+echo
+echo "== figures of the comparison"
+note="SYNTHETIC: the invented Varnholm Gulf under two made-up pathways, not model output."
+draw() { "$bin" draw "$@" --note "$note" --dpi 150 --overwrite; }
+for pathway in moderate steep; do
+    draw map "$out/century-pathways.nc" "omega_aragonite_$pathway" --window late --level surface \
+        --range 1,3 -o "$out/map-surface-omega-aragonite-$pathway-late.png"
+done
+draw map "$out/century-pathways.nc" omega_aragonite_steep_minus_moderate --window late --level surface \
+    -o "$out/map-surface-omega-aragonite-steep-minus-moderate-late.png"
+draw section "$out/century-pathways.nc" omega_aragonite_steep --window late --path 209,38.7:209,30.2 \
+    -o "$out/section-omega-aragonite-steep-late.png"
+for region in "whole gulf" "Aske river plume coast"; do
+    draw series "$out/century-pathways.csv" omega_aragonite --region "$region" \
+        -o "$out/series-surface-omega-aragonite-${region// /-}.png"
+done
+
+echo
 echo "== a table of water samples"
 "$bin" samples sample-grids/bottle-samples.csv -o "$out/bottle-samples-results.csv" --overwrite
 
@@ -41,6 +69,10 @@ Saturation horizons:           horizon_depth_aragonite, horizon_depth_calcite (m
                                omega aragonite 1.5 and 3
 Corrosive water per step:      $out/cmip-style-pathway-steep.extent.csv (also in the NetCDF
                                files as wet_volume, volume_below_threshold_aragonite, ...)
+Pathways compared:             $out/century-pathways.nc (window means, changes, differences,
+                               horizon shoaling, years of emergence) and
+                               $out/century-pathways.csv (regional means and fractions)
+Figures:                       $out/*.png (maps, a section with the horizons, regional series)
 The sample table's results:    $out/bottle-samples-results.csv
 MSG
 
