@@ -5,7 +5,8 @@
 //! saturation states or the Revelle factor: those get a plain name with long_name and units.
 
 use crate::PipelineError;
-use acidscape_chem::Solution;
+use acidscape_chem::{Output, PerOutput, Solution};
+use std::borrow::Cow;
 use std::fmt;
 use std::str::FromStr;
 
@@ -292,15 +293,52 @@ enum Species {
     Co2Star,
 }
 
+impl Quantity {
+    /// The chemistry's output this quantity is (before any change of units).
+    fn output(self) -> Output {
+        match self {
+            Quantity::Ph(PhScale::Total) => Output::PhTotal,
+            Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,
+            Quantity::Ph(PhScale::Free) => Output::PhFree,
+            Quantity::Concentration(Species::Carbonate, _) => Output::Carbonate,
+            Quantity::Concentration(Species::Bicarbonate, _) => Output::Bicarbonate,
+            Quantity::Concentration(Species::Co2Star, _) => Output::Co2,
+            Quantity::Pco2 => Output::Pco2,
+            Quantity::Fco2 => Output::Fco2,
+            Quantity::OmegaAragonite => Output::OmegaAragonite,
+            Quantity::OmegaCalcite => Output::OmegaCalcite,
+            Quantity::RevelleFactor => Output::RevelleFactor,
+        }
+    }
+}
+
 /// One output variable: its name, CF labels and how its value comes from a solution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct OutputField {
-    pub name: &'static str,
-    pub long_name: &'static str,
-    pub standard_name: Option<&'static str>,
+    pub name: Cow<'static, str>,
+    pub long_name: Cow<'static, str>,
+    pub standard_name: Option<Cow<'static, str>>,
     pub units: &'static str,
     pub comment: &'static str,
+    /// For a standard-uncertainty field ([`OutputField::standard_uncertainty`]): the name of
+    /// the indicator it belongs to.
+    pub uncertainty_of: Option<Cow<'static, str>>,
     quantity: Quantity,
+}
+
+/// Suffix of the name of an indicator's standard-uncertainty field.
+pub const UNCERTAINTY_SUFFIX: &str = "_uncertainty";
+
+/// Appends, after the indicators, the standard-uncertainty field of each when `with` is set.
+pub fn with_uncertainty_fields(mut fields: Vec<OutputField>, with: bool) -> Vec<OutputField> {
+    if with {
+        let companions: Vec<OutputField> = fields
+            .iter()
+            .map(OutputField::standard_uncertainty)
+            .collect();
+        fields.extend(companions);
+    }
+    fields
 }
 
 const PCO2_NOTE: &str = "At the in-situ temperature and 1 atm total pressure, as if the water were brought to the surface without change of temperature (common practice for pCO2 below the surface).";
@@ -321,27 +359,45 @@ impl OutputField {
             PhScale::Free => ("ph_free_scale", "pH on the free scale, in situ", None),
         };
         OutputField {
-            name,
-            long_name,
-            standard_name,
+            name: name.into(),
+            long_name: long_name.into(),
+            standard_name: standard_name.map(Cow::Borrowed),
             units: "1",
             comment: "At in-situ temperature and pressure.",
+            uncertainty_of: None,
             quantity: Quantity::Ph(scale),
         }
     }
 
     fn new(indicator: Indicator, unit: ConcentrationUnit) -> OutputField {
         let per_volume = unit == ConcentrationUnit::MolPerCubicMetre;
-        let concentration =
-            |name, long_name, standard_name: Option<&'static str>, species| OutputField {
-                name,
-                long_name,
-                // CF mole_concentration names are per volume; no per-mass names exist for these.
-                standard_name: if per_volume { standard_name } else { None },
-                units: unit.udunits(),
-                comment: "",
-                quantity: Quantity::Concentration(species, unit),
-            };
+        let concentration = |name: &'static str,
+                             long_name: &'static str,
+                             standard_name: Option<&'static str>,
+                             species| OutputField {
+            name: name.into(),
+            long_name: long_name.into(),
+            // CF mole_concentration names are per volume; no per-mass names exist for these.
+            standard_name: standard_name.filter(|_| per_volume).map(Cow::Borrowed),
+            units: unit.udunits(),
+            comment: "",
+            uncertainty_of: None,
+            quantity: Quantity::Concentration(species, unit),
+        };
+        let plain = |name: &'static str,
+                     long_name: &'static str,
+                     standard_name: Option<&'static str>,
+                     units,
+                     comment,
+                     quantity| OutputField {
+            name: name.into(),
+            long_name: long_name.into(),
+            standard_name: standard_name.map(Cow::Borrowed),
+            units,
+            comment,
+            uncertainty_of: None,
+            quantity,
+        };
         match indicator {
             Indicator::Ph => OutputField::ph(PhScale::Total),
             Indicator::Carbonate => concentration(
@@ -362,46 +418,46 @@ impl OutputField {
                 None,
                 Species::Co2Star,
             ),
-            Indicator::Pco2 => OutputField {
-                name: "pco2",
-                long_name: "Partial pressure of CO2 in sea water",
-                standard_name: Some("partial_pressure_of_carbon_dioxide_in_sea_water"),
-                units: "uatm",
-                comment: PCO2_NOTE,
-                quantity: Quantity::Pco2,
-            },
-            Indicator::Fco2 => OutputField {
-                name: "fco2",
-                long_name: "Fugacity of CO2 in sea water",
-                standard_name: Some("fugacity_of_carbon_dioxide_in_sea_water"),
-                units: "uatm",
-                comment: PCO2_NOTE,
-                quantity: Quantity::Fco2,
-            },
-            Indicator::OmegaAragonite => OutputField {
-                name: "omega_aragonite",
-                long_name: "Saturation state of sea water with respect to aragonite",
-                standard_name: None,
-                units: "1",
-                comment: "[Ca++][CO3--] / Ksp(aragonite) at in-situ temperature and pressure.",
-                quantity: Quantity::OmegaAragonite,
-            },
-            Indicator::OmegaCalcite => OutputField {
-                name: "omega_calcite",
-                long_name: "Saturation state of sea water with respect to calcite",
-                standard_name: None,
-                units: "1",
-                comment: "[Ca++][CO3--] / Ksp(calcite) at in-situ temperature and pressure.",
-                quantity: Quantity::OmegaCalcite,
-            },
-            Indicator::RevelleFactor => OutputField {
-                name: "revelle_factor",
-                long_name: "Revelle factor (d ln pCO2 / d ln DIC at constant alkalinity)",
-                standard_name: None,
-                units: "1",
-                comment: "",
-                quantity: Quantity::RevelleFactor,
-            },
+            Indicator::Pco2 => plain(
+                "pco2",
+                "Partial pressure of CO2 in sea water",
+                Some("partial_pressure_of_carbon_dioxide_in_sea_water"),
+                "uatm",
+                PCO2_NOTE,
+                Quantity::Pco2,
+            ),
+            Indicator::Fco2 => plain(
+                "fco2",
+                "Fugacity of CO2 in sea water",
+                Some("fugacity_of_carbon_dioxide_in_sea_water"),
+                "uatm",
+                PCO2_NOTE,
+                Quantity::Fco2,
+            ),
+            Indicator::OmegaAragonite => plain(
+                "omega_aragonite",
+                "Saturation state of sea water with respect to aragonite",
+                None,
+                "1",
+                "[Ca++][CO3--] / Ksp(aragonite) at in-situ temperature and pressure.",
+                Quantity::OmegaAragonite,
+            ),
+            Indicator::OmegaCalcite => plain(
+                "omega_calcite",
+                "Saturation state of sea water with respect to calcite",
+                None,
+                "1",
+                "[Ca++][CO3--] / Ksp(calcite) at in-situ temperature and pressure.",
+                Quantity::OmegaCalcite,
+            ),
+            Indicator::RevelleFactor => plain(
+                "revelle_factor",
+                "Revelle factor (d ln pCO2 / d ln DIC at constant alkalinity)",
+                None,
+                "1",
+                "",
+                Quantity::RevelleFactor,
+            ),
         }
     }
 
@@ -424,6 +480,43 @@ impl OutputField {
             Quantity::OmegaAragonite => solution.omega_aragonite,
             Quantity::OmegaCalcite => solution.omega_calcite,
             Quantity::RevelleFactor => solution.revelle_factor,
+        }
+    }
+
+    /// The field that holds this indicator's standard uncertainty: same units, `standard_name`
+    /// with the CF modifier `standard_error` (CF 1.10 Appendix C) where the indicator has one.
+    pub fn standard_uncertainty(&self) -> OutputField {
+        OutputField {
+            name: format!("{}{UNCERTAINTY_SUFFIX}", self.name).into(),
+            long_name: format!("{} (standard uncertainty)", self.long_name).into(),
+            standard_name: (self.standard_name.as_ref())
+                .map(|name| format!("{name} standard_error").into()),
+            units: self.units,
+            comment: "",
+            uncertainty_of: Some(self.name.clone()),
+            quantity: self.quantity,
+        }
+    }
+
+    /// The field's value for a solved cell: the indicator, or its standard uncertainty from
+    /// `uncertainties` (NaN without them); `density_kg_m3` converts per-mass to per-volume.
+    pub fn cell_value(
+        &self,
+        solution: &Solution,
+        uncertainties: Option<&PerOutput>,
+        density_kg_m3: f64,
+    ) -> f64 {
+        if self.uncertainty_of.is_none() {
+            return self.value(solution, density_kg_m3);
+        }
+        let Some(u) = uncertainties else {
+            return f64::NAN;
+        };
+        let u = u.get(self.quantity.output());
+        match self.quantity {
+            // The density is taken as exact: the conversion scales the uncertainty.
+            Quantity::Concentration(_, unit) => unit.convert_micromol_per_kg(u, density_kg_m3),
+            _ => u,
         }
     }
 
@@ -474,7 +567,12 @@ mod tests {
             ph_scales: vec![PhScale::Total, PhScale::Free],
             concentration_unit: ConcentrationUnit::default(),
         };
-        let names: Vec<_> = choice.fields().unwrap().iter().map(|f| f.name).collect();
+        let names: Vec<_> = choice
+            .fields()
+            .unwrap()
+            .iter()
+            .map(|f| f.name.clone())
+            .collect();
         assert_eq!(names, vec!["ph", "ph_free_scale"]);
     }
 }

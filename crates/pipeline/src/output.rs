@@ -1,6 +1,7 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
 use crate::cells::{SlabResult, VALUE_FILL};
+use crate::cells_uncertainty::UncertaintyRequest;
 use crate::column_output::{
     define_cell_area, define_column_outputs, ColumnDefinition, CELL_MEASURES,
 };
@@ -111,6 +112,8 @@ pub struct OutputMetadata {
     pub indicators: IndicatorChoice,
     /// Deflate level 0-9 (0: no compression).
     pub deflate_level: i32,
+    /// The uncertainties propagated to the companion fields, if any.
+    pub uncertainty: Option<UncertaintyRequest>,
 }
 
 /// Defines the whole output in `file`: coordinates (copied from the run), the indicator
@@ -153,8 +156,9 @@ pub fn define_output(
         define_cell_area(file, &column_definition, work)?;
     }
 
+    let uncertainty_note = meta.uncertainty.as_ref().map(uncertainty_comment);
     for field in fields {
-        let mut var = nc(file.add_variable::<f32>(field.name, &dims), path, || {
+        let mut var = nc(file.add_variable::<f32>(&field.name, &dims), path, || {
             format!("defining variable '{}'", field.name)
         })?;
         let what = || format!("setting storage of variable '{}'", field.name);
@@ -167,10 +171,18 @@ pub fn define_output(
             ("long_name", field.long_name.to_string()),
             ("units", field.units.to_string()),
         ];
-        if let Some(standard_name) = field.standard_name {
+        if let Some(standard_name) = &field.standard_name {
             attributes.push(("standard_name", standard_name.to_string()));
         }
+        let note = match &field.uncertainty_of {
+            Some(of) => format!(
+                "Standard uncertainty of {of}. {}",
+                uncertainty_note.as_deref().unwrap_or_default()
+            ),
+            None => String::new(),
+        };
         let comment = [
+            note.as_str(),
             field.comment,
             "Computed from alkalinity and DIC.",
             &constants_note,
@@ -181,7 +193,7 @@ pub fn define_output(
         .collect::<Vec<_>>()
         .join(" ");
         attributes.push(("comment", comment));
-        attributes.push(("ancillary_variables", FLAG_VARIABLE.to_string()));
+        attributes.push(("ancillary_variables", ancillary_variables(field, fields)));
         if let Some(coordinates) = &axes.coordinates_attr {
             attributes.push(("coordinates", coordinates.clone()));
         }
@@ -215,6 +227,28 @@ pub fn define_output(
         })?;
     }
     Ok(layout)
+}
+
+/// The flag, and an indicator's standard-uncertainty field when the output has it (CF 1.10
+/// section 3.4, ancillary data).
+fn ancillary_variables(field: &OutputField, fields: &[OutputField]) -> String {
+    let companion = fields
+        .iter()
+        .find(|f| f.uncertainty_of.as_deref() == Some(&*field.name));
+    match companion {
+        Some(companion) => format!("{FLAG_VARIABLE} {}", companion.name),
+        None => FLAG_VARIABLE.to_string(),
+    }
+}
+
+/// How the standard uncertainties were obtained: method, sources and values.
+pub(crate) fn uncertainty_comment(request: &UncertaintyRequest) -> String {
+    format!(
+        "First-order propagation of independent standard uncertainties (Orr, Epitalon, Dickson \
+         & Gattuso 2018, Marine Chemistry 207), derivatives by implicit differentiation of the \
+         equations solved; the run's density is taken as exact. Sources: {}.",
+        request.describe()
+    )
 }
 
 /// The `cell_methods` the run's gridded variables share (e.g. "area: mean where sea
@@ -374,7 +408,7 @@ pub fn write_slab(
     let extents = layout.extents(result.step, result.rows.clone(), result.shape);
     for (field, values) in fields.iter().zip(&result.fields) {
         let mut var = file
-            .variable_mut(field.name)
+            .variable_mut(&field.name)
             .ok_or_else(|| PipelineError::Output {
                 path: path.to_path_buf(),
                 message: format!("variable '{}' is missing", field.name),
