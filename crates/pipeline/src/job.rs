@@ -381,7 +381,8 @@ fn column_work(run: &Run, job: &JobPlan) -> Result<Option<ColumnWork>, PipelineE
         return Ok(None);
     };
     let geometry = ColumnGeometry::of(run)?;
-    Ok(Some(ColumnWork::new(plan.clone(), geometry)))
+    let work = ColumnWork::new(plan.clone(), geometry).with_depth_uncertainty(&job.fields);
+    Ok(Some(work))
 }
 
 /// Once every step is written: the extent table (read back from the output), then the

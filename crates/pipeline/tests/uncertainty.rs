@@ -5,6 +5,7 @@
 
 mod common;
 
+use acidscape_analysis::horizons::HorizonStatus;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
 use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
 use acidscape_chem::{InputUncertainties, Output, SolvedSample, Source, Uncertainties};
@@ -181,6 +182,49 @@ fn uncertainty_fields_are_cf_linked() {
         for part in ["Orr", "dic 3 umol kg-1", "phosphate 10%", "pK2 0.015"] {
             assert!(comment.contains(part), "{companion}: {comment}");
         }
+    }
+    // The horizon depths (omega = 1: a CF standard name) get theirs through the Ω profile.
+    for mineral in ["aragonite", "calcite"] {
+        let depth = format!("horizon_depth_{mineral}");
+        let companion = format!("{depth}_uncertainty");
+        let ancillary = text_attribute(&output, &depth, "ancillary_variables").unwrap();
+        assert!(ancillary.split(' ').any(|n| n == companion), "{ancillary}");
+        assert_eq!(
+            text_attribute(&output, &companion, "standard_name").unwrap(),
+            format!("minimum_depth_of_{mineral}_undersaturation_in_sea_water standard_error")
+        );
+        assert_eq!(text_attribute(&output, &companion, "units").unwrap(), "m");
+        let (depths, uncertainties) = (read_f32(&output, &depth), read_f32(&output, &companion));
+        let statuses: Vec<i8> = netcdf::open(&output)
+            .unwrap()
+            .variable(&format!("horizon_status_{mineral}"))
+            .unwrap()
+            .get_values(..)
+            .unwrap();
+        let mut with = 0;
+        for ((d, u), status) in depths.iter().zip(&uncertainties).zip(&statuses) {
+            // A depth between or below two level centres has one; no depth, or 0 m at the
+            // surface, none.
+            let interpolated = matches!(
+                HorizonStatus::from_flag_value(*status),
+                Some(
+                    HorizonStatus::SingleCrossing
+                        | HorizonStatus::SeveralCrossings
+                        | HorizonStatus::CrossingInBottomCell
+                        | HorizonStatus::CrossingAboveMissingOmega
+                )
+            );
+            with += usize::from(interpolated);
+            assert_eq!(
+                *u != VALUE_FILL,
+                interpolated,
+                "depth {d} status {status} u {u}"
+            );
+            if interpolated {
+                assert!(*d != VALUE_FILL && *u >= 0.0 && u.is_finite());
+            }
+        }
+        assert!(with > 0, "no {mineral} horizon between level centres");
     }
     // The pH and pCO2 have CF standard names, so their companions carry the modifier.
     assert_eq!(
