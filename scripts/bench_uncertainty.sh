@@ -33,33 +33,19 @@ if [[ ! -f "$dir/.complete-$tag" ]]; then
         --size $size --steps "$steps" --lossless --quiet
     touch "$dir/.complete-$tag"
 fi
-median() { sort -g | awk '{v[NR] = $1} END {print (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2}'; }
+# shellcheck source=scripts/bench_turns.sh
+source scripts/bench_turns.sh
 pair=(--uncertainty dic=2 --uncertainty alkalinity=2)
 every=("${pair[@]}" --uncertainty temperature=0.1 --uncertainty salinity=0.01 --uncertainty nutrients=5%)
-variants=(plain pair every)
-declare -A turns=()
-for ((i = 1; i <= repeat; i++)); do
-    for variant in "${variants[@]}"; do
-        case $variant in
-            plain) extra=();;
-            pair) extra=("${pair[@]}");;
-            every) extra=("${every[@]}");;
-        esac
-        load=$(cut -d' ' -f1 /proc/loadavg)
-        /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "$bin" compute "$run_dir"/*.nc \
-            -o "$dir/out-$variant.nc" "${extra[@]}" --overwrite --threads 2 \
-            --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
-            || { cat "$dir/turn.out"; exit 1; }
-        wall=$(cat "$dir/turn.time")
-        turns[$variant]+="$wall "
-        printf '  round %d %-6s wall %7.2f s (load before %s) %s\n' "$i" "$variant" "$wall" "$load" \
-            "$(grep -oE 'convert\+solve [0-9.]+ s' "$dir/turn.out" || true)"
-    done
-done
-for variant in "${variants[@]}"; do
-    # shellcheck disable=SC2086
-    printf '%s\n' ${turns[$variant]} | median >"$dir/turn-$variant.median"
-    printf '%-6s median wall %7.2f s   / plain %.2f\n' "$variant" "$(cat "$dir/turn-$variant.median")" \
+variant_command() {
+    case $1 in
+        plain) cmd=("$bin" compute "$run_dir"/*.nc);;
+        pair) cmd=("$bin" compute "$run_dir"/*.nc "${pair[@]}");;
+        every) cmd=("$bin" compute "$run_dir"/*.nc "${every[@]}");;
+    esac
+}
+run_in_turn "$dir" "$repeat" 'convert\+solve [0-9.]+ s' plain pair every
+for variant in pair every; do
+    printf '%s / plain (medians): %.2f\n' "$variant" \
         "$(echo "$(cat "$dir/turn-$variant.median") / $(cat "$dir/turn-plain.median")" | bc -l)"
 done
-rm -f "$dir"/out-*.nc "$dir"/out-*.extent.csv
