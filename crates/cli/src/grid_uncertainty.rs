@@ -3,7 +3,7 @@
 //! default), parsed as `samples` parses them.
 
 use crate::samples::uncertainty::{constant_uncertainties, parse_amount};
-use acidscape_pipeline::{UncertaintyRequest, GRID_INPUTS};
+use acidscape_pipeline::{source_key, UncertaintyRequest, GRID_INPUTS};
 use clap::Args;
 
 #[derive(Args, Debug, Clone, Default)]
@@ -33,6 +33,11 @@ pub struct GridUncertaintyOptions {
     /// constants' alone)
     #[arg(long)]
     pub with_uncertainty: bool,
+
+    /// Also write each source's signed contribution to each indicator's uncertainty
+    /// (NAME_uncertainty_from_SOURCE): one field per indicator and source with an uncertainty
+    #[arg(long)]
+    pub uncertainty_breakdown: bool,
 }
 
 impl GridUncertaintyOptions {
@@ -41,7 +46,8 @@ impl GridUncertaintyOptions {
         let asked = !self.inputs.is_empty()
             || !self.constants.is_empty()
             || self.no_constant_uncertainty
-            || self.with_uncertainty;
+            || self.with_uncertainty
+            || self.uncertainty_breakdown;
         if !asked {
             return Ok(None);
         }
@@ -49,9 +55,10 @@ impl GridUncertaintyOptions {
         let mut request = UncertaintyRequest {
             inputs: Vec::new(),
             constants,
+            breakdown: self.uncertainty_breakdown,
         };
         let keys = || {
-            let keys: Vec<&str> = GRID_INPUTS.iter().map(|(_, key, _)| *key).collect();
+            let keys: Vec<&str> = GRID_INPUTS.iter().map(|(s, _)| source_key(*s)).collect();
             format!("{}, nutrients", keys.join(", "))
         };
         for text in &self.inputs {
@@ -65,7 +72,8 @@ impl GridUncertaintyOptions {
                 other => vec![other],
             };
             for name in named {
-                let Some((source, ..)) = GRID_INPUTS.iter().find(|(_, k, _)| *k == name) else {
+                let Some((source, _)) = GRID_INPUTS.iter().find(|(s, _)| source_key(*s) == name)
+                else {
                     return Err(format!(
                         "--uncertainty: '{key}' is not an input of a grid; choose from {}",
                         keys()

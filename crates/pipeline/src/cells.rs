@@ -4,8 +4,8 @@ use crate::cells_uncertainty::{solve_cell_with_uncertainty, UncertaintyRequest};
 use crate::flags::{
     error_flag, range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION,
 };
-use crate::indicators::OutputField;
-use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, PerOutput};
+use crate::indicators::{CellUncertainty, OutputField};
+use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair};
 use acidscape_chem::{Solution, Validity};
 use acidscape_gridio::SlabInputs;
 use rayon::prelude::*;
@@ -159,9 +159,9 @@ pub fn solve_cell(
     solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
 }
 
-/// What a cell's solver gives: the solution, and the standard uncertainties of its outputs
-/// when they are asked for.
-pub(crate) type CellSolved = Result<(Solution, Option<PerOutput>), ChemError>;
+/// What a cell's solver gives: the solution, and the uncertainties of its outputs when they
+/// are asked for.
+pub(crate) type CellSolved = Result<(Solution, Option<CellUncertainty>), ChemError>;
 
 /// As [`solve_cell`], solving the cell's checked inputs with `solve`.
 pub(crate) fn solve_cell_by(
@@ -233,7 +233,7 @@ pub(crate) fn solve_cell_by(
     let mut all_finite = true;
     for (k, field) in fields.iter().enumerate() {
         let value = field.cell_value(&solution, uncertainties.as_ref(), density);
-        if field.uncertainty_of.is_some() && !value.is_finite() {
+        if field.uncertainty.is_some() && !value.is_finite() {
             // An uncertainty that cannot be propagated leaves the indicators standing.
             put(k, VALUE_FILL);
             continue;

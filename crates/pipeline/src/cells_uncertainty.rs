@@ -5,8 +5,9 @@
 
 use crate::cells::{solve_cell_by, CellSolved};
 use crate::flags::Flag;
-use crate::indicators::OutputField;
+use crate::indicators::{CellUncertainty, OutputField};
 use crate::PipelineError;
+use acidscape_chem::uncertainty_budget;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
 use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
 use acidscape_chem::{InputUncertainties, SolvedSample, Source, Uncertainties};
@@ -37,17 +38,41 @@ impl UncertaintyAmount {
     }
 }
 
-/// The inputs of a grid that can carry an uncertainty: the source, the key users type, and the
-/// units of an absolute uncertainty (the chemistry's).
-pub const GRID_INPUTS: [(Source, &str, &str); 7] = [
-    (Source::Alkalinity, "alkalinity", "umol kg-1"),
-    (Source::Dic, "dic", "umol kg-1"),
-    (Source::Temperature, "temperature", "degC"),
-    (Source::Salinity, "salinity", "(practical salinity)"),
-    (Source::Pressure, "pressure", "dbar"),
-    (Source::Phosphate, "phosphate", "umol kg-1"),
-    (Source::Silicate, "silicate", "umol kg-1"),
+/// The inputs of a grid that can carry an uncertainty, and the units of an absolute one (the
+/// chemistry's).
+pub const GRID_INPUTS: [(Source, &str); 7] = [
+    (Source::Alkalinity, "umol kg-1"),
+    (Source::Dic, "umol kg-1"),
+    (Source::Temperature, "degC"),
+    (Source::Salinity, "(practical salinity)"),
+    (Source::Pressure, "dbar"),
+    (Source::Phosphate, "umol kg-1"),
+    (Source::Silicate, "umol kg-1"),
 ];
+
+/// The key users type for each source (in `--uncertainty`, `--constant-uncertainty` and the
+/// names of per-source contributions).
+pub fn source_key(source: Source) -> &'static str {
+    match source {
+        Source::Alkalinity => "alkalinity",
+        Source::Dic => "dic",
+        Source::Ph => "ph",
+        Source::Pco2 => "pco2",
+        Source::Temperature => "temperature",
+        Source::Salinity => "salinity",
+        Source::Pressure => "pressure",
+        Source::Phosphate => "phosphate",
+        Source::Silicate => "silicate",
+        Source::Pk0 => "pk0",
+        Source::Pk1 => "pk1",
+        Source::Pk2 => "pk2",
+        Source::Pkb => "pkb",
+        Source::Pkw => "pkw",
+        Source::PkspAragonite => "pksp_aragonite",
+        Source::PkspCalcite => "pksp_calcite",
+        Source::TotalBoron => "total_boron",
+    }
+}
 
 /// What a job propagates: the inputs' standard uncertainties (absolute in the chemistry's
 /// units, or relative to each cell's value) and the constants'.
@@ -56,6 +81,8 @@ pub struct UncertaintyRequest {
     /// At most one per source, each one of [`GRID_INPUTS`].
     pub inputs: Vec<(Source, UncertaintyAmount)>,
     pub constants: ConstantUncertainties,
+    /// Also each source's signed contribution to each indicator's uncertainty.
+    pub breakdown: bool,
 }
 
 impl UncertaintyRequest {
@@ -66,7 +93,7 @@ impl UncertaintyRequest {
             message,
         };
         for (k, &(source, amount)) in self.inputs.iter().enumerate() {
-            if !GRID_INPUTS.iter().any(|(s, ..)| *s == source) {
+            if !GRID_INPUTS.iter().any(|(s, _)| *s == source) {
                 return Err(refuse(format!(
                     "{source:?} is not an input of a grid (alkalinity and DIC are)"
                 )));
@@ -116,7 +143,8 @@ impl UncertaintyRequest {
         } else {
             (self.inputs.iter())
                 .filter_map(|&(source, amount)| {
-                    let (_, key, units) = GRID_INPUTS.iter().find(|(s, ..)| *s == source)?;
+                    let (_, units) = GRID_INPUTS.iter().find(|(s, _)| *s == source)?;
+                    let key = source_key(source);
                     Some(match amount {
                         UncertaintyAmount::Absolute(_) => {
                             format!("{key} {} {units}", amount.describe())
@@ -149,7 +177,28 @@ impl UncertaintyRequest {
                 c.total_boron * 100.0
             )
         };
-        format!("inputs: {inputs}; constants: {constants}")
+        let breakdown = if self.breakdown {
+            "; with each source's contribution"
+        } else {
+            ""
+        };
+        format!("inputs: {inputs}; constants: {constants}{breakdown}")
+    }
+
+    /// The sources whose contributions a breakdown writes: the inputs given and the constants
+    /// with an uncertainty, in [`Source::ALL`] order; none without a breakdown.
+    pub fn breakdown_sources(&self) -> Vec<Source> {
+        if !self.breakdown {
+            return Vec::new();
+        }
+        let u = Uncertainties {
+            inputs: InputUncertainties::default(),
+            constants: self.constants,
+        };
+        let given = |source: Source| self.inputs.iter().any(|(s, _)| *s == source);
+        (Source::ALL.into_iter())
+            .filter(|&s| given(s) || (s.is_constant() && u.of(s) > 0.0))
+            .collect()
     }
 }
 
@@ -174,8 +223,20 @@ pub fn solve_cell_with_uncertainty(
             constants: &constants,
             solution: &solution,
         };
-        let u = standard_uncertainties(&sample, &request.for_cell(&pair, conditions));
-        Ok((solution, Some(u)))
+        let u = request.for_cell(&pair, conditions);
+        let uncertainty = if request.breakdown {
+            let budget = uncertainty_budget(&sample, &u);
+            CellUncertainty {
+                combined: budget.combined(),
+                budget: Some(budget),
+            }
+        } else {
+            CellUncertainty {
+                combined: standard_uncertainties(&sample, &u),
+                budget: None,
+            }
+        };
+        Ok((solution, Some(uncertainty)))
     };
     solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
 }

@@ -184,7 +184,7 @@ impl ColumnWork {
     /// output fields, in the order the solve fills them).
     pub fn with_depth_uncertainty(mut self, fields: &[OutputField]) -> ColumnWork {
         let place =
-            |name: &str| (fields.iter()).position(|f| f.uncertainty_of.as_deref() == Some(name));
+            |name: &str| (fields.iter()).position(|f| f.combined_uncertainty_of() == Some(name));
         self.omega_uncertainty = [place("omega_aragonite"), place("omega_calcite")];
         self
     }

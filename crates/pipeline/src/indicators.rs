@@ -4,11 +4,16 @@
 //! with the compliance-checker package). The table has no name for bicarbonate, CO2*, the
 //! saturation states or the Revelle factor: those get a plain name with long_name and units.
 
+mod uncertainty;
+
 use crate::PipelineError;
-use acidscape_chem::{Output, PerOutput, Solution};
+use acidscape_chem::Solution;
 use std::borrow::Cow;
 use std::fmt;
 use std::str::FromStr;
+pub use uncertainty::{
+    with_uncertainty_fields, CellUncertainty, UncertaintyPart, UNCERTAINTY_SUFFIX,
+};
 
 /// One quantity the user can ask for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -293,25 +298,6 @@ enum Species {
     Co2Star,
 }
 
-impl Quantity {
-    /// The chemistry's output this quantity is (before any change of units).
-    fn output(self) -> Output {
-        match self {
-            Quantity::Ph(PhScale::Total) => Output::PhTotal,
-            Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,
-            Quantity::Ph(PhScale::Free) => Output::PhFree,
-            Quantity::Concentration(Species::Carbonate, _) => Output::Carbonate,
-            Quantity::Concentration(Species::Bicarbonate, _) => Output::Bicarbonate,
-            Quantity::Concentration(Species::Co2Star, _) => Output::Co2,
-            Quantity::Pco2 => Output::Pco2,
-            Quantity::Fco2 => Output::Fco2,
-            Quantity::OmegaAragonite => Output::OmegaAragonite,
-            Quantity::OmegaCalcite => Output::OmegaCalcite,
-            Quantity::RevelleFactor => Output::RevelleFactor,
-        }
-    }
-}
-
 /// One output variable: its name, CF labels and how its value comes from a solution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct OutputField {
@@ -320,25 +306,9 @@ pub struct OutputField {
     pub standard_name: Option<Cow<'static, str>>,
     pub units: &'static str,
     pub comment: &'static str,
-    /// For a standard-uncertainty field ([`OutputField::standard_uncertainty`]): the name of
-    /// the indicator it belongs to.
-    pub uncertainty_of: Option<Cow<'static, str>>,
+    /// For a field of an indicator's uncertainty: which part, of which indicator.
+    pub uncertainty: Option<UncertaintyPart>,
     quantity: Quantity,
-}
-
-/// Suffix of the name of an indicator's standard-uncertainty field.
-pub const UNCERTAINTY_SUFFIX: &str = "_uncertainty";
-
-/// Appends, after the indicators, the standard-uncertainty field of each when `with` is set.
-pub fn with_uncertainty_fields(mut fields: Vec<OutputField>, with: bool) -> Vec<OutputField> {
-    if with {
-        let companions: Vec<OutputField> = fields
-            .iter()
-            .map(OutputField::standard_uncertainty)
-            .collect();
-        fields.extend(companions);
-    }
-    fields
 }
 
 const PCO2_NOTE: &str = "At the in-situ temperature and 1 atm total pressure, as if the water were brought to the surface without change of temperature (common practice for pCO2 below the surface).";
@@ -364,7 +334,7 @@ impl OutputField {
             standard_name: standard_name.map(Cow::Borrowed),
             units: "1",
             comment: "At in-situ temperature and pressure.",
-            uncertainty_of: None,
+            uncertainty: None,
             quantity: Quantity::Ph(scale),
         }
     }
@@ -381,7 +351,7 @@ impl OutputField {
             standard_name: standard_name.filter(|_| per_volume).map(Cow::Borrowed),
             units: unit.udunits(),
             comment: "",
-            uncertainty_of: None,
+            uncertainty: None,
             quantity: Quantity::Concentration(species, unit),
         };
         let plain = |name: &'static str,
@@ -395,7 +365,7 @@ impl OutputField {
             standard_name: standard_name.map(Cow::Borrowed),
             units,
             comment,
-            uncertainty_of: None,
+            uncertainty: None,
             quantity,
         };
         match indicator {
@@ -480,43 +450,6 @@ impl OutputField {
             Quantity::OmegaAragonite => solution.omega_aragonite,
             Quantity::OmegaCalcite => solution.omega_calcite,
             Quantity::RevelleFactor => solution.revelle_factor,
-        }
-    }
-
-    /// The field that holds this indicator's standard uncertainty: same units, `standard_name`
-    /// with the CF modifier `standard_error` (CF 1.10 Appendix C) where the indicator has one.
-    pub fn standard_uncertainty(&self) -> OutputField {
-        OutputField {
-            name: format!("{}{UNCERTAINTY_SUFFIX}", self.name).into(),
-            long_name: format!("{} (standard uncertainty)", self.long_name).into(),
-            standard_name: (self.standard_name.as_ref())
-                .map(|name| format!("{name} standard_error").into()),
-            units: self.units,
-            comment: "",
-            uncertainty_of: Some(self.name.clone()),
-            quantity: self.quantity,
-        }
-    }
-
-    /// The field's value for a solved cell: the indicator, or its standard uncertainty from
-    /// `uncertainties` (NaN without them); `density_kg_m3` converts per-mass to per-volume.
-    pub fn cell_value(
-        &self,
-        solution: &Solution,
-        uncertainties: Option<&PerOutput>,
-        density_kg_m3: f64,
-    ) -> f64 {
-        if self.uncertainty_of.is_none() {
-            return self.value(solution, density_kg_m3);
-        }
-        let Some(u) = uncertainties else {
-            return f64::NAN;
-        };
-        let u = u.get(self.quantity.output());
-        match self.quantity {
-            // The density is taken as exact: the conversion scales the uncertainty.
-            Quantity::Concentration(_, unit) => unit.convert_micromol_per_kg(u, density_kg_m3),
-            _ => u,
         }
     }
 

@@ -110,7 +110,7 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
         request.check()?;
     }
     let fields =
-        with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.is_some());
+        with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.as_ref());
     let horizons = options.horizons.plan(&options.indicators)?;
     let columns = horizons
         .as_ref()

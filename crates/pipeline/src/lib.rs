@@ -27,14 +27,14 @@ pub mod stop;
 mod stream;
 
 pub use cells::VALUE_FILL;
-pub use cells_uncertainty::{UncertaintyAmount, UncertaintyRequest, GRID_INPUTS};
+pub use cells_uncertainty::{source_key, UncertaintyAmount, UncertaintyRequest, GRID_INPUTS};
 pub use error::PipelineError;
 pub use extent_table::{extent_table_path, ExtentOverview};
 pub use flags::{Flag, FlagBit, FlagCounts, FLAG_BITS, FLAG_FILL};
 pub use horizon_choice::{HorizonChoice, HorizonPlan};
 pub use indicators::{
     parse_list, with_uncertainty_fields, ConcentrationUnit, Indicator, IndicatorChoice,
-    OutputField, PhScale, UNCERTAINTY_SUFFIX,
+    OutputField, PhScale, UncertaintyPart, UNCERTAINTY_SUFFIX,
 };
 pub use job::{plan_job, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Progress};
 pub use memory::{format_bytes, parse_memory_size};

@@ -1,6 +1,7 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
 use crate::cells::{SlabResult, VALUE_FILL};
+use crate::cells_uncertainty::source_key;
 use crate::cells_uncertainty::UncertaintyRequest;
 use crate::column_output::{
     define_cell_area, define_column_outputs, ColumnDefinition, CELL_MEASURES,
@@ -8,7 +9,7 @@ use crate::column_output::{
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::flags::{flag_masks, flag_meanings, Flag, ALL_FLAG_BITS, FLAG_BITS, FLAG_FILL};
-use crate::indicators::{IndicatorChoice, OutputField};
+use crate::indicators::{IndicatorChoice, OutputField, UncertaintyPart, UNCERTAINTY_SUFFIX};
 use crate::plan::SlabPlan;
 use crate::PipelineError;
 use acidscape_chem::ConstantChoice;
@@ -174,9 +175,14 @@ pub fn define_output(
         if let Some(standard_name) = &field.standard_name {
             attributes.push(("standard_name", standard_name.to_string()));
         }
-        let note = match &field.uncertainty_of {
-            Some(of) => format!(
+        let note = match &field.uncertainty {
+            Some(UncertaintyPart::Combined { of }) => format!(
                 "Standard uncertainty of {of}. {}",
+                uncertainty_note.as_deref().unwrap_or_default()
+            ),
+            Some(UncertaintyPart::Contribution { of, source }) => format!(
+                "Signed contribution of {} to the standard uncertainty of {of}: the sensitivity of {of} to it times its standard uncertainty; the root sum of squares of the contributions is {of}{UNCERTAINTY_SUFFIX}. {}",
+                source_key(*source),
                 uncertainty_note.as_deref().unwrap_or_default()
             ),
             None => String::new(),
@@ -229,16 +235,20 @@ pub fn define_output(
     Ok(layout)
 }
 
-/// The flag, and an indicator's standard-uncertainty field when the output has it (CF 1.10
-/// section 3.4, ancillary data).
+/// The flag, and (CF 1.10 section 3.4, ancillary data) for an indicator its
+/// standard-uncertainty field, for that field the contributions to it, when the output has them.
 fn ancillary_variables(field: &OutputField, fields: &[OutputField]) -> String {
-    let companion = fields
-        .iter()
-        .find(|f| f.uncertainty_of.as_deref() == Some(&*field.name));
-    match companion {
-        Some(companion) => format!("{FLAG_VARIABLE} {}", companion.name),
-        None => FLAG_VARIABLE.to_string(),
-    }
+    let belongs = |f: &OutputField| match (&field.uncertainty, &f.uncertainty) {
+        (None, Some(UncertaintyPart::Combined { of })) => *of == field.name,
+        (
+            Some(UncertaintyPart::Combined { of }),
+            Some(UncertaintyPart::Contribution { of: to, .. }),
+        ) => of == to,
+        _ => false,
+    };
+    let mut names = vec![FLAG_VARIABLE];
+    names.extend(fields.iter().filter(|f| belongs(f)).map(|f| &*f.name));
+    names.join(" ")
 }
 
 /// How the standard uncertainties were obtained: method, sources and values.

@@ -6,6 +6,7 @@
 mod common;
 
 use acidscape_analysis::horizons::HorizonStatus;
+use acidscape_chem::uncertainty_budget;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
 use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
 use acidscape_chem::{InputUncertainties, Output, SolvedSample, Source, Uncertainties};
@@ -43,8 +44,27 @@ fn request() -> UncertaintyRequest {
             (Source::Silicate, UncertaintyAmount::Relative(0.05)),
         ],
         constants: ConstantUncertainties::ORR_2018,
+        breakdown: false,
     }
 }
+
+/// The sources a breakdown of [`request`] writes, with their keys, in `Source::ALL` order.
+const BREAKDOWN: [(Source, &str); 14] = [
+    (Source::Alkalinity, "alkalinity"),
+    (Source::Dic, "dic"),
+    (Source::Temperature, "temperature"),
+    (Source::Salinity, "salinity"),
+    (Source::Phosphate, "phosphate"),
+    (Source::Silicate, "silicate"),
+    (Source::Pk0, "pk0"),
+    (Source::Pk1, "pk1"),
+    (Source::Pk2, "pk2"),
+    (Source::Pkb, "pkb"),
+    (Source::Pkw, "pkw"),
+    (Source::PkspAragonite, "pksp_aragonite"),
+    (Source::PkspCalcite, "pksp_calcite"),
+    (Source::TotalBoron, "total_boron"),
+];
 
 fn job(output: &Path, uncertainty: Option<UncertaintyRequest>) -> JobOptions {
     let mut options = options(output, every_indicator());
@@ -69,8 +89,43 @@ fn uncertainty_fields_equal_the_chemistry_per_cell() {
     let run = open_run(&inputs);
     let plain = dir.path().join("plain.nc");
     let with = dir.path().join("with.nc");
+    let broken_down = dir.path().join("broken-down.nc");
     run_job(&run, &job(&plain, None), &mut NoProgress).unwrap();
     run_job(&run, &job(&with, Some(request())), &mut NoProgress).unwrap();
+    let breakdown = UncertaintyRequest {
+        breakdown: true,
+        ..request()
+    };
+    run_job(&run, &job(&broken_down, Some(breakdown)), &mut NoProgress).unwrap();
+    // Each combined uncertainty lists its contributions as ancillary variables (CF 1.10
+    // section 3.4); a source without an uncertainty (pressure) has none.
+    let mut listed = vec!["quality_flag".to_string()];
+    listed.extend(
+        BREAKDOWN
+            .iter()
+            .map(|(_, key)| format!("ph_uncertainty_from_{key}")),
+    );
+    assert_eq!(
+        text_attribute(&broken_down, "ph_uncertainty", "ancillary_variables").unwrap(),
+        listed.join(" ")
+    );
+    let file = netcdf::open(&broken_down).unwrap();
+    assert!(file.variable("ph_uncertainty_from_pressure").is_none());
+    assert_eq!(
+        file.variables()
+            .filter(|v| v.name().contains("_from_"))
+            .count(),
+        INDICATORS.len() * BREAKDOWN.len()
+    );
+    // The combined uncertainties do not depend on whether the breakdown is written.
+    for (name, ..) in INDICATORS {
+        let name = format!("{name}_uncertainty");
+        assert_eq!(
+            read_f32(&with, &name),
+            read_f32(&broken_down, &name),
+            "{name}"
+        );
+    }
 
     // The indicators and flags are the same bits as without uncertainties.
     assert_eq!(
@@ -89,6 +144,14 @@ fn uncertainty_fields_equal_the_chemistry_per_cell() {
     let stored: Vec<Vec<f32>> = INDICATORS
         .iter()
         .map(|(name, ..)| read_f32(&with, &format!("{name}_uncertainty")))
+        .collect();
+    let contributions: Vec<Vec<Vec<f32>>> = INDICATORS
+        .iter()
+        .map(|(name, ..)| {
+            (BREAKDOWN.iter())
+                .map(|(_, key)| read_f32(&broken_down, &format!("{name}_uncertainty_from_{key}")))
+                .collect()
+        })
         .collect();
     let cells = LEVELS * ROWS * COLS;
     let choice = ConstantChoice::default();
@@ -135,14 +198,22 @@ fn uncertainty_fields_equal_the_chemistry_per_cell() {
                 constants: ConstantUncertainties::ORR_2018,
             };
             let expected = standard_uncertainties(&sample, &u);
-            for ((name, output, per_volume), values) in INDICATORS.iter().zip(&stored) {
-                let mut value = expected.get(*output);
-                if *per_volume {
-                    // µmol kg-1 to mol m-3 with the run's density.
-                    value *= 1e-6 * slab.density_kg_m3[cell];
-                }
+            let budget = uncertainty_budget(&sample, &u);
+            let indicators = INDICATORS.iter().zip(&stored).zip(&contributions);
+            for (((name, output, per_volume), values), from) in indicators {
+                // µmol kg-1 to mol m-3 with the run's density.
+                let scale = if *per_volume {
+                    1e-6 * slab.density_kg_m3[cell]
+                } else {
+                    1.0
+                };
+                let value = expected.get(*output) * scale;
                 assert_eq!(values[at], value as f32, "{name} step {step} cell {cell}");
                 assert!(value > 0.0, "{name} step {step} cell {cell}");
+                for ((source, key), from) in BREAKDOWN.iter().zip(from) {
+                    let part = budget.get(*source, *output) * scale;
+                    assert_eq!(from[at], part as f32, "{name} from {key}, cell {cell}");
+                }
             }
             checked += 1;
         }

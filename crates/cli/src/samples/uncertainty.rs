@@ -10,7 +10,7 @@ use acidscape_chem::{
     InputUncertainties, Output, PerSource, Solution, SolvedSample, Source, Uncertainties,
 };
 use acidscape_gridio::{seawater, units};
-use acidscape_pipeline::UncertaintyAmount as Amount;
+use acidscape_pipeline::{source_key, UncertaintyAmount as Amount};
 use clap::Args;
 use std::collections::BTreeMap;
 
@@ -62,29 +62,6 @@ const PROPAGATED: [(Output, &str); 13] = [
     (Output::OmegaCalcite, "omega_calcite"),
     (Output::RevelleFactor, "revelle_factor"),
 ];
-
-/// The key users type for each source, and the input role it belongs to.
-fn source_key(source: Source) -> &'static str {
-    match source {
-        Source::Alkalinity => "alkalinity",
-        Source::Dic => "dic",
-        Source::Ph => "ph",
-        Source::Pco2 => "pco2",
-        Source::Temperature => "temperature",
-        Source::Salinity => "salinity",
-        Source::Pressure => "pressure",
-        Source::Phosphate => "phosphate",
-        Source::Silicate => "silicate",
-        Source::Pk0 => "pk0",
-        Source::Pk1 => "pk1",
-        Source::Pk2 => "pk2",
-        Source::Pkb => "pkb",
-        Source::Pkw => "pkw",
-        Source::PkspAragonite => "pksp_aragonite",
-        Source::PkspCalcite => "pksp_calcite",
-        Source::TotalBoron => "total_boron",
-    }
-}
 
 /// The source an input role is, if it can carry an uncertainty.
 fn source_of(role: Role) -> Option<Source> {
