@@ -95,11 +95,12 @@ impl UncertaintyRequest {
         for (k, &(source, amount)) in self.inputs.iter().enumerate() {
             if !GRID_INPUTS.iter().any(|(s, _)| *s == source) {
                 return Err(refuse(format!(
-                    "{source:?} is not an input of a grid (alkalinity and DIC are)"
+                    "{} is not an input of a grid (alkalinity and DIC are)",
+                    source_key(source)
                 )));
             }
             if self.inputs[..k].iter().any(|(s, _)| *s == source) {
-                return Err(refuse(format!("{source:?} is given twice")));
+                return Err(refuse(format!("{} is given twice", source_key(source))));
             }
             if source == Source::Temperature && matches!(amount, UncertaintyAmount::Relative(_)) {
                 return Err(refuse(
