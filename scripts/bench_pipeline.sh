@@ -49,7 +49,8 @@ mapfile -t all < <(ls "$run_dir"/*.nc)
 echo "inputs: ${#half[@]} files for $steps steps ($(du -ch "${half[@]}" | tail -1 | cut -f1)), ${#all[@]} files for $((2 * steps)) steps"
 
 seconds() { /usr/bin/env python3 -c 'import time; print(f"{time.time():.3f}")'; }
-median() { sort -g | awk '{v[NR] = $1} END {print (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2}'; }
+# shellcheck source=scripts/bench_turns.sh
+source scripts/bench_turns.sh
 
 # label, then the command: runs it REPEAT times; prints each run and the medians of wall
 # seconds and peak RSS; leaves the last run's summary in $dir/$label.out
@@ -105,34 +106,18 @@ printf 'I/O floor (read + write): %.2f s; acidscape on 2 cores / floor: %.2f x\n
 echo "== horizons and volumes: variants run in turn on 2 cores, $repeat rounds"
 variants=(horizons no-horizons)
 [[ -n "${BASELINE:-}" ]] && variants+=(baseline)
-declare -A turns=()
-for ((i = 1; i <= repeat; i++)); do
-    for variant in "${variants[@]}"; do
-        case $variant in
-            horizons) cmd=("$bin" compute);;
-            no-horizons) cmd=("$bin" compute --no-horizons);;
-            baseline) cmd=("$BASELINE" compute);;
-        esac
-        load=$(cut -d' ' -f1 /proc/loadavg)
-        /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "${cmd[@]}" "${half[@]}" -o "$dir/out-$variant.nc" \
-            --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
-            || { cat "$dir/turn.out"; exit 1; }
-        wall=$(cat "$dir/turn.time")
-        turns[$variant]+="$wall "
-        printf '  round %d %-12s wall %7.2f s (load before %s) %s\n' "$i" "$variant" "$wall" "$load" \
-            "$(grep -oE 'of which horizons and volumes [0-9.]+ s' "$dir/turn.out" || true)"
-    done
-done
-for variant in "${variants[@]}"; do
-    # shellcheck disable=SC2086
-    printf '%s\n' ${turns[$variant]} | median >"$dir/turn-$variant.median"
-    printf '%-12s median wall %7.2f s\n' "$variant" "$(cat "$dir/turn-$variant.median")"
-done
+variant_command() {
+    case $1 in
+        horizons) cmd=("$bin" compute "${half[@]}");;
+        no-horizons) cmd=("$bin" compute --no-horizons "${half[@]}");;
+        baseline) cmd=("$BASELINE" compute "${half[@]}");;
+    esac
+}
+run_in_turn "$dir" "$repeat" 'of which horizons and volumes [0-9.]+ s' "${variants[@]}"
 printf 'horizons / no-horizons (medians): %.3f\n' "$(echo "$(cat "$dir/turn-horizons.median") / $(cat "$dir/turn-no-horizons.median")" | bc -l)"
 if [[ -n "${BASELINE:-}" ]]; then
     printf 'horizons / baseline (medians): %.3f\n' "$(echo "$(cat "$dir/turn-horizons.median") / $(cat "$dir/turn-baseline.median")" | bc -l)"
 fi
-rm -f "$dir"/out-horizons.nc "$dir"/out-no-horizons.nc "$dir"/out-baseline.nc "$dir"/*.extent.csv
 
 echo "== memory as steps double: $((2 * steps)) steps, 2 cores"
 measure "acidscape-2x-steps" taskset -c 0,1 "$bin" compute "${all[@]}" -o "$dir/out-2x.nc" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"

@@ -21,7 +21,12 @@ For every file given:
     threshold, over columns with a horizon depth; the area-weighted mean horizon depth;
     relative tolerance 1e-6 (float32 thickness and depth), plus the volume of cells whose
     omega lies within float32 rounding of the threshold;
-  * the table NAME.extent.csv beside NAME.nc holds exactly the time-series values.
+  * the table NAME.extent.csv beside NAME.nc holds exactly the time-series values;
+  * horizon-depth uncertainties (`horizon_depth_*_uncertainty`, when written): where the depth
+    was interpolated or extrapolated between two centres, the first-order change of the same
+    ln(omega) line for a change of both omega values by their written standard uncertainties
+    (`omega_*_uncertainty`, fully correlated), by central differences (GUM, JCGM 100:2008,
+    5.1.3 and 5.2.2 with r = 1); missing everywhere else.
 
 Prints one line per file; exits 1 if any check failed.
 Usage: python3 scripts/check_horizons.py OUTPUT.nc...
@@ -121,13 +126,14 @@ def centre_depths(ds, step, shape):
 # --- one column's horizon, from the definitions -------------------------------------------------
 
 def horizon(depth, omega, floor, threshold):
-    """(status word, depth or None) of one column: depth, omega from the surface down."""
+    """(status word, depth or None, the two levels it comes from or None) of one column:
+    depth, omega from the surface down."""
     n = len(depth)
     if n == 0:
-        return "land", None
+        return "land", None, None
     ok = [w > 0 and math.isfinite(w) for w in omega]
     if not ok[0]:
-        return "omega_missing", None
+        return "omega_missing", None, None
 
     def resaturates(start):
         for k in range(start, n):
@@ -140,21 +146,33 @@ def horizon(depth, omega, floor, threshold):
     if omega[0] < threshold:
         again, _ = resaturates(1)
         word = "undersaturated_at_surface_saturated_below" if again else "undersaturated_at_surface"
-        return word, 0.0
+        return word, 0.0, None
     for k in range(1, n):
         if not ok[k]:
-            return "omega_missing", None
+            return "omega_missing", None, None
         if omega[k] < threshold:
             z = ln_line(depth[k - 1], depth[k], omega[k - 1], omega[k], threshold)
             again, gap = resaturates(k + 1)
             word = "several_crossings" if again else ("crossing_above_missing_omega" if gap else "single_crossing")
-            return word, min(max(z, depth[k - 1]), depth[k])
+            return word, min(max(z, depth[k - 1]), depth[k]), (k - 1, k)
     floor = max(floor, depth[-1])
     if n >= 2 and omega[-1] < omega[-2]:
         z = max(ln_line(depth[-2], depth[-1], omega[-2], omega[-1], threshold), depth[-1])
         if z <= floor:
-            return "crossing_in_bottom_cell", z
-    return "deeper_than_sea_floor", None
+            return "crossing_in_bottom_cell", z, (n - 2, n - 1)
+    return "deeper_than_sea_floor", None, None
+
+
+def depth_uncertainty(depth, omega, u, pair, threshold):
+    """First-order change of the line's depth for both omega values moved by their standard
+    uncertainties together (central differences, step 1e-3 of the uncertainty)."""
+    a, b = pair
+    step = 1e-3
+
+    def z(sign):
+        return ln_line(depth[a], depth[b], omega[a] + sign * step * u[a], omega[b] + sign * step * u[b], threshold)
+
+    return abs(z(1.0) - z(-1.0)) / (2.0 * step)
 
 
 def ln_line(z0, z1, w0, w1, threshold):
@@ -199,15 +217,15 @@ class Field:
         floor, f_fill = raw(ds, "sea_floor_depth")
         self.floor = np.where(valid(floor, f_fill), floor.astype(float), np.nan)
 
-    def omega(self, ds, mineral):
-        values, fill = raw(ds, f"omega_{mineral}")
+    def omega(self, ds, mineral, suffix=""):
+        values, fill = raw(ds, f"omega_{mineral}{suffix}")
         values = values if self.has_time else values[np.newaxis]
         return np.where(valid(values, fill), values.astype(float), np.nan)
 
 
 def check_horizons(ds, field, problems):
-    checked, skipped = 0, 0
-    names = [n for n in ds.data_vars if n.startswith("horizon_depth_")]
+    checked, skipped, uncertainties_checked = 0, 0, 0
+    names = [n for n in ds.data_vars if n.startswith("horizon_depth_") and not n.endswith("_uncertainty")]
     for name in names:
         mineral, threshold = parse_suffix(name, "horizon_depth_")
         omega = field.omega(ds, mineral)
@@ -219,6 +237,11 @@ def check_horizons(ds, field, problems):
             problems.append(f"{status_name}: flag_meanings {meanings}")
         if not field.has_time:
             depth_field, status_field = depth_field[np.newaxis], status_field[np.newaxis]
+        uncertain = f"{name}_uncertainty" in ds
+        if uncertain:
+            u_depth, u_fill = raw(ds, f"{name}_uncertainty")
+            u_depth = u_depth if field.has_time else u_depth[np.newaxis]
+            u_omega = field.omega(ds, mineral, "_uncertainty")
         for step in range(field.steps):
             depths, eta = centre_depths(ds, step, field.shape)
             for j in range(field.shape[1]):
@@ -231,7 +254,7 @@ def check_horizons(ds, field, problems):
                     if any(abs(x / threshold - 1.0) < NEAR for x in w if np.isfinite(x)):
                         skipped += 1
                         continue
-                    word, want = horizon(z, w, floor, threshold)
+                    word, want, pair = horizon(z, w, floor, threshold)
                     got_word = meanings[int(status_field[step, j, i])]
                     got = depth_field[step, j, i]
                     got = None if got == d_fill else float(got)
@@ -243,7 +266,17 @@ def check_horizons(ds, field, problems):
                         problems.append(f"{where}: depth {got}, recomputed {want}")
                     elif want is not None and abs(got - want) > tolerance(z, w, want):
                         problems.append(f"{where}: depth {got}, recomputed {want}")
-    return checked, skipped
+                    if uncertain:
+                        u = [float(u_omega[step, k, j, i]) for k in order]
+                        got_u = u_depth[step, j, i]
+                        got_u = None if got_u == u_fill else float(got_u)
+                        want_u = None if pair is None else depth_uncertainty(z, w, u, pair, threshold)
+                        if (got_u is None) != (want_u is None) or (
+                            want_u is not None and abs(got_u - want_u) > 1e-3 * want_u + 1e-3
+                        ):
+                            problems.append(f"{where}: depth uncertainty {got_u}, recomputed {want_u}")
+                        uncertainties_checked += want_u is not None
+    return checked, skipped, uncertainties_checked
 
 
 def series(ds, name):
@@ -280,7 +313,8 @@ def check_series(ds, field, problems):
             known = wet & np.isfinite(omega) & (omega > 0)
             expected.setdefault(name, []).append((volume[known].sum(), 0.0))
             top = top_wet_omega(omega, wet, depths)
-            for depth_name in [n for n in ds.data_vars if n.startswith(f"horizon_depth_{mineral}")]:
+            depths_of_mineral = [n for n in ds.data_vars if n.startswith(f"horizon_depth_{mineral}") and not n.endswith("_uncertainty")]
+            for depth_name in depths_of_mineral:
                 _, threshold = parse_suffix(depth_name, "horizon_depth_")
                 suffix = depth_name[len("horizon_depth_"):]
                 near = known & (np.abs(omega / threshold - 1.0) < NEAR)
@@ -348,7 +382,7 @@ def check(path):
         if "cell_area" not in ds:
             return f"skip {path}: no horizons in this output"
         field = Field(ds)
-        checked, skipped = check_horizons(ds, field, problems)
+        checked, skipped, uncertainties = check_horizons(ds, field, problems)
         names = check_series(ds, field, problems)
         check_table(path, ds, names, problems)
     if problems:
@@ -356,6 +390,7 @@ def check(path):
         more = f"\n    ... and {len(problems) - 20} more" if len(problems) > 20 else ""
         return f"FAIL {path}:\n    {shown}{more}"
     return (f"ok   {path}: {checked} column horizons recomputed ({skipped} with omega within float32 of a threshold skipped), "
+            f"{uncertainties} depth uncertainties recomputed, "
             f"{len(names)} time series equal the sums over the fields, table matches")
 
 

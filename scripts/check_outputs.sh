@@ -48,6 +48,72 @@ for run_dir in "$grids"/*/*/; do
         echo "compute failed on $run_dir:"; cat "$work/$run.log"; failed=1
     fi
 done
+# With standard uncertainties (inputs and the constants' defaults): a companion field per
+# indicator and per horizon depth, CF-linked through ancillary_variables.
+first_run=$(ls -d "$grids"/*/*/ | head -n 1)
+out="$work/with-uncertainty.nc"
+if "$bin" compute "$first_run"*.nc -o "$out" --overwrite \
+    --indicators ph,co3,hco3,co2,pco2,fco2,omega-aragonite,omega-calcite,revelle \
+    --ph-scales total,free --omega-thresholds aragonite=1.5 \
+    --uncertainty dic=2 --uncertainty alkalinity=2 --uncertainty temperature=0.1 \
+    --uncertainty salinity=0.01 --uncertainty nutrients=5% >"$work/with-uncertainty.log" 2>&1; then
+    outputs+=("$out")
+else
+    echo "compute with uncertainties failed on $first_run:"; cat "$work/with-uncertainty.log"; failed=1
+fi
+# Each source's contribution, on fewer indicators (a field per indicator and source).
+out="$work/uncertainty-breakdown.nc"
+if "$bin" compute "$first_run"*.nc -o "$out" --overwrite --indicators ph,omega-aragonite \
+    --uncertainty dic=2 --uncertainty temperature=0.1 --uncertainty-breakdown \
+    >"$work/uncertainty-breakdown.log" 2>&1; then
+    echo "== the breakdown output: external readers and compliance-checker cf:1.10"
+    python3 scripts/check_external_readers.py "$out" --cf-suite cf:1.10 \
+        --expect-var ph_uncertainty_from_dic --expect-units omega_aragonite_uncertainty_from_pk2=1 || failed=1
+else
+    echo "compute with --uncertainty-breakdown failed on $first_run:"; cat "$work/uncertainty-breakdown.log"; failed=1
+fi
+if [[ -f "$work/with-uncertainty.nc" && -f "$work/uncertainty-breakdown.nc" ]]; then
+    echo "== uncertainty fields: names, units and CF links"
+    python3 - "$work/with-uncertainty.nc" "$work/uncertainty-breakdown.nc" <<'PY' || failed=1
+import sys
+import xarray as xr
+ds = xr.open_dataset(sys.argv[1])
+bad = []
+for name in ["ph", "ph_free_scale", "co3", "hco3", "co2_star", "pco2", "fco2", "omega_aragonite",
+             "omega_calcite", "revelle_factor", "horizon_depth_aragonite", "horizon_depth_calcite",
+             "horizon_depth_aragonite_1p5"]:
+    companion = name + "_uncertainty"
+    if companion not in ds:
+        bad.append(f"{companion} missing")
+        continue
+    if companion not in ds[name].attrs.get("ancillary_variables", "").split():
+        bad.append(f"{name}: ancillary_variables does not name {companion}")
+    if ds[name].attrs.get("units") != ds[companion].attrs.get("units"):
+        bad.append(f"{companion}: units differ from {name}'s")
+    standard = ds[name].attrs.get("standard_name")
+    if standard and ds[companion].attrs.get("standard_name") != standard + " standard_error":
+        bad.append(f"{companion}: standard_name is not '{standard} standard_error'")
+    if not (ds[companion] >= 0).any():
+        bad.append(f"{companion}: no value")
+parts = xr.open_dataset(sys.argv[2])
+for name in ["ph", "omega_aragonite"]:
+    combined = parts[name + "_uncertainty"]
+    sources = [f"{name}_uncertainty_from_{s}" for s in ["dic", "temperature", "pk0", "pk1", "pk2",
+               "pkb", "pkw", "pksp_aragonite", "pksp_calcite", "total_boron"]]
+    if combined.attrs.get("ancillary_variables", "").split() != ["quality_flag"] + sources:
+        bad.append(f"{name}_uncertainty: ancillary_variables {combined.attrs.get('ancillary_variables')}")
+        continue
+    if any(parts[s].attrs.get("units") != combined.attrs.get("units") for s in sources):
+        bad.append(f"{name}: a contribution's units differ")
+    # The root sum of squares of the contributions is the combined uncertainty (float32 storage).
+    rss = sum(parts[s].astype("float64") ** 2 for s in sources) ** 0.5
+    worst = float(abs(rss / combined.astype("float64") - 1).max())
+    if not worst < 1e-5:
+        bad.append(f"{name}: contributions' root sum of squares differs from the combined uncertainty by {worst:.2e}")
+print("\n".join(bad) if bad else f"ok   {sys.argv[1]}, {sys.argv[2]}: every indicator and horizon depth has its linked standard uncertainty; the contributions' root sum of squares is the combined uncertainty")
+sys.exit(1 if bad else 0)
+PY
+fi
 if [[ ${#outputs[@]} -gt 0 ]]; then
     expect=(--expect-var ph --expect-var quality_flag --expect-units ph=1 --expect-units co3="mol m-3"
             --expect-units pco2=uatm --expect-units omega_aragonite=1

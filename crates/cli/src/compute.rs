@@ -1,5 +1,6 @@
 //! `compute`: indicator fields for a whole run, written as CF NetCDF-4.
 
+use crate::grid_uncertainty::GridUncertaintyOptions;
 use crate::run_options::{ConstantOptions, RunOptions};
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
@@ -61,6 +62,9 @@ pub struct ComputeArgs {
     )]
     pub omega_thresholds: Vec<String>,
 
+    #[command(flatten)]
+    pub uncertainty: GridUncertaintyOptions,
+
     /// Memory the job may use; slabs are sized to fit (e.g. 512MiB, 2GiB)
     #[arg(long, value_name = "SIZE", default_value = "2GiB")]
     pub memory_budget: String,
@@ -100,6 +104,7 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         horizons.add_thresholds(text)?;
     }
     horizons.plan(&indicators)?;
+    let uncertainty = args.uncertainty.request()?;
     let memory_budget_bytes = parse_memory_size(&args.memory_budget)?;
     let constants = args.constants.choice()?;
     let stop_after_steps = match std::env::var(STOP_AFTER_STEPS_ENV) {
@@ -133,6 +138,7 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         stop_after_steps,
         max_rows_per_slab: None,
         horizons,
+        uncertainty,
         stop,
     };
     let mut progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {

@@ -5,6 +5,7 @@ mod compare;
 mod compute;
 mod describe;
 mod draw;
+mod grid_uncertainty;
 mod run_options;
 mod samples;
 

@@ -4,7 +4,7 @@
 
 mod columns;
 
-mod uncertainty;
+pub(crate) mod uncertainty;
 
 use crate::run_options::ConstantOptions;
 use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, Solution, Validity};

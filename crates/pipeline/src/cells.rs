@@ -1,10 +1,12 @@
 //! Solving every cell of a slab in parallel, with a quality flag per cell.
 
+use crate::cells_uncertainty::{solve_cell_with_uncertainty, UncertaintyRequest};
 use crate::flags::{
     error_flag, range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION,
 };
-use crate::indicators::OutputField;
-use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, Validity};
+use crate::indicators::{CellUncertainty, OutputField};
+use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair};
+use acidscape_chem::{Solution, Validity};
 use acidscape_gridio::SlabInputs;
 use rayon::prelude::*;
 use std::ops::Range;
@@ -53,13 +55,15 @@ type Block<'a> = (
 const CELLS_PER_TASK: usize = 4096;
 
 /// Solves every cell of `inputs` and fills the requested fields, the flags and the kept
-/// saturation states (in `spare`'s buffers, which may hold a previous slab's values).
+/// saturation states (in `spare`'s buffers, which may hold a previous slab's values); with
+/// `uncertainty`, every cell takes the uncertainty path (see [`crate::cells_uncertainty`]).
 pub fn solve_slab(
     inputs: &SlabInputs,
     fields: &[OutputField],
     choice: &ConstantChoice,
     keep: KeepOmega,
     spare: SaturationStates,
+    uncertainty: Option<&UncertaintyRequest>,
 ) -> SlabResult {
     let cells = inputs.shape.iter().product::<usize>();
     let mut values: Vec<Vec<f32>> = fields.iter().map(|_| vec![VALUE_FILL; cells]).collect();
@@ -107,7 +111,12 @@ pub fn solve_slab(
                 let put = |k: usize, v: f32| outs[k][offset] = v;
                 let mut omega = [f64::NAN; 2];
                 let put_omega = |aragonite: f64, calcite: f64| omega = [aragonite, calcite];
-                *flag = solve_cell(inputs, cell, fields, choice, put, put_omega);
+                *flag = match uncertainty {
+                    None => solve_cell(inputs, cell, fields, choice, put, put_omega),
+                    Some(request) => solve_cell_with_uncertainty(
+                        inputs, cell, fields, choice, request, put, put_omega,
+                    ),
+                };
                 for (state, value) in states.iter_mut().zip(omega) {
                     if let Some(state) = state {
                         state[offset] = value;
@@ -143,8 +152,26 @@ pub fn solve_cell(
     cell: usize,
     fields: &[OutputField],
     choice: &ConstantChoice,
+    put: impl FnMut(usize, f32),
+    put_omega: impl FnMut(f64, f64),
+) -> Flag {
+    let solve = |pair, conditions: &Conditions| Ok((solve(pair, conditions, choice)?, None));
+    solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
+}
+
+/// What a cell's solver gives: the solution, and the uncertainties of its outputs when they
+/// are asked for.
+pub(crate) type CellSolved = Result<(Solution, Option<CellUncertainty>), ChemError>;
+
+/// As [`solve_cell`], solving the cell's checked inputs with `solve`.
+pub(crate) fn solve_cell_by(
+    inputs: &SlabInputs,
+    cell: usize,
+    fields: &[OutputField],
+    choice: &ConstantChoice,
     mut put: impl FnMut(usize, f32),
     mut put_omega: impl FnMut(f64, f64),
+    solve: impl FnOnce(InputPair, &Conditions) -> CellSolved,
 ) -> Flag {
     let temperature_c = inputs.temperature_c[cell];
     let salinity = inputs.salinity[cell];
@@ -198,17 +225,19 @@ pub fn solve_cell(
     if !inputs_finite || (!density_usable && fields.iter().any(|f| f.needs_density())) {
         return MISSING_INPUT | assessed();
     }
-    let solution = match solve(
-        InputPair::AlkalinityDic { alkalinity, dic },
-        &conditions,
-        choice,
-    ) {
-        Ok(solution) => solution,
-        Err(error) => return error_flag(&error) | assessed(),
-    };
+    let (solution, uncertainties) =
+        match solve(InputPair::AlkalinityDic { alkalinity, dic }, &conditions) {
+            Ok(solved) => solved,
+            Err(error) => return error_flag(&error) | assessed(),
+        };
     let mut all_finite = true;
     for (k, field) in fields.iter().enumerate() {
-        let value = field.value(&solution, density);
+        let value = field.cell_value(&solution, uncertainties.as_ref(), density);
+        if field.uncertainty.is_some() && !value.is_finite() {
+            // An uncertainty that cannot be propagated leaves the indicators standing.
+            put(k, VALUE_FILL);
+            continue;
+        }
         all_finite &= value.is_finite();
         put(k, value as f32);
     }

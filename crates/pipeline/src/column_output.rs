@@ -7,6 +7,7 @@ use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
 use crate::geometry::ColumnGeometry;
 use crate::horizon_choice::{horizon_depth_name, horizon_status_name, series_name, HorizonPlan};
+use crate::indicators::UNCERTAINTY_SUFFIX;
 use crate::output::OutputLayout;
 use crate::plan::SlabPlan;
 use crate::PipelineError;
@@ -144,7 +145,7 @@ pub(crate) fn define_column_outputs(
 ) -> Result<(), PipelineError> {
     define_floor_and_thickness(file, def, work.geometry())?;
     for (mineral, threshold) in work.plan().horizons() {
-        define_horizon(file, def, mineral, threshold)?;
+        define_horizon(file, def, mineral, threshold, work.has_depth_uncertainty())?;
     }
     let series_dims: Vec<String> = def
         .layout
@@ -303,15 +304,30 @@ fn define_floor_and_thickness(
     def.add::<f32>(file, CELL_THICKNESS, &dims, Some(&chunk), thickness)
 }
 
+/// The name of a horizon depth's standard-uncertainty variable.
+fn depth_uncertainty_name(mineral: Mineral, threshold: f64) -> String {
+    format!(
+        "{}{UNCERTAINTY_SUFFIX}",
+        horizon_depth_name(mineral, threshold)
+    )
+}
+
 fn define_horizon(
     file: &mut FileMut,
     def: &ColumnDefinition,
     mineral: Mineral,
     threshold: f64,
+    with_uncertainty: bool,
 ) -> Result<(), PipelineError> {
     let (dims, chunk) = def.step_dims();
     let name = mineral.name();
     let status_name = horizon_status_name(mineral, threshold);
+    let uncertainty_name = depth_uncertainty_name(mineral, threshold);
+    let ancillary = if with_uncertainty {
+        format!("{status_name} {uncertainty_name}")
+    } else {
+        status_name.clone()
+    };
     let mut depth = vec![
         (
             "long_name",
@@ -326,20 +342,46 @@ fn define_horizon(
         ("positive", AttributeValue::from("down")),
         ("_FillValue", AttributeValue::Float(VALUE_FILL)),
         ("missing_value", AttributeValue::Float(VALUE_FILL)),
-        ("ancillary_variables", AttributeValue::from(status_name.as_str())),
+        ("ancillary_variables", AttributeValue::from(ancillary.as_str())),
         ("cell_measures", AttributeValue::from(CELL_MEASURES)),
         ("comment", AttributeValue::from(horizon_comment(name, threshold).as_str())),
     ];
-    if threshold == 1.0 {
-        // CF standard name table (version 93): the "minimum depth of undersaturation",
-        // sometimes called the saturation horizon.
-        let standard = format!("minimum_depth_of_{name}_undersaturation_in_sea_water");
+    // CF standard name table (version 93): the "minimum depth of undersaturation", sometimes
+    // called the saturation horizon.
+    let standard =
+        (threshold == 1.0).then(|| format!("minimum_depth_of_{name}_undersaturation_in_sea_water"));
+    if let Some(standard) = &standard {
         depth.insert(
             0,
             ("standard_name", AttributeValue::from(standard.as_str())),
         );
     }
     depth.extend(def.grid_attributes());
+    if with_uncertainty {
+        let mut uncertainty = vec![
+            (
+                "long_name",
+                AttributeValue::from(
+                    format!("standard uncertainty of the depth of the omega {name} = {threshold} horizon").as_str(),
+                ),
+            ),
+            ("units", AttributeValue::from("m")),
+            ("_FillValue", AttributeValue::Float(VALUE_FILL)),
+            ("missing_value", AttributeValue::Float(VALUE_FILL)),
+            ("ancillary_variables", AttributeValue::from(status_name.as_str())),
+            ("cell_measures", AttributeValue::from(CELL_MEASURES)),
+            ("comment", AttributeValue::from(depth_uncertainty_comment(name).as_str())),
+        ];
+        if let Some(standard) = &standard {
+            let modified = format!("{standard} standard_error");
+            uncertainty.insert(
+                0,
+                ("standard_name", AttributeValue::from(modified.as_str())),
+            );
+        }
+        uncertainty.extend(def.grid_attributes());
+        def.add::<f32>(file, &uncertainty_name, &dims, Some(&chunk), uncertainty)?;
+    }
     def.add::<f32>(
         file,
         &horizon_depth_name(mineral, threshold),
@@ -376,6 +418,12 @@ fn define_horizon(
 fn horizon_comment(name: &str, threshold: f64) -> String {
     format!(
         "Depth below the sea surface at which omega {name} first falls below {threshold} going down the water column, at each step's actual cell depths. Between the two level centres that bracket the crossing the depth is interpolated linearly in depth on ln(omega), which is exact for an exponential profile and does not depend on the threshold's scale. 0 m where the top wet cell is already below the threshold; missing where the water is saturated down to the sea floor, where omega is missing above any crossing, and on land. The status variable says which case each column is."
+    )
+}
+
+fn depth_uncertainty_comment(name: &str) -> String {
+    format!(
+        "First-order propagation of omega_{name}{UNCERTAINTY_SUFFIX} at the two level centres the depth was interpolated (or extrapolated) from, through the derivatives of the depth with respect to both omega values, the two taken as fully correlated (neighbouring levels share the constants' errors and mostly the inputs'). Between two level centres the depth moves the same way with both omega values, so this is the larger of the possible values; extrapolated into the bottom cell the two partly cancel. The uncertainty of the level depths is not included. Missing where the depth is missing or does not depend on omega locally (0 m where the top wet cell is already below the threshold)."
     )
 }
 
@@ -420,6 +468,17 @@ pub(crate) fn write_columns(
             &horizontal,
             result.step,
         )?;
+        if !field.uncertainty_m.is_empty() {
+            let name = depth_uncertainty_name(mineral, threshold);
+            put(
+                file,
+                path,
+                &name,
+                &field.uncertainty_m,
+                &horizontal,
+                result.step,
+            )?;
+        }
     }
     if let Some(thickness) = &result.thickness {
         let mut extents = layout.extents(result.step, rows.clone(), shape);

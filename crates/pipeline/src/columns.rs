@@ -10,11 +10,14 @@ use crate::cells::{KeepOmega, SlabResult, VALUE_FILL};
 use crate::flags::FLAG_FILL;
 use crate::geometry::ColumnGeometry;
 use crate::horizon_choice::HorizonPlan;
+use crate::indicators::OutputField;
 use crate::PipelineError;
 use acidscape_analysis::column::{ColumnCells, SlabShape};
 use acidscape_analysis::extent::{CorrosiveExtent, ExtentColumn, Mineral, MineralColumn};
 use acidscape_analysis::geometry::clipped_thickness;
-use acidscape_analysis::horizons::{sea_floor_depth, Horizon, HorizonStatus, WetColumn};
+use acidscape_analysis::horizons::{
+    sea_floor_depth, Horizon, HorizonSensitivity, HorizonStatus, WetColumn,
+};
 use acidscape_gridio::SlabInputs;
 use rayon::prelude::*;
 use std::cell::RefCell;
@@ -27,6 +30,8 @@ pub struct ColumnWork {
     horizons: Vec<(Mineral, f64)>,
     /// Per mineral (aragonite, calcite): its place among the gathered fields, if computed.
     fields: [Option<usize>; 2],
+    /// Per mineral: the place of its Ω standard-uncertainty field among the solved fields.
+    omega_uncertainty: [Option<usize>; 2],
     geometry: ColumnGeometry,
 }
 
@@ -37,6 +42,9 @@ pub struct HorizonField {
     pub depth_m: Vec<f32>,
     /// [`HorizonStatus`] flag value per column.
     pub status: Vec<i8>,
+    /// Standard uncertainty of the depth [m] ([`VALUE_FILL`] where it has none); empty unless
+    /// the job propagates uncertainties.
+    pub uncertainty_m: Vec<f32>,
 }
 
 /// What the column analysis gives for one slab.
@@ -76,6 +84,8 @@ struct Scratch {
     volumes: Vec<f64>,
     missing: Vec<f64>,
     horizon_m: [Vec<Option<f64>>; 2],
+    /// Each horizon's sensitivity to the Ω it was found from, in the plan's order.
+    sensitivities: Vec<Option<HorizonSensitivity>>,
 }
 
 impl Scratch {
@@ -140,6 +150,7 @@ impl Scratch {
 /// One grid row's results.
 struct RowResult {
     depth: Vec<f32>,
+    depth_uncertainty: Vec<f32>,
     status: Vec<i8>,
     thickness: Vec<f32>,
     sea_floor: Vec<f32>,
@@ -163,9 +174,24 @@ impl ColumnWork {
         ColumnWork {
             horizons: plan.horizons(),
             fields: [field(Mineral::Aragonite), field(Mineral::Calcite)],
+            omega_uncertainty: [None, None],
             plan,
             geometry,
         }
+    }
+
+    /// Also propagates to the horizon depths the Ω uncertainties among `fields` (the job's
+    /// output fields, in the order the solve fills them).
+    pub fn with_depth_uncertainty(mut self, fields: &[OutputField]) -> ColumnWork {
+        let place =
+            |name: &str| (fields.iter()).position(|f| f.combined_uncertainty_of() == Some(name));
+        self.omega_uncertainty = [place("omega_aragonite"), place("omega_calcite")];
+        self
+    }
+
+    /// Whether the horizon depths get standard uncertainties.
+    pub fn has_depth_uncertainty(&self) -> bool {
+        self.omega_uncertainty.iter().any(Option::is_some)
     }
 
     pub fn plan(&self) -> &HorizonPlan {
@@ -239,6 +265,10 @@ impl ColumnWork {
                 field
                     .status
                     .extend_from_slice(&row.status[h * cols..(h + 1) * cols]);
+                if !row.depth_uncertainty.is_empty() {
+                    (field.uncertainty_m)
+                        .extend_from_slice(&row.depth_uncertainty[h * cols..(h + 1) * cols]);
+                }
             }
             if let Some(all) = &mut thickness {
                 for k in 0..levels {
@@ -270,6 +300,11 @@ impl ColumnWork {
         let SlabShape { levels, cols, .. } = view.shape;
         let mut row = RowResult {
             depth: vec![VALUE_FILL; self.horizons.len() * cols],
+            depth_uncertainty: if self.has_depth_uncertainty() {
+                vec![VALUE_FILL; self.horizons.len() * cols]
+            } else {
+                Vec::new()
+            },
             status: vec![HorizonStatus::Land.flag_value(); self.horizons.len() * cols],
             thickness: if view.write_thickness {
                 vec![VALUE_FILL; levels * cols]
@@ -326,6 +361,9 @@ impl ColumnWork {
         }
         let floor = sea_floor_depth(known_floor.map(|d| d + eta), deepest);
         let found = self.horizons_of_column(s, floor, i, row)?;
+        if !row.depth_uncertainty.is_empty() {
+            self.depth_uncertainties(view, column, s, i, row);
+        }
         if known && found {
             self.add_to_extent(view, grid_column, s, &mut row.extent)?;
             if view.write_thickness {
@@ -358,6 +396,7 @@ impl ColumnWork {
         for list in &mut s.horizon_m {
             list.clear();
         }
+        s.sensitivities.clear();
         for (h, &(mineral, threshold)) in self.horizons.iter().enumerate() {
             let found = match &wet {
                 Ok(wet) => {
@@ -374,8 +413,44 @@ impl ColumnWork {
             row.status[h * cols + i] = found.status.flag_value();
             row.depth[h * cols + i] = found.depth_m.map_or(VALUE_FILL, |d| d as f32);
             s.horizon_m[mineral_index(mineral)].push(found.depth_m);
+            s.sensitivities.push(found.sensitivity);
         }
         Ok(wet.is_ok())
+    }
+
+    /// The standard uncertainty of each horizon depth of column `i` into `row`: from the Ω
+    /// uncertainties of the two levels the depth was found between, through the depth's
+    /// derivatives ([`acidscape_analysis::horizons::HorizonSensitivity`]), the two taken as
+    /// fully correlated (neighbouring levels share the constants' errors and, mostly, the
+    /// inputs'). None where the depth has no sensitivity (0 m at the surface, no depth).
+    fn depth_uncertainties(
+        &self,
+        view: &SlabView,
+        column: usize,
+        s: &Scratch,
+        i: usize,
+        row: &mut RowResult,
+    ) {
+        let cols = row.status.len() / self.horizons.len();
+        let found = self.horizons.iter().zip(&s.sensitivities).enumerate();
+        for (h, (&(mineral, _), sensitivity)) in found {
+            let (Some(u_field), Some(sensitivity)) =
+                (self.omega_uncertainty[mineral_index(mineral)], sensitivity)
+            else {
+                continue;
+            };
+            let u = |gathered: usize| {
+                let k = s.cells.levels[gathered];
+                let value = view.solved.fields[u_field][view.shape.index(k, column)];
+                (value != VALUE_FILL).then_some(f64::from(value))
+            };
+            if let (Some(upper), Some(lower)) =
+                (u(sensitivity.upper_level), u(sensitivity.lower_level))
+            {
+                let depth = sensitivity.depth_uncertainty_m(upper, lower, 1.0);
+                row.depth_uncertainty[h * cols + i] = depth as f32;
+            }
+        }
     }
 
     /// Adds one column (gathered in `s`, with its thicknesses and horizons) to the extent.

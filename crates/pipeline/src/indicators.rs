@@ -4,10 +4,16 @@
 //! with the compliance-checker package). The table has no name for bicarbonate, CO2*, the
 //! saturation states or the Revelle factor: those get a plain name with long_name and units.
 
+mod uncertainty;
+
 use crate::PipelineError;
 use acidscape_chem::Solution;
+use std::borrow::Cow;
 use std::fmt;
 use std::str::FromStr;
+pub use uncertainty::{
+    with_uncertainty_fields, CellUncertainty, UncertaintyPart, UNCERTAINTY_SUFFIX,
+};
 
 /// One quantity the user can ask for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -295,11 +301,13 @@ enum Species {
 /// One output variable: its name, CF labels and how its value comes from a solution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct OutputField {
-    pub name: &'static str,
-    pub long_name: &'static str,
-    pub standard_name: Option<&'static str>,
+    pub name: Cow<'static, str>,
+    pub long_name: Cow<'static, str>,
+    pub standard_name: Option<Cow<'static, str>>,
     pub units: &'static str,
     pub comment: &'static str,
+    /// For a field of an indicator's uncertainty: which part, of which indicator.
+    pub uncertainty: Option<UncertaintyPart>,
     quantity: Quantity,
 }
 
@@ -321,27 +329,45 @@ impl OutputField {
             PhScale::Free => ("ph_free_scale", "pH on the free scale, in situ", None),
         };
         OutputField {
-            name,
-            long_name,
-            standard_name,
+            name: name.into(),
+            long_name: long_name.into(),
+            standard_name: standard_name.map(Cow::Borrowed),
             units: "1",
             comment: "At in-situ temperature and pressure.",
+            uncertainty: None,
             quantity: Quantity::Ph(scale),
         }
     }
 
     fn new(indicator: Indicator, unit: ConcentrationUnit) -> OutputField {
         let per_volume = unit == ConcentrationUnit::MolPerCubicMetre;
-        let concentration =
-            |name, long_name, standard_name: Option<&'static str>, species| OutputField {
-                name,
-                long_name,
-                // CF mole_concentration names are per volume; no per-mass names exist for these.
-                standard_name: if per_volume { standard_name } else { None },
-                units: unit.udunits(),
-                comment: "",
-                quantity: Quantity::Concentration(species, unit),
-            };
+        let concentration = |name: &'static str,
+                             long_name: &'static str,
+                             standard_name: Option<&'static str>,
+                             species| OutputField {
+            name: name.into(),
+            long_name: long_name.into(),
+            // CF mole_concentration names are per volume; no per-mass names exist for these.
+            standard_name: standard_name.filter(|_| per_volume).map(Cow::Borrowed),
+            units: unit.udunits(),
+            comment: "",
+            uncertainty: None,
+            quantity: Quantity::Concentration(species, unit),
+        };
+        let plain = |name: &'static str,
+                     long_name: &'static str,
+                     standard_name: Option<&'static str>,
+                     units,
+                     comment,
+                     quantity| OutputField {
+            name: name.into(),
+            long_name: long_name.into(),
+            standard_name: standard_name.map(Cow::Borrowed),
+            units,
+            comment,
+            uncertainty: None,
+            quantity,
+        };
         match indicator {
             Indicator::Ph => OutputField::ph(PhScale::Total),
             Indicator::Carbonate => concentration(
@@ -362,46 +388,46 @@ impl OutputField {
                 None,
                 Species::Co2Star,
             ),
-            Indicator::Pco2 => OutputField {
-                name: "pco2",
-                long_name: "Partial pressure of CO2 in sea water",
-                standard_name: Some("partial_pressure_of_carbon_dioxide_in_sea_water"),
-                units: "uatm",
-                comment: PCO2_NOTE,
-                quantity: Quantity::Pco2,
-            },
-            Indicator::Fco2 => OutputField {
-                name: "fco2",
-                long_name: "Fugacity of CO2 in sea water",
-                standard_name: Some("fugacity_of_carbon_dioxide_in_sea_water"),
-                units: "uatm",
-                comment: PCO2_NOTE,
-                quantity: Quantity::Fco2,
-            },
-            Indicator::OmegaAragonite => OutputField {
-                name: "omega_aragonite",
-                long_name: "Saturation state of sea water with respect to aragonite",
-                standard_name: None,
-                units: "1",
-                comment: "[Ca++][CO3--] / Ksp(aragonite) at in-situ temperature and pressure.",
-                quantity: Quantity::OmegaAragonite,
-            },
-            Indicator::OmegaCalcite => OutputField {
-                name: "omega_calcite",
-                long_name: "Saturation state of sea water with respect to calcite",
-                standard_name: None,
-                units: "1",
-                comment: "[Ca++][CO3--] / Ksp(calcite) at in-situ temperature and pressure.",
-                quantity: Quantity::OmegaCalcite,
-            },
-            Indicator::RevelleFactor => OutputField {
-                name: "revelle_factor",
-                long_name: "Revelle factor (d ln pCO2 / d ln DIC at constant alkalinity)",
-                standard_name: None,
-                units: "1",
-                comment: "",
-                quantity: Quantity::RevelleFactor,
-            },
+            Indicator::Pco2 => plain(
+                "pco2",
+                "Partial pressure of CO2 in sea water",
+                Some("partial_pressure_of_carbon_dioxide_in_sea_water"),
+                "uatm",
+                PCO2_NOTE,
+                Quantity::Pco2,
+            ),
+            Indicator::Fco2 => plain(
+                "fco2",
+                "Fugacity of CO2 in sea water",
+                Some("fugacity_of_carbon_dioxide_in_sea_water"),
+                "uatm",
+                PCO2_NOTE,
+                Quantity::Fco2,
+            ),
+            Indicator::OmegaAragonite => plain(
+                "omega_aragonite",
+                "Saturation state of sea water with respect to aragonite",
+                None,
+                "1",
+                "[Ca++][CO3--] / Ksp(aragonite) at in-situ temperature and pressure.",
+                Quantity::OmegaAragonite,
+            ),
+            Indicator::OmegaCalcite => plain(
+                "omega_calcite",
+                "Saturation state of sea water with respect to calcite",
+                None,
+                "1",
+                "[Ca++][CO3--] / Ksp(calcite) at in-situ temperature and pressure.",
+                Quantity::OmegaCalcite,
+            ),
+            Indicator::RevelleFactor => plain(
+                "revelle_factor",
+                "Revelle factor (d ln pCO2 / d ln DIC at constant alkalinity)",
+                None,
+                "1",
+                "",
+                Quantity::RevelleFactor,
+            ),
         }
     }
 
@@ -474,7 +500,12 @@ mod tests {
             ph_scales: vec![PhScale::Total, PhScale::Free],
             concentration_unit: ConcentrationUnit::default(),
         };
-        let names: Vec<_> = choice.fields().unwrap().iter().map(|f| f.name).collect();
+        let names: Vec<_> = choice
+            .fields()
+            .unwrap()
+            .iter()
+            .map(|f| f.name.clone())
+            .collect();
         assert_eq!(names, vec!["ph", "ph_free_scale"]);
     }
 }

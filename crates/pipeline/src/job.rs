@@ -2,13 +2,14 @@
 //! (see [`crate::stream`]), durable progress after every time step, and the final rename.
 //! Any failure once the partial output holds finished work leaves it resumable.
 
+use crate::cells_uncertainty::UncertaintyRequest;
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::extent_table::{write_extent_table, ExtentOverview};
 use crate::flags::{Flag, FlagCounts};
 use crate::geometry::ColumnGeometry;
 use crate::horizon_choice::{HorizonChoice, HorizonPlan};
-use crate::indicators::{IndicatorChoice, OutputField};
+use crate::indicators::{with_uncertainty_fields, IndicatorChoice, OutputField};
 use crate::leftovers::{check_leftovers, remove_leftovers, Leftovers};
 use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
@@ -64,6 +65,8 @@ pub struct JobOptions {
     pub max_rows_per_slab: Option<usize>,
     /// Saturation horizons and the extent of corrosive water.
     pub horizons: HorizonChoice,
+    /// Standard uncertainties to propagate: a companion field per indicator when set.
+    pub uncertainty: Option<UncertaintyRequest>,
     /// Set from outside (signal handlers) to stop after the current slab.
     pub stop: StopRequest,
 }
@@ -103,7 +106,11 @@ pub struct JobPlan {
 
 /// Plans a job without running it: checks options and output path, and splits the work.
 pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineError> {
-    let fields = options.indicators.fields()?;
+    if let Some(request) = &options.uncertainty {
+        request.check()?;
+    }
+    let fields =
+        with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.as_ref());
     let horizons = options.horizons.plan(&options.indicators)?;
     let columns = horizons
         .as_ref()
@@ -194,6 +201,9 @@ fn job_description(
     job.push(format!("constants {}", options.constants.describe()));
     job.push(options.indicators.describe());
     job.push(options.horizons.describe());
+    if let Some(request) = &options.uncertainty {
+        job.push(format!("uncertainty {}", request.describe()));
+    }
     if let Some(work) = work {
         let g = work.geometry();
         job.push(format!("cell areas: {}", g.area_source));
@@ -371,7 +381,8 @@ fn column_work(run: &Run, job: &JobPlan) -> Result<Option<ColumnWork>, PipelineE
         return Ok(None);
     };
     let geometry = ColumnGeometry::of(run)?;
-    Ok(Some(ColumnWork::new(plan.clone(), geometry)))
+    let work = ColumnWork::new(plan.clone(), geometry).with_depth_uncertainty(&job.fields);
+    Ok(Some(work))
 }
 
 /// Once every step is written: the extent table (read back from the output), then the
@@ -445,6 +456,7 @@ fn create_partial(
             constants: options.constants,
             indicators: options.indicators.clone(),
             deflate_level: options.deflate_level,
+            uncertainty: options.uncertainty.clone(),
         };
         let layout = define_output(
             &mut file,

@@ -7,6 +7,7 @@
 //! so only reading and writing wait on each other. See [`plan`] for the memory model.
 
 pub mod cells;
+pub mod cells_uncertainty;
 pub mod column_output;
 pub mod columns;
 mod error;
@@ -26,12 +27,14 @@ pub mod stop;
 mod stream;
 
 pub use cells::VALUE_FILL;
+pub use cells_uncertainty::{source_key, UncertaintyAmount, UncertaintyRequest, GRID_INPUTS};
 pub use error::PipelineError;
 pub use extent_table::{extent_table_path, ExtentOverview};
 pub use flags::{Flag, FlagBit, FlagCounts, FLAG_BITS, FLAG_FILL};
 pub use horizon_choice::{HorizonChoice, HorizonPlan};
 pub use indicators::{
-    parse_list, ConcentrationUnit, Indicator, IndicatorChoice, OutputField, PhScale,
+    parse_list, with_uncertainty_fields, ConcentrationUnit, Indicator, IndicatorChoice,
+    OutputField, PhScale, UncertaintyPart, UNCERTAINTY_SUFFIX,
 };
 pub use job::{plan_job, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Progress};
 pub use memory::{format_bytes, parse_memory_size};

@@ -1,13 +1,15 @@
 //! The CF NetCDF-4 output: variables, attributes, chunking, and writing slabs.
 
 use crate::cells::{SlabResult, VALUE_FILL};
+use crate::cells_uncertainty::source_key;
+use crate::cells_uncertainty::UncertaintyRequest;
 use crate::column_output::{
     define_cell_area, define_column_outputs, ColumnDefinition, CELL_MEASURES,
 };
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::flags::{flag_masks, flag_meanings, Flag, ALL_FLAG_BITS, FLAG_BITS, FLAG_FILL};
-use crate::indicators::{IndicatorChoice, OutputField};
+use crate::indicators::{IndicatorChoice, OutputField, UncertaintyPart, UNCERTAINTY_SUFFIX};
 use crate::plan::SlabPlan;
 use crate::PipelineError;
 use acidscape_chem::ConstantChoice;
@@ -111,6 +113,8 @@ pub struct OutputMetadata {
     pub indicators: IndicatorChoice,
     /// Deflate level 0-9 (0: no compression).
     pub deflate_level: i32,
+    /// The uncertainties propagated to the companion fields, if any.
+    pub uncertainty: Option<UncertaintyRequest>,
 }
 
 /// Defines the whole output in `file`: coordinates (copied from the run), the indicator
@@ -153,8 +157,9 @@ pub fn define_output(
         define_cell_area(file, &column_definition, work)?;
     }
 
+    let uncertainty_note = meta.uncertainty.as_ref().map(uncertainty_comment);
     for field in fields {
-        let mut var = nc(file.add_variable::<f32>(field.name, &dims), path, || {
+        let mut var = nc(file.add_variable::<f32>(&field.name, &dims), path, || {
             format!("defining variable '{}'", field.name)
         })?;
         let what = || format!("setting storage of variable '{}'", field.name);
@@ -167,10 +172,23 @@ pub fn define_output(
             ("long_name", field.long_name.to_string()),
             ("units", field.units.to_string()),
         ];
-        if let Some(standard_name) = field.standard_name {
+        if let Some(standard_name) = &field.standard_name {
             attributes.push(("standard_name", standard_name.to_string()));
         }
+        let note = match &field.uncertainty {
+            Some(UncertaintyPart::Combined { of }) => format!(
+                "Standard uncertainty of {of}. {}",
+                uncertainty_note.as_deref().unwrap_or_default()
+            ),
+            Some(UncertaintyPart::Contribution { of, source }) => format!(
+                "Signed contribution of {} to the standard uncertainty of {of}: the sensitivity of {of} to it times its standard uncertainty; the root sum of squares of the contributions is {of}{UNCERTAINTY_SUFFIX}. {}",
+                source_key(*source),
+                uncertainty_note.as_deref().unwrap_or_default()
+            ),
+            None => String::new(),
+        };
         let comment = [
+            note.as_str(),
             field.comment,
             "Computed from alkalinity and DIC.",
             &constants_note,
@@ -181,7 +199,7 @@ pub fn define_output(
         .collect::<Vec<_>>()
         .join(" ");
         attributes.push(("comment", comment));
-        attributes.push(("ancillary_variables", FLAG_VARIABLE.to_string()));
+        attributes.push(("ancillary_variables", ancillary_variables(field, fields)));
         if let Some(coordinates) = &axes.coordinates_attr {
             attributes.push(("coordinates", coordinates.clone()));
         }
@@ -215,6 +233,32 @@ pub fn define_output(
         })?;
     }
     Ok(layout)
+}
+
+/// The flag, and (CF 1.10 section 3.4, ancillary data) for an indicator its
+/// standard-uncertainty field, for that field the contributions to it, when the output has them.
+fn ancillary_variables(field: &OutputField, fields: &[OutputField]) -> String {
+    let belongs = |f: &OutputField| match (&field.uncertainty, &f.uncertainty) {
+        (None, Some(UncertaintyPart::Combined { of })) => *of == field.name,
+        (
+            Some(UncertaintyPart::Combined { of }),
+            Some(UncertaintyPart::Contribution { of: to, .. }),
+        ) => of == to,
+        _ => false,
+    };
+    let mut names = vec![FLAG_VARIABLE];
+    names.extend(fields.iter().filter(|f| belongs(f)).map(|f| &*f.name));
+    names.join(" ")
+}
+
+/// How the standard uncertainties were obtained: method, sources and values.
+pub(crate) fn uncertainty_comment(request: &UncertaintyRequest) -> String {
+    format!(
+        "First-order propagation of independent standard uncertainties (Orr, Epitalon, Dickson \
+         & Gattuso 2018, Marine Chemistry 207), derivatives by implicit differentiation of the \
+         equations solved; the run's density is taken as exact. Sources: {}.",
+        request.describe()
+    )
 }
 
 /// The `cell_methods` the run's gridded variables share (e.g. "area: mean where sea
@@ -374,7 +418,7 @@ pub fn write_slab(
     let extents = layout.extents(result.step, result.rows.clone(), result.shape);
     for (field, values) in fields.iter().zip(&result.fields) {
         let mut var = file
-            .variable_mut(field.name)
+            .variable_mut(&field.name)
             .ok_or_else(|| PipelineError::Output {
                 path: path.to_path_buf(),
                 message: format!("variable '{}' is missing", field.name),

@@ -59,7 +59,15 @@ fn solve(
     let inputs = run.convert_slab(raw);
     let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
     let buffers = std::mem::take(spare);
-    let mut cells = solve_slab(&inputs, fields, &options.constants, keep, buffers);
+    let uncertainty = options.uncertainty.as_ref();
+    let mut cells = solve_slab(
+        &inputs,
+        fields,
+        &options.constants,
+        keep,
+        buffers,
+        uncertainty,
+    );
     let solved = t.elapsed();
     let columns = work.map(|w| w.analyse(&inputs, &cells)).transpose()?;
     // Kept for the next slab's states (no allocation, no zeroing).

@@ -81,7 +81,7 @@ fn output_equals_the_solver_and_flags_say_why() {
     let bits = declared_bits(&output);
     let cells = LEVELS * ROWS * COLS;
     assert_eq!(flags.len(), 2 * cells);
-    let stored: Vec<Vec<f32>> = fields.iter().map(|f| read_f32(&output, f.name)).collect();
+    let stored: Vec<Vec<f32>> = fields.iter().map(|f| read_f32(&output, &f.name)).collect();
     let mut seen = BTreeMap::<String, u64>::new();
     for step in 0..2 {
         let slab = run.read_slab(step, 0..ROWS).unwrap();

@@ -10,6 +10,7 @@ use acidscape_chem::{
     InputUncertainties, Output, PerSource, Solution, SolvedSample, Source, Uncertainties,
 };
 use acidscape_gridio::{seawater, units};
+use acidscape_pipeline::{source_key, UncertaintyAmount as Amount};
 use clap::Args;
 use std::collections::BTreeMap;
 
@@ -62,29 +63,6 @@ const PROPAGATED: [(Output, &str); 13] = [
     (Output::RevelleFactor, "revelle_factor"),
 ];
 
-/// The key users type for each source, and the input role it belongs to.
-fn source_key(source: Source) -> &'static str {
-    match source {
-        Source::Alkalinity => "alkalinity",
-        Source::Dic => "dic",
-        Source::Ph => "ph",
-        Source::Pco2 => "pco2",
-        Source::Temperature => "temperature",
-        Source::Salinity => "salinity",
-        Source::Pressure => "pressure",
-        Source::Phosphate => "phosphate",
-        Source::Silicate => "silicate",
-        Source::Pk0 => "pk0",
-        Source::Pk1 => "pk1",
-        Source::Pk2 => "pk2",
-        Source::Pkb => "pkb",
-        Source::Pkw => "pkw",
-        Source::PkspAragonite => "pksp_aragonite",
-        Source::PkspCalcite => "pksp_calcite",
-        Source::TotalBoron => "total_boron",
-    }
-}
-
 /// The source an input role is, if it can carry an uncertainty.
 fn source_of(role: Role) -> Option<Source> {
     Some(match role {
@@ -101,16 +79,9 @@ fn source_of(role: Role) -> Option<Source> {
     })
 }
 
-/// A standard uncertainty as given: in the units of its column (or of the chemistry), or
-/// relative to the value.
-#[derive(Clone, Copy, Debug, PartialEq)]
-enum Amount {
-    Absolute(f64),
-    Relative(f64),
-}
-
-/// Parses `2`, `0.01` or `5%`; `what` names it in messages.
-fn parse_amount(text: &str, what: &str) -> Result<Amount, String> {
+/// Parses `2`, `0.01` or `5%` (an uncertainty in the units of its column or of the chemistry,
+/// or relative to the value); `what` names it in messages.
+pub(crate) fn parse_amount(text: &str, what: &str) -> Result<Amount, String> {
     let text = text.trim();
     let (number, relative) = match text.strip_suffix('%') {
         Some(number) => (number.trim(), true),
@@ -196,7 +167,8 @@ impl Propagation {
             };
             inputs.entry(role).or_insert_with(|| blank(role)).column = Some((index, units));
         }
-        let constants = constants(options)?;
+        let constants =
+            constant_uncertainties(&options.constants, options.no_constant_uncertainty)?;
         let asked = !inputs.is_empty()
             || options.with_uncertainty
             || options.uncertainty_breakdown
@@ -402,10 +374,13 @@ fn pair_name(pair: PairChoice) -> String {
     format!("{}-{}", a.key(), b.key())
 }
 
-/// The constants' uncertainties: Orr et al. 2018, overridden, or none.
-fn constants(options: &UncertaintyOptions) -> Result<ConstantUncertainties, String> {
-    if options.no_constant_uncertainty {
-        if !options.constants.is_empty() {
+/// The constants' uncertainties: Orr et al. 2018, overridden (`KEY=U` texts), or none.
+pub(crate) fn constant_uncertainties(
+    overrides: &[String],
+    leave_out: bool,
+) -> Result<ConstantUncertainties, String> {
+    if leave_out {
+        if !overrides.is_empty() {
             return Err(
                 "--no-constant-uncertainty and --constant-uncertainty contradict each other".into(),
             );
@@ -413,7 +388,7 @@ fn constants(options: &UncertaintyOptions) -> Result<ConstantUncertainties, Stri
         return Ok(ConstantUncertainties::NONE);
     }
     let mut c = ConstantUncertainties::ORR_2018;
-    for text in &options.constants {
+    for text in overrides {
         let expected =
             "expected one of pk0, pk1, pk2, pkb, pkw, pksp_aragonite, pksp_calcite, total_boron";
         let (key, value) = text
@@ -462,7 +437,7 @@ fn in_chemistry_units(
     row: &RowInputs,
 ) -> Result<f64, String> {
     let value = match amount {
-        Amount::Relative(fraction) => return Ok(fraction * value_of(role, row)),
+        Amount::Relative(_) => return Ok(amount.of(value_of(role, row))),
         Amount::Absolute(value) => value,
     };
     let conversion = match units {

@@ -35,6 +35,7 @@ pub fn options(output: &Path, indicators: IndicatorChoice) -> JobOptions {
         stop_after_steps: None,
         max_rows_per_slab: None,
         horizons: HorizonChoice::default(),
+        uncertainty: None,
         stop: StopRequest::new(),
     }
 }
