@@ -154,3 +154,74 @@ fn runs_on_other_grids_are_refused_before_anything_is_written() {
         "{help}"
     );
 }
+
+#[test]
+fn uncertainty_fields_are_drawn_but_not_compared_as_indicators() {
+    let _serial = common::one_at_a_time();
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("moderate.nc");
+    let result = acidscape(&[
+        "compute",
+        "sample-grids/century/pathway-moderate/*.nc",
+        "--indicators",
+        "ph,omega-aragonite",
+        "--uncertainty",
+        "dic=2",
+        "--uncertainty-breakdown",
+        "-o",
+        run.to_str().unwrap(),
+    ]);
+    assert!(result.status.success(), "{}", text(&result).1);
+    let written = IndicatorFile::open(&run).unwrap();
+    assert!(written
+        .variable("horizon_depth_aragonite_uncertainty")
+        .is_ok());
+    assert!(written.variable("ph_uncertainty_from_dic").is_ok());
+
+    // Every field of the run by default: the indicators and horizon depths, never their
+    // uncertainties (no window mean of an uncertainty, no horizon rule applied to one).
+    let out = dir.path().join("compare.nc");
+    let result = acidscape(&[
+        "compare",
+        &format!("moderate={}", run.display()),
+        "--window",
+        "reference=2015-2034,late=2081-2100",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert!(result.status.success(), "{}", text(&result).1);
+    let compared = IndicatorFile::open(&out).unwrap();
+    let names: Vec<&str> = compared
+        .variables()
+        .iter()
+        .map(|v| v.name.as_str())
+        .collect();
+    assert!(names.contains(&"ph_moderate"), "{names:?}");
+    assert!(
+        names.contains(&"horizon_depth_aragonite_moderate"),
+        "{names:?}"
+    );
+    assert!(
+        !names.iter().any(|n| n.contains("uncertainty")),
+        "{names:?}"
+    );
+
+    // An uncertainty map can still be drawn from the compute output.
+    let png = dir.path().join("u.png");
+    let result = acidscape(&[
+        "draw",
+        "map",
+        run.to_str().unwrap(),
+        "ph_uncertainty",
+        "--year",
+        "2050",
+        "--level",
+        "surface",
+        "--dpi",
+        "50",
+        "-o",
+        png.to_str().unwrap(),
+    ]);
+    assert!(result.status.success(), "{}", text(&result).1);
+    assert!(png.is_file());
+}

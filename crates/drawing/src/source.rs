@@ -119,7 +119,10 @@ impl Source {
 }
 
 fn drawable(info: &FieldInfo) -> bool {
-    matches!(info.kind, FieldKind::Field | FieldKind::Geometry) && info.on_grid
+    matches!(
+        info.kind,
+        FieldKind::Field | FieldKind::Geometry | FieldKind::Uncertainty
+    ) && info.on_grid
 }
 
 /// "reference (2015-2034), late (2081-2100)".

@@ -48,6 +48,9 @@ pub enum FieldKind {
     Flag,
     /// Cell geometry written by `compute`: `cell_area`, `cell_thickness`, `sea_floor_depth`.
     Geometry,
+    /// The standard uncertainty of another field, or one source's contribution to it
+    /// (`ph_uncertainty`, `ph_uncertainty_from_dic`, standard name modifier `standard_error`).
+    Uncertainty,
     /// A series with a time dimension and no horizontal ones (e.g. corrosive volumes).
     TimeSeries,
     /// Anything else (scalars, tables on other dimensions).
@@ -263,6 +266,14 @@ fn auxiliary_names(file: &InputFile) -> BTreeSet<String> {
     names
 }
 
+/// Whether a variable holds the standard uncertainty of another (as `compute` names them, or
+/// with the CF standard-name modifier `standard_error`).
+fn is_uncertainty(name: &str, var: &netcdf::Variable) -> bool {
+    name.ends_with("_uncertainty")
+        || name.contains("_uncertainty_from_")
+        || attr_text(var, "standard_name").is_some_and(|s| s.ends_with(" standard_error"))
+}
+
 fn catalogue_fields(file: &InputFile) -> Vec<FieldInfo> {
     let auxiliary = auxiliary_names(file);
     let mut fields = Vec::new();
@@ -283,6 +294,8 @@ fn catalogue_fields(file: &InputFile) -> Vec<FieldInfo> {
             FieldKind::Geometry
         } else if is_flag {
             FieldKind::Flag
+        } else if classified && on_grid && is_uncertainty(&name, &var) {
+            FieldKind::Uncertainty
         } else if classified && on_grid {
             FieldKind::Field
         } else if classified && has(Axis::T) && axes.len() == 1 {

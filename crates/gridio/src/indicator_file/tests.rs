@@ -178,6 +178,24 @@ fn rectilinear(path: &std::path::Path, ours: bool) {
         4,
         &[("units", "m"), ("positive", "down")],
     );
+    let uncertainty = [
+        ("units", "1"),
+        (
+            "standard_name",
+            "sea_water_ph_reported_on_total_scale standard_error",
+        ),
+    ];
+    add_field(&mut f, "ph_uncertainty", &dims, 2, 3, 4, &uncertainty);
+    add_field(
+        &mut f,
+        "ph_uncertainty_from_dic",
+        &dims,
+        2,
+        3,
+        4,
+        &[("units", "1")],
+    );
+    add_field(&mut f, "ph_spread", &dims, 2, 3, 4, &uncertainty);
     let mut q = f.add_variable::<i16>("quality_flag", &dims).unwrap();
     q.set_fill_value(-1i16).unwrap();
     q.put_attribute("flag_masks", vec![1i16, 2]).unwrap();
@@ -219,6 +237,10 @@ fn reads_a_rectilinear_output() {
             ("omega_aragonite", FieldKind::Field),
             ("ph", FieldKind::Field),
             ("horizon_depth_aragonite", FieldKind::Field),
+            // Uncertainties by name or by the standard_error modifier: not indicators.
+            ("ph_uncertainty", FieldKind::Uncertainty),
+            ("ph_uncertainty_from_dic", FieldKind::Uncertainty),
+            ("ph_spread", FieldKind::Uncertainty),
             ("quality_flag", FieldKind::Flag),
             ("wet_volume", FieldKind::TimeSeries),
             ("cell_area", FieldKind::Geometry),
