@@ -51,9 +51,10 @@ impl Deal {
         self.own().chain(self.repeat())
     }
 
-    /// Steps finished by the whole job once round `round` (0-based) is written.
-    pub fn steps_after_round(&self, round: usize) -> usize {
-        (self.first + (round + 1) * self.ranks).min(self.steps)
+    /// The steps written in round `round` (0-based), rank 0's first.
+    pub fn round_steps(&self, round: usize) -> Range<usize> {
+        let start = self.first + round * self.ranks;
+        start.min(self.steps)..(start + self.ranks).min(self.steps)
     }
 }
 
@@ -82,8 +83,13 @@ mod tests {
                     }
                     own.sort_unstable();
                     assert_eq!(own, (first..steps).collect::<Vec<_>>());
+                    for deal in &deals {
+                        for (round, step) in deal.steps().enumerate() {
+                            assert!(deal.round_steps(round).contains(&step), "{deal:?}");
+                        }
+                    }
                     if rounds > 0 {
-                        assert_eq!(deals[0].steps_after_round(rounds - 1), steps);
+                        assert_eq!(deals[0].round_steps(rounds - 1).end, steps);
                     }
                 }
             }
@@ -97,8 +103,8 @@ mod tests {
         assert_eq!(deal.steps().collect::<Vec<_>>(), [2, 3]);
         assert!(deal.is_repeat(3) && !deal.is_repeat(2));
         assert_eq!(Deal::new(0, 5, 1, 3).steps().collect::<Vec<_>>(), [1, 4]);
-        assert_eq!(deal.steps_after_round(0), 3);
-        assert_eq!(deal.steps_after_round(1), 5);
+        assert_eq!(deal.round_steps(0), 0..3);
+        assert_eq!(deal.round_steps(1), 3..5);
         // Fewer steps than ranks: the ranks without one repeat the first.
         assert_eq!(Deal::new(0, 1, 1, 2).steps().collect::<Vec<_>>(), [0]);
     }

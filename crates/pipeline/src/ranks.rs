@@ -15,12 +15,11 @@ use crate::job::{
     JobOptions, JobSummary, OutputSetup, Progress,
 };
 use crate::leftovers::remove_leftovers;
-use crate::output::{partial_path, progress_path, utc_timestamp};
+use crate::output::{partial_path, progress_path, utc_timestamp, OutputLayout};
 use crate::resume::{sync_parent, ProgressRecord};
 use crate::stream::{stream, Ledger, Sink};
 use crate::{extent_table::write_extent_table, PipelineError};
 use acidscape_gridio::Run;
-use mpi::collective::SystemOperation;
 use mpi::environment::Universe;
 use mpi::topology::SimpleCommunicator;
 use mpi::traits::*;
@@ -66,12 +65,11 @@ impl Ranks {
         self.world.abort(code)
     }
 
-    /// Element-wise sum over all ranks.
-    fn sum(&self, values: &[u64]) -> Vec<u64> {
-        let mut total = vec![0; values.len()];
-        self.world
-            .all_reduce_into(values, &mut total[..], SystemOperation::sum());
-        total
+    /// Every rank's `values`, in rank order, on every rank.
+    fn gather(&self, values: &[u64]) -> Vec<u64> {
+        let mut all = vec![0; values.len() * self.size()];
+        self.world.all_gather_into(values, &mut all[..]);
+        all
     }
 
     /// Rank 0's text, on every rank.
@@ -118,14 +116,6 @@ pub fn run_job_on_ranks(
         steps_total: plan.steps,
         resuming: false,
     };
-    let first = ranks.rank() == 0;
-    // Every rank has looked at the leftovers (in `plan_job`) before rank 0 removes them.
-    ranks.world.barrier();
-    if first {
-        check_writable(&partial, false)?;
-        remove_leftovers(&output)?;
-    }
-    ranks.world.barrier();
     let setup = OutputSetup {
         run,
         job: &job,
@@ -133,23 +123,8 @@ pub fn run_job_on_ranks(
         work: work.as_ref(),
         partial: &partial,
     };
-    let created = ranks.same_text(utc_timestamp());
-    let defined = setup.define(created, || {
-        let info = unsafe { mpi::ffi::RSMPI_INFO_NULL };
-        netcdf::create_par_with(
-            &partial,
-            ranks.world.as_raw(),
-            info,
-            netcdf::Options::NETCDF4,
-        )
-    });
-    let (mut file, layout) = defined.map_err(|e| setup_failure(&partial, e))?;
-    for variable in file.variables() {
-        nc(variable.access_collective(), &partial, || {
-            format!("setting collective access to '{}'", variable.name())
-        })?;
-    }
-    if first {
+    let (mut file, layout) = create_shared(&setup, ranks)?;
+    if ranks.rank() == 0 {
         record.save(&record_path).map_err(|e| ended.kept(e, 0))?;
     }
     if options.stop_after_steps == Some(0) {
@@ -157,7 +132,8 @@ pub fn run_job_on_ranks(
     }
 
     let deal = Deal::new(0, plan.steps, ranks.rank(), ranks.size());
-    progress.begin(plan.cells_per_step() * plan.steps as u64, 0);
+    // Rank 0 shows its own share: the ranks go round by round together.
+    progress.begin(plan.cells_per_step() * deal.rounds() as u64, 0);
     let slabs = deal
         .steps()
         .flat_map(|step| plan.slabs(step).take_while(move |(s, _)| *s == step));
@@ -175,29 +151,18 @@ pub fn run_job_on_ranks(
         layout: &layout,
         ledger: &mut ledger,
     };
-    let fields = &job.fields;
+    let (fields, work_ref) = (&job.fields, work.as_ref());
     let streamed = stream(
-        run,
-        plan,
-        fields,
-        options,
-        work.as_ref(),
-        None,
-        slabs,
-        sink,
-        progress,
+        run, plan, fields, options, work_ref, None, slabs, sink, progress,
     );
     progress.finish();
     let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
     nc(file.close(), &partial, || "closing the file".into())
         .map_err(|e| ended.kept(e, plan.steps))?;
     ranks.world.barrier();
-    let extent = if first {
+    let extent = if ranks.rank() == 0 {
         let placed = place_on_rank_zero(run, &job.output, work.as_ref(), &record, plan.steps);
-        let extent = placed.map_err(|e| ended.kept(e, plan.steps))?;
-        let _ = fs::remove_file(&record_path);
-        sync_parent(&output);
-        extent
+        placed.map_err(|e| ended.kept(e, plan.steps))?
     } else {
         None
     };
@@ -217,8 +182,42 @@ pub fn run_job_on_ranks(
     })
 }
 
+/// Creates and defines the output on every rank (parallel netCDF-4), after rank 0 removed
+/// what an earlier run left; every variable is written collectively.
+fn create_shared(
+    setup: &OutputSetup,
+    ranks: &Ranks,
+) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+    let (output, partial) = (&setup.options.output, setup.partial);
+    // Every rank has looked at the leftovers (in `plan_job`) before rank 0 removes them.
+    ranks.world.barrier();
+    if ranks.rank() == 0 {
+        check_writable(partial, false)?;
+        remove_leftovers(output)?;
+    }
+    ranks.world.barrier();
+    // The history attribute must be the same on every rank.
+    let created = ranks.same_text(utc_timestamp());
+    let defined = setup.define(created, || {
+        let info = unsafe { mpi::ffi::RSMPI_INFO_NULL };
+        netcdf::create_par_with(
+            partial,
+            ranks.world.as_raw(),
+            info,
+            netcdf::Options::NETCDF4,
+        )
+    });
+    let (file, layout) = defined.map_err(|e| setup_failure(partial, e))?;
+    for variable in file.variables() {
+        nc(variable.access_collective(), partial, || {
+            format!("setting collective access to '{}'", variable.name())
+        })?;
+    }
+    Ok((file, layout))
+}
+
 /// Rank 0, once every rank has closed the output: the extent table read back from it, then
-/// the output made durable and renamed into place.
+/// the output made durable and renamed into place, and the progress record removed.
 fn place_on_rank_zero(
     run: &Run,
     output: &Path,
@@ -244,6 +243,8 @@ fn place_on_rank_zero(
         None => None,
     };
     place_output(&partial, output)?;
+    let _ = fs::remove_file(progress_path(output));
+    sync_parent(output);
     Ok(extent)
 }
 
@@ -266,14 +267,20 @@ impl Ledger for RankLedger<'_> {
     }
 
     fn step_durable(&mut self, _step: usize) -> Result<usize, PipelineError> {
-        // Also the point where every rank has flushed the round (a collective call).
-        let round = self.ranks.sum(&std::mem::take(&mut self.pending).as_vec());
-        debug_assert_eq!(round.len(), FLAG_COUNT_FIELDS);
-        self.record.counts += FlagCounts::from_slice(&round)
-            .ok_or_else(|| PipelineError::Internal("flag counts of a round were lost".into()))?;
-        let done = self.deal.steps_after_round(self.round);
+        // Also the point where every rank has flushed the round (a collective call). Rank k
+        // wrote step k of the round: recorded step by step, as one process would.
+        let round = self
+            .ranks
+            .gather(&std::mem::take(&mut self.pending).as_vec());
+        let steps = self.deal.round_steps(self.round);
+        let done = steps.end;
+        for (step, counts) in steps.zip(round.chunks(FLAG_COUNT_FIELDS)) {
+            self.record.counts += FlagCounts::from_slice(counts).ok_or_else(|| {
+                PipelineError::Internal("the flag counts of a round were lost".into())
+            })?;
+            self.record.finish_steps(step + 1);
+        }
         self.round += 1;
-        self.record.finish_steps(done);
         if self.ranks.rank() == 0 {
             self.record.save(self.path)?;
         }
