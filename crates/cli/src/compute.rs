@@ -180,9 +180,11 @@ fn on_ranks(
         Err(error) if ranks.size() == 1 => Err(error.into()),
         Err(error) => {
             let (rank, size) = (ranks.rank(), ranks.size());
-            eprintln!("acidscape: error on rank {rank} of {size}: {error}");
-            eprintln!("acidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort)");
-            let _ = std::io::stderr().flush();
+            // One write, so that the ranks' messages do not interleave.
+            let text = format!(
+                "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort); --resume continues a partial output in one process (without mpirun)\n"
+            );
+            let _ = std::io::stderr().write_all(text.as_bytes());
             let code = error
                 .signal()
                 .and_then(|s| i32::try_from(128 + s).ok())
