@@ -4,9 +4,11 @@ use crate::grid_uncertainty::GridUncertaintyOptions;
 use crate::run_options::{ConstantOptions, RunOptions};
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
+#[cfg(not(feature = "mpi"))]
+use acidscape_pipeline::run_job;
 use acidscape_pipeline::{
-    format_bytes, parse_list, parse_memory_size, run_job, HorizonChoice, IndicatorChoice,
-    JobOptions, JobSummary, Progress, StopRequest, FLAG_BITS,
+    format_bytes, parse_list, parse_memory_size, HorizonChoice, IndicatorChoice, JobOptions,
+    JobSummary, Progress, StopRequest, FLAG_BITS,
 };
 use clap::Args;
 use indicatif::{ProgressBar, ProgressStyle};
@@ -141,15 +143,61 @@ pub fn run(args: &ComputeArgs) -> Result<(), Box<dyn Error>> {
         uncertainty,
         stop,
     };
-    let mut progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {
+    let progress: Box<dyn Progress> = if std::io::stderr().is_terminal() {
         Box::new(BarProgress::default())
     } else {
         Box::new(LogProgress::default())
     };
-    let summary = run_job(&run, &options, progress.as_mut())?;
-    // The output is complete; a closed stdout (e.g. piped into head) is not an error.
-    let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary, &constants));
-    Ok(())
+    #[cfg(feature = "mpi")]
+    return on_ranks(&run, &options, progress, &constants);
+    #[cfg(not(feature = "mpi"))]
+    {
+        let mut progress = progress;
+        let summary = run_job(&run, &options, progress.as_mut())?;
+        // The output is complete; a closed stdout (e.g. piped into head) is not an error.
+        let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary, &constants));
+        Ok(())
+    }
+}
+
+/// The job shared by the ranks of an MPI job (one rank: the single-process job). Rank 0
+/// reports; a rank that fails ends every rank, as the others would wait for it forever.
+#[cfg(feature = "mpi")]
+fn on_ranks(
+    run: &Run,
+    options: &JobOptions,
+    progress: Box<dyn Progress>,
+    constants: &ConstantChoice,
+) -> Result<(), Box<dyn Error>> {
+    use acidscape_pipeline::{run_job_on_ranks, NoProgress, Ranks};
+    let ranks = Ranks::init()?;
+    let mut progress = if ranks.rank() == 0 {
+        progress
+    } else {
+        Box::new(NoProgress)
+    };
+    match run_job_on_ranks(run, options, progress.as_mut(), &ranks) {
+        Ok(summary) => {
+            if ranks.rank() == 0 {
+                let _ = writeln!(std::io::stdout(), "{}", summary_text(&summary, constants));
+            }
+            Ok(())
+        }
+        Err(error) if ranks.size() == 1 => Err(error.into()),
+        Err(error) => {
+            let (rank, size) = (ranks.rank(), ranks.size());
+            // One write, so that the ranks' messages do not interleave.
+            let text = format!(
+                "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort); --resume continues a partial output in one process (without mpirun)\n"
+            );
+            let _ = std::io::stderr().write_all(text.as_bytes());
+            let code = error
+                .signal()
+                .and_then(|s| i32::try_from(128 + s).ok())
+                .unwrap_or(1);
+            ranks.abort(code)
+        }
+    }
 }
 
 /// SIGINT and SIGTERM (a scheduler's wall-time signal) ask the job to stop after the slab in

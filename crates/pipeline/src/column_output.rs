@@ -435,7 +435,8 @@ fn status_comment() -> String {
         .join("; ")
 }
 
-/// Writes one slab's horizons, and the geometry it carries.
+/// Writes one slab's horizons, and the geometry it carries; `with_step_zero`: other ranks of a
+/// collective write are writing slabs of step 0 now.
 pub(crate) fn write_columns(
     file: &mut FileMut,
     path: &Path,
@@ -443,6 +444,7 @@ pub(crate) fn write_columns(
     work: &ColumnWork,
     result: &ColumnResult,
     shape: [usize; 3],
+    with_step_zero: bool,
 ) -> Result<(), PipelineError> {
     let rows = result.rows.clone();
     let mut horizontal = Vec::new();
@@ -480,22 +482,29 @@ pub(crate) fn write_columns(
             )?;
         }
     }
-    if let Some(thickness) = &result.thickness {
-        let mut extents = layout.extents(result.step, rows.clone(), shape);
+    // In a collective write, a slab without the step-0 geometry still takes part, with no
+    // values, while another rank writes that geometry.
+    let empty = rows.start..rows.start;
+    let (thickness, thickness_rows) = match &result.thickness {
+        Some(values) => (Some(values.as_slice()), rows.clone()),
+        None if with_step_zero => (Some(&[][..]), empty.clone()),
+        None => (None, empty.clone()),
+    };
+    if let Some(thickness) = thickness {
+        let mut extents = layout.extents(result.step, thickness_rows, shape);
         if layout.time_dim().is_some() && !work.geometry().vertical.varies_in_time() {
             extents.remove(0);
         }
         put(file, path, CELL_THICKNESS, thickness, &extents, result.step)?;
     }
-    if let Some(floor) = &result.sea_floor {
-        put(
-            file,
-            path,
-            SEA_FLOOR_DEPTH,
-            floor,
-            &[rows, 0..shape[2]],
-            result.step,
-        )?;
+    let (floor, floor_rows) = match &result.sea_floor {
+        Some(values) => (Some(values.as_slice()), rows),
+        None if with_step_zero => (Some(&[][..]), empty),
+        None => (None, empty),
+    };
+    if let Some(floor) = floor {
+        let extents = [floor_rows, 0..shape[2]];
+        put(file, path, SEA_FLOOR_DEPTH, floor, &extents, result.step)?;
     }
     Ok(())
 }

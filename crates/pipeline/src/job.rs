@@ -19,7 +19,7 @@ use crate::plan::{plan_slabs, ColumnLoad, SlabPlan};
 use crate::repair::restore_cut_tail;
 use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
 use crate::stop::StopRequest;
-use crate::stream::{stream, sync_file, Sink};
+use crate::stream::{stream, sync_file, OwnRecord, Sink};
 use crate::PipelineError;
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
@@ -229,7 +229,7 @@ fn input_records(run: &Run) -> Result<Vec<InputRecord>, PipelineError> {
 
 /// The progress record a job continues or starts, with a note for the user when a resume
 /// does not start where the interrupted run stopped.
-fn starting_record(
+pub(crate) fn starting_record(
     run: &Run,
     job: &JobPlan,
     options: &JobOptions,
@@ -335,12 +335,15 @@ pub fn run_job(
 
     let total_cells = plan.cells_per_step() * plan.steps as u64;
     progress.begin(total_cells, plan.cells_per_step() * first_step as u64);
+    let mut ledger = OwnRecord {
+        record: &mut record,
+        path: &record_path,
+    };
     let sink = Sink {
         file: &mut file,
         partial: &partial,
         layout: &layout,
-        record: &mut record,
-        record_path: &record_path,
+        ledger: &mut ledger,
     };
     let streamed = stream(
         run,
@@ -376,7 +379,7 @@ pub fn run_job(
 }
 
 /// The column analysis of a job, when it computes horizons: reads the cells' geometry.
-fn column_work(run: &Run, job: &JobPlan) -> Result<Option<ColumnWork>, PipelineError> {
+pub(crate) fn column_work(run: &Run, job: &JobPlan) -> Result<Option<ColumnWork>, PipelineError> {
     let Some(plan) = &job.horizons else {
         return Ok(None);
     };
@@ -410,15 +413,15 @@ fn finish_job(
 
 /// How a job that ends early reports it: once the partial output holds finished work (or
 /// when resuming one), the cause comes with what is kept and how to go on.
-struct Ending<'a> {
-    partial: &'a Path,
-    steps_total: usize,
-    resuming: bool,
+pub(crate) struct Ending<'a> {
+    pub partial: &'a Path,
+    pub steps_total: usize,
+    pub resuming: bool,
 }
 
 impl Ending<'_> {
     /// An end that leaves a resumable partial output with `steps_done` finished steps.
-    fn kept(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+    pub(crate) fn kept(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
         PipelineError::Interrupted {
             cause: Box::new(cause),
             steps_done,
@@ -428,7 +431,7 @@ impl Ending<'_> {
     }
 
     /// An end before the output is opened: only a resumed job has kept work to speak of.
-    fn early(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+    pub(crate) fn early(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
         if self.resuming {
             self.kept(cause, steps_done)
         } else {
@@ -447,44 +450,80 @@ fn create_partial(
     partial: &Path,
 ) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
     remove_leftovers(&options.output)?;
-    let defined = (|| {
-        let mut file = nc(netcdf::create(partial), partial, || {
+    let setup = OutputSetup {
+        run,
+        job,
+        options,
+        work,
+        partial,
+    };
+    setup
+        .define(utc_timestamp(), || netcdf::create(partial))
+        .map_err(|e| {
+            let _ = fs::remove_file(partial);
+            setup_failure(partial, e)
+        })
+}
+
+/// What defining a new partial output needs.
+pub(crate) struct OutputSetup<'a> {
+    pub run: &'a Run,
+    pub job: &'a JobPlan,
+    pub options: &'a JobOptions,
+    pub work: Option<&'a ColumnWork>,
+    pub partial: &'a Path,
+}
+
+impl OutputSetup<'_> {
+    /// Creates the partial output with `create`, defines it (its history dated `created`) and
+    /// makes the definitions durable.
+    pub(crate) fn define(
+        &self,
+        created: String,
+        create: impl FnOnce() -> netcdf::Result<netcdf::FileMut>,
+    ) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+        let partial = self.partial;
+        let mut file = nc(create(), partial, || {
             "creating the file (is the directory writable?)".into()
         })?;
+        let options = self.options;
         let meta = OutputMetadata {
             command_line: options.command_line.clone(),
+            created,
             constants: options.constants,
             indicators: options.indicators.clone(),
             deflate_level: options.deflate_level,
             uncertainty: options.uncertainty.clone(),
         };
+        let job = self.job;
         let layout = define_output(
             &mut file,
             partial,
-            run,
+            self.run,
             &job.slabs,
             &job.fields,
             &meta,
-            work,
+            self.work,
         )?;
         nc(file.sync(), partial, || "flushing definitions".into())?;
         sync_file(partial)?;
         Ok((file, layout))
-    })();
-    defined.map_err(|e| {
-        let _ = fs::remove_file(partial);
-        let cause = match e {
-            PipelineError::Grid(grid) => grid.to_string(),
-            PipelineError::Netcdf { what, source, .. } => format!("{what}: {source}"),
-            other => return other,
-        };
-        PipelineError::Output {
-            path: partial.to_path_buf(),
-            message: format!(
-                "setting up the output failed ({cause}; a full disk, a quota or a file-size limit are common causes); nothing was kept: run the same command again once the cause is dealt with"
-            ),
-        }
-    })
+    }
+}
+
+/// The error of a failed output setup, saying what to do.
+pub(crate) fn setup_failure(partial: &Path, e: PipelineError) -> PipelineError {
+    let cause = match e {
+        PipelineError::Grid(grid) => grid.to_string(),
+        PipelineError::Netcdf { what, source, .. } => format!("{what}: {source}"),
+        other => return other,
+    };
+    PipelineError::Output {
+        path: partial.to_path_buf(),
+        message: format!(
+            "setting up the output failed ({cause}; a full disk, a quota or a file-size limit are common causes); nothing was kept: run the same command again once the cause is dealt with"
+        ),
+    }
 }
 
 /// Opens an interrupted run's partial output to continue it after `steps_done` steps,
@@ -533,6 +572,11 @@ fn finish_output(
     output: &Path,
 ) -> Result<(), PipelineError> {
     nc(file.close(), partial, || "closing the file".into())?;
+    place_output(partial, output)
+}
+
+/// Makes the finished, closed partial output durable and renames it into place.
+pub(crate) fn place_output(partial: &Path, output: &Path) -> Result<(), PipelineError> {
     sync_file(partial)?;
     fs::rename(partial, output).map_err(|e| PipelineError::Output {
         path: output.to_path_buf(),
@@ -544,7 +588,7 @@ fn finish_output(
 }
 
 /// Fails early, before any reading or solving, when the partial file cannot be written.
-fn check_writable(partial: &Path, resume: bool) -> Result<(), PipelineError> {
+pub(crate) fn check_writable(partial: &Path, resume: bool) -> Result<(), PipelineError> {
     let refuse = |e: std::io::Error| PipelineError::Output {
         path: partial.to_path_buf(),
         message: format!("cannot write here: {e}"),

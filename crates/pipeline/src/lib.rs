@@ -10,6 +10,7 @@ pub mod cells;
 pub mod cells_uncertainty;
 pub mod column_output;
 pub mod columns;
+pub mod deal;
 mod error;
 pub mod extent_table;
 pub mod flags;
@@ -21,6 +22,8 @@ mod leftovers;
 pub mod memory;
 pub mod output;
 pub mod plan;
+#[cfg(feature = "mpi")]
+pub mod ranks;
 mod repair;
 pub mod resume;
 pub mod stop;
@@ -40,4 +43,6 @@ pub use job::{plan_job, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Pr
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};
 pub use plan::{plan_slabs, ColumnLoad, SlabPlan};
+#[cfg(feature = "mpi")]
+pub use ranks::{run_job_on_ranks, Ranks};
 pub use stop::{signal_name, StopRequest};

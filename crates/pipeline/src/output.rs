@@ -109,6 +109,8 @@ impl OutputLayout {
 pub struct OutputMetadata {
     /// The command line, as typed.
     pub command_line: String,
+    /// When the output was created, UTC (ISO 8601), for its history attribute.
+    pub created: String,
     pub constants: ConstantChoice,
     pub indicators: IndicatorChoice,
     /// Deflate level 0-9 (0: no compression).
@@ -371,7 +373,7 @@ fn global_attributes(run: &Run, meta: &OutputMetadata) -> Vec<(String, String)> 
         ),
         (
             "history".to_string(),
-            format!("{}: {}", utc_timestamp(), meta.command_line),
+            format!("{}: {}", meta.created, meta.command_line),
         ),
         (
             "source".to_string(),

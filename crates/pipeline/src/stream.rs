@@ -5,6 +5,7 @@ use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult};
 use crate::column_output::{write_columns, write_extent_step};
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
+use crate::flags::FlagCounts;
 use crate::indicators::OutputField;
 use crate::job::{JobOptions, Progress};
 use crate::output::{write_slab, OutputLayout};
@@ -18,13 +19,43 @@ use std::path::Path;
 use std::sync::mpsc::sync_channel;
 use std::time::{Duration, Instant};
 
-/// Where a stream writes, and what it records.
+/// Where a stream writes, and where it records its progress.
 pub(crate) struct Sink<'a> {
     pub file: &'a mut netcdf::FileMut,
     pub partial: &'a Path,
     pub layout: &'a OutputLayout,
+    pub ledger: &'a mut dyn Ledger,
+}
+
+/// Keeps a job's progress: the flag counts of what was written, and the steps made durable.
+pub(crate) trait Ledger {
+    /// Adds the flag counts of a slab of `step` just written.
+    fn count(&mut self, step: usize, counts: FlagCounts);
+    /// Records that `step` is durable in the output; returns the time steps the whole job has
+    /// finished.
+    fn step_durable(&mut self, step: usize) -> Result<usize, PipelineError>;
+    /// Whether other processes write slabs of step 0 at the same time (collective writes).
+    fn peers_on_step_zero(&self) -> bool {
+        false
+    }
+}
+
+/// The ledger of a job in one process: its progress record, saved after every step.
+pub(crate) struct OwnRecord<'a> {
     pub record: &'a mut ProgressRecord,
-    pub record_path: &'a Path,
+    pub path: &'a Path,
+}
+
+impl Ledger for OwnRecord<'_> {
+    fn count(&mut self, _step: usize, counts: FlagCounts) {
+        self.record.counts += counts;
+    }
+
+    fn step_durable(&mut self, step: usize) -> Result<usize, PipelineError> {
+        self.record.finish_steps(step + 1);
+        self.record.save(self.path)?;
+        Ok(self.record.steps_done)
+    }
 }
 
 /// Busy time of each stage.
@@ -177,8 +208,7 @@ fn write_results(
         file,
         partial,
         layout,
-        record,
-        record_path,
+        ledger,
     } = sink;
     // The corrosive extent of the step being written, merged slab by slab.
     let mut extent = None;
@@ -190,7 +220,16 @@ fn write_results(
         let t = Instant::now();
         write_slab(file, partial, layout, fields, &result)?;
         if let (Some(work), Some(columns)) = (work, columns) {
-            write_columns(file, partial, layout, work, &columns, plan.shape)?;
+            let with_step_zero = ledger.peers_on_step_zero();
+            write_columns(
+                file,
+                partial,
+                layout,
+                work,
+                &columns,
+                plan.shape,
+                with_step_zero,
+            )?;
             match &mut extent {
                 None => extent = Some(columns.extent),
                 Some(sum) => sum
@@ -201,7 +240,7 @@ fn write_results(
         times.write += t.elapsed();
         let cells = result.flags.len() as u64;
         times.cells += cells;
-        record.counts += result.counts;
+        ledger.count(result.step, result.counts);
         progress.advance(cells);
         if result.rows.end == plan.shape[1] {
             // A finished time step: its extent, then make it durable and record it.
@@ -213,12 +252,10 @@ fn write_results(
                 format!("flushing time step {}", result.step + 1)
             })?;
             sync_file(partial)?;
-            record.finish_steps(result.step + 1);
-            record.save(record_path)?;
+            let steps_done = ledger.step_durable(result.step)?;
             times.write += t.elapsed();
-            progress.step_finished(record.steps_done, plan.steps);
-            if options.stop_after_steps == Some(record.steps_done) && record.steps_done < plan.steps
-            {
+            progress.step_finished(steps_done, plan.steps);
+            if options.stop_after_steps == Some(steps_done) && steps_done < plan.steps {
                 return Err(PipelineError::StopHook);
             }
         }

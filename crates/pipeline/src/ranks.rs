@@ -1,0 +1,293 @@
+//! One compute job shared by the ranks of an MPI job (feature `mpi`): the time steps are
+//! dealt out in rounds, each rank reads and solves its own steps, and all ranks write the one
+//! output collectively through parallel netCDF-4/HDF5, with the chunking and compression of a
+//! single-process output.
+//!
+//! Every collective write needs every rank, so every rank writes in every round: a rank with
+//! no step left in the last round computes and writes a step of that round again (the same
+//! values to the same place), and its flag counts are left out.
+
+use crate::deal::Deal;
+use crate::error::nc;
+use crate::flags::{FlagCounts, FLAG_COUNT_FIELDS};
+use crate::job::{
+    check_writable, column_work, place_output, run_job, setup_failure, starting_record, Ending,
+    JobOptions, JobSummary, OutputSetup, Progress,
+};
+use crate::leftovers::remove_leftovers;
+use crate::output::{partial_path, progress_path, utc_timestamp, OutputLayout};
+use crate::resume::{sync_parent, ProgressRecord};
+use crate::stream::{stream, Ledger, Sink};
+use crate::{extent_table::write_extent_table, PipelineError};
+use acidscape_gridio::Run;
+use mpi::environment::Universe;
+use mpi::topology::SimpleCommunicator;
+use mpi::traits::*;
+use std::fs;
+use std::path::Path;
+use std::time::Instant;
+
+/// The processes of an MPI job, from `MPI_Init` to `MPI_Finalize` (when dropped).
+pub struct Ranks {
+    world: SimpleCommunicator,
+    // Dropped last: finalises MPI.
+    _universe: Universe,
+}
+
+impl Ranks {
+    /// Starts MPI. Only the calling thread makes MPI calls (the output is written there).
+    pub fn init() -> Result<Ranks, PipelineError> {
+        let (universe, threading) = mpi::initialize_with_threading(mpi::Threading::Funneled)
+            .ok_or_else(|| PipelineError::Internal("MPI was started twice".into()))?;
+        if threading < mpi::Threading::Funneled {
+            return Err(PipelineError::Internal(
+                "this MPI library cannot be called from the main thread of a threaded process (MPI_THREAD_FUNNELED)".into(),
+            ));
+        }
+        Ok(Ranks {
+            world: universe.world(),
+            _universe: universe,
+        })
+    }
+
+    /// This process's rank, 0 to `size() - 1`.
+    pub fn rank(&self) -> usize {
+        self.world.rank() as usize
+    }
+
+    /// Ranks in the job.
+    pub fn size(&self) -> usize {
+        self.world.size() as usize
+    }
+
+    /// Ends every rank of the job at once (`MPI_Abort`), with `code` as the exit status.
+    pub fn abort(&self, code: i32) -> ! {
+        self.world.abort(code)
+    }
+
+    /// Every rank's `values`, in rank order, on every rank.
+    fn gather(&self, values: &[u64]) -> Vec<u64> {
+        let mut all = vec![0; values.len() * self.size()];
+        self.world.all_gather_into(values, &mut all[..]);
+        all
+    }
+
+    /// Rank 0's text, on every rank.
+    fn same_text(&self, text: String) -> String {
+        let root = self.world.process_at_rank(0);
+        let mut bytes = text.into_bytes();
+        let mut len = bytes.len() as u64;
+        root.broadcast_into(&mut len);
+        bytes.resize(len as usize, 0);
+        root.broadcast_into(&mut bytes[..]);
+        String::from_utf8_lossy(&bytes).into_owned()
+    }
+}
+
+/// Runs a compute job on all ranks, writing `options.output`; with one rank, the
+/// single-process job. Rank 0 keeps the progress record and places the finished output.
+/// Any rank's error must end the whole job (see [`Ranks::abort`]): the others would wait for
+/// it in the next collective call.
+pub fn run_job_on_ranks(
+    run: &Run,
+    options: &JobOptions,
+    progress: &mut dyn Progress,
+    ranks: &Ranks,
+) -> Result<JobSummary, PipelineError> {
+    if ranks.size() == 1 {
+        return run_job(run, options, progress);
+    }
+    if options.resume {
+        return Err(PipelineError::Option {
+            option: "--resume".into(),
+            message: "continues an interrupted run in one process: run the same command with --resume without mpirun (or with one rank)".into(),
+        });
+    }
+    let started = Instant::now();
+    let job = crate::job::plan_job(run, options)?;
+    let work = column_work(run, &job)?;
+    let plan = &job.slabs;
+    let output = options.output.clone();
+    let partial = partial_path(&output);
+    let record_path = progress_path(&output);
+    let mut record = starting_record(run, &job, options, work.as_ref(), false, progress)?;
+    let ended = Ending {
+        partial: &partial,
+        steps_total: plan.steps,
+        resuming: false,
+    };
+    let setup = OutputSetup {
+        run,
+        job: &job,
+        options,
+        work: work.as_ref(),
+        partial: &partial,
+    };
+    let (mut file, layout) = create_shared(&setup, ranks)?;
+    if ranks.rank() == 0 {
+        record.save(&record_path).map_err(|e| ended.kept(e, 0))?;
+    }
+    if options.stop_after_steps == Some(0) {
+        return Err(ended.kept(PipelineError::StopHook, 0));
+    }
+
+    let deal = Deal::new(0, plan.steps, ranks.rank(), ranks.size());
+    // Rank 0 shows its own share: the ranks go round by round together.
+    progress.begin(plan.cells_per_step() * deal.rounds() as u64, 0);
+    let slabs = deal
+        .steps()
+        .flat_map(|step| plan.slabs(step).take_while(move |(s, _)| *s == step));
+    let mut ledger = RankLedger {
+        ranks,
+        record: &mut record,
+        path: &record_path,
+        deal,
+        round: 0,
+        pending: FlagCounts::default(),
+    };
+    let sink = Sink {
+        file: &mut file,
+        partial: &partial,
+        layout: &layout,
+        ledger: &mut ledger,
+    };
+    let (fields, work_ref) = (&job.fields, work.as_ref());
+    let streamed = stream(
+        run, plan, fields, options, work_ref, None, slabs, sink, progress,
+    );
+    progress.finish();
+    let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
+    nc(file.close(), &partial, || "closing the file".into())
+        .map_err(|e| ended.kept(e, plan.steps))?;
+    ranks.world.barrier();
+    let extent = if ranks.rank() == 0 {
+        let placed = place_on_rank_zero(run, &job.output, work.as_ref(), &record, plan.steps);
+        placed.map_err(|e| ended.kept(e, plan.steps))?
+    } else {
+        None
+    };
+    ranks.world.barrier();
+    Ok(JobSummary {
+        output,
+        plan: job.slabs.clone(),
+        first_step: 0,
+        cells_processed: plan.cells_per_step() * plan.steps as u64,
+        counts: record.counts,
+        wall: started.elapsed(),
+        read: times.read,
+        compute: times.compute,
+        columns: times.columns,
+        write: times.write,
+        extent,
+    })
+}
+
+/// Creates and defines the output on every rank (parallel netCDF-4), after rank 0 removed
+/// what an earlier run left; every variable is written collectively.
+fn create_shared(
+    setup: &OutputSetup,
+    ranks: &Ranks,
+) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+    let (output, partial) = (&setup.options.output, setup.partial);
+    // Every rank has looked at the leftovers (in `plan_job`) before rank 0 removes them.
+    ranks.world.barrier();
+    if ranks.rank() == 0 {
+        check_writable(partial, false)?;
+        remove_leftovers(output)?;
+    }
+    ranks.world.barrier();
+    // The history attribute must be the same on every rank.
+    let created = ranks.same_text(utc_timestamp());
+    let defined = setup.define(created, || {
+        let info = unsafe { mpi::ffi::RSMPI_INFO_NULL };
+        netcdf::create_par_with(
+            partial,
+            ranks.world.as_raw(),
+            info,
+            netcdf::Options::NETCDF4,
+        )
+    });
+    let (file, layout) = defined.map_err(|e| setup_failure(partial, e))?;
+    for variable in file.variables() {
+        nc(variable.access_collective(), partial, || {
+            format!("setting collective access to '{}'", variable.name())
+        })?;
+    }
+    Ok((file, layout))
+}
+
+/// Rank 0, once every rank has closed the output: the extent table read back from it, then
+/// the output made durable and renamed into place, and the progress record removed.
+fn place_on_rank_zero(
+    run: &Run,
+    output: &Path,
+    work: Option<&crate::columns::ColumnWork>,
+    record: &ProgressRecord,
+    steps: usize,
+) -> Result<Option<crate::ExtentOverview>, PipelineError> {
+    let partial = partial_path(output);
+    if record.steps_done < steps {
+        return Err(PipelineError::Internal(format!(
+            "only {} of {steps} time steps were written",
+            record.steps_done
+        )));
+    }
+    let extent = match work {
+        Some(work) => {
+            let file = nc(netcdf::open(&partial), &partial, || {
+                "reopening the written output".into()
+            })?;
+            let dates = run.step_dates();
+            Some(write_extent_table(&file, &partial, output, &dates, work)?)
+        }
+        None => None,
+    };
+    place_output(&partial, output)?;
+    let _ = fs::remove_file(progress_path(output));
+    sync_parent(output);
+    Ok(extent)
+}
+
+/// The progress of a job on ranks: each round's flag counts summed over the ranks, and the
+/// record saved by rank 0 once every rank has made its step of the round durable.
+struct RankLedger<'a> {
+    ranks: &'a Ranks,
+    record: &'a mut ProgressRecord,
+    path: &'a Path,
+    deal: Deal,
+    round: usize,
+    pending: FlagCounts,
+}
+
+impl Ledger for RankLedger<'_> {
+    fn count(&mut self, step: usize, counts: FlagCounts) {
+        if !self.deal.is_repeat(step) {
+            self.pending += counts;
+        }
+    }
+
+    fn step_durable(&mut self, _step: usize) -> Result<usize, PipelineError> {
+        // Also the point where every rank has flushed the round (a collective call). Rank k
+        // wrote step k of the round: recorded step by step, as one process would.
+        let round = self
+            .ranks
+            .gather(&std::mem::take(&mut self.pending).as_vec());
+        let steps = self.deal.round_steps(self.round);
+        let done = steps.end;
+        for (step, counts) in steps.zip(round.chunks(FLAG_COUNT_FIELDS)) {
+            self.record.counts += FlagCounts::from_slice(counts).ok_or_else(|| {
+                PipelineError::Internal("the flag counts of a round were lost".into())
+            })?;
+            self.record.finish_steps(step + 1);
+        }
+        self.round += 1;
+        if self.ranks.rank() == 0 {
+            self.record.save(self.path)?;
+        }
+        Ok(done)
+    }
+
+    fn peers_on_step_zero(&self) -> bool {
+        self.round == 0 && self.deal.rounds() > 0
+    }
+}

@@ -1,0 +1,158 @@
+#!/usr/bin/env bash
+# The MPI build (cargo feature `mpi`) against the single-process build, on this machine:
+# - every sample run computed by 1, 2 and 3 ranks: the output holds the same values, types,
+#   chunking, compression and attributes (history aside) as the single-process output, read
+#   with netCDF4 (scripts/compare_nc_outputs.py), and the extent CSV is the same byte for byte;
+# - several slabs per time step (a small --memory-budget) on 2 and 3 ranks, the same;
+# - a job stopped on every rank after some steps, and a job with one rank killed (SIGKILL)
+#   mid-run: no complete-looking output is left, and `--resume` in one process finishes an
+#   output identical to the uninterrupted one;
+# - in every case the summary's flag counts (all steps) are those of the single process (after
+#   a resume, they come from the progress record the ranks kept);
+# - a 3-rank output passes the external readers and the CF checker (check_external_readers.py);
+# - the comparison itself fails on outputs that differ (a different deflate level).
+# Needs OpenMPI and the MPI builds of netCDF-C and HDF5 (Debian: openmpi-bin libopenmpi-dev
+# libnetcdf-mpi-dev libhdf5-openmpi-dev libclang-dev) and Python's netCDF4.
+# Usage: scripts/check_mpi.sh [--keep]   (--keep leaves the temporary directory)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+work=$(mktemp -d "${TMPDIR:-/tmp}/acidscape-mpi.XXXXXX")
+if [[ "${1:-}" != "--keep" ]]; then trap 'rm -rf "$work"' EXIT; else echo "keeping $work"; fi
+
+serial_target=${CARGO_TARGET_DIR:-target}
+mpi_target=${MPI_TARGET_DIR:-target-mpi}
+# The MPI netCDF and HDF5 (Debian's paths by default); only for the MPI build, so that the
+# single-process build keeps the serial libraries.
+netcdf_dir=${MPI_NETCDF_DIR:-/usr/lib/x86_64-linux-gnu/netcdf/mpi}
+hdf5_dir=${MPI_HDF5_DIR:-/usr/lib/x86_64-linux-gnu/hdf5/openmpi}
+echo "== building the single-process ($serial_target) and the MPI ($mpi_target) binaries"
+CARGO_TARGET_DIR=$serial_target cargo build --quiet -p acidscape
+NETCDF_DIR=$netcdf_dir HDF5_DIR=$hdf5_dir CARGO_TARGET_DIR=$mpi_target \
+    cargo build --quiet -p acidscape --features mpi
+serial="$serial_target/debug/acidscape"
+parallel="$mpi_target/debug/acidscape"
+
+# Two cores here: more ranks than cores. As root, OpenMPI wants to be told twice.
+if [[ $(id -u) == 0 ]]; then
+    export OMPI_ALLOW_RUN_AS_ROOT=1 OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1
+fi
+mpi_run() { # ranks, then the compute arguments
+    local ranks=$1; shift
+    timeout 600 mpirun --oversubscribe --bind-to none --mca mpi_yield_when_idle 1 -np "$ranks" "$parallel" compute --threads 1 "$@"
+}
+
+failed=0
+fail() { echo "FAILED: $*"; failed=$((failed + 1)); }
+passed=0
+flag_counts() { grep -A8 'quality_flag (cells, all steps)' "$1"; }
+same() { # reference output, output, what, reference summary, summary
+    if python3 scripts/compare_nc_outputs.py "$1" "$2" >"$work/compare.log" 2>&1 \
+        && cmp -s "${1%.nc}.extent.csv" "${2%.nc}.extent.csv" \
+        && [[ -n "$(flag_counts "$4")" && "$(flag_counts "$4")" == "$(flag_counts "$5")" ]]; then
+        passed=$((passed + 1))
+    else
+        cat "$work/compare.log"; cmp "${1%.nc}.extent.csv" "${2%.nc}.extent.csv" || true
+        diff <(flag_counts "$4") <(flag_counts "$5") || true
+        fail "$3"
+    fi
+}
+
+echo "== every sample run on 1, 2 and 3 ranks against one process"
+for run_dir in sample-grids/*/*/; do
+    name=$(basename "$(dirname "$run_dir")")-$(basename "$run_dir")
+    if ! "$serial" compute "$run_dir"*.nc -o "$work/$name.nc" >"$work/$name.log" 2>&1; then
+        cat "$work/$name.log"; fail "$name: single process"; continue
+    fi
+    for ranks in 1 2 3; do
+        out="$work/$name-$ranks.nc"
+        if mpi_run "$ranks" "$run_dir"*.nc -o "$out" >"$out.log" 2>&1; then
+            same "$work/$name.nc" "$out" "$name on $ranks ranks" "$work/$name.log" "$out.log"
+        else
+            cat "$out.log"; fail "$name on $ranks ranks: exit status"
+        fi
+    done
+    echo "$name: $(grep -o 'over [0-9]* time step(s)' "$work/$name.log")"
+done
+
+echo "== a 3-rank output read by netCDF4 and xarray, and the CF checker (cf:1.10)"
+if python3 scripts/check_external_readers.py "$work/century-pathway-moderate-3.nc" --cf-suite cf:1.10; then
+    passed=$((passed + 1))
+else
+    fail "the 3-rank output: external readers or CF checker"
+fi
+
+century=(sample-grids/century/pathway-moderate/*.nc)
+budget=(--memory-budget 129M)
+echo "== several slabs per step (${budget[*]}) on 2 and 3 ranks"
+"$serial" compute "${century[@]}" -o "$work/slabs.nc" "${budget[@]}" >"$work/slabs.log" 2>&1 \
+    || { cat "$work/slabs.log"; fail "several slabs: single process"; }
+grep -o '[0-9]* slab(s) per step' "$work/slabs.log"
+grep -q ' 1 slab(s) per step' "$work/slabs.log" && fail "the budget gives one slab per step"
+for ranks in 2 3; do
+    out="$work/slabs-$ranks.nc"
+    if mpi_run "$ranks" "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1; then
+        same "$work/slabs.nc" "$out" "several slabs per step on $ranks ranks" "$work/slabs.log" "$out.log"
+    else
+        cat "$out.log"; fail "several slabs per step on $ranks ranks: exit status"
+    fi
+done
+
+# Ends without a complete-looking output, keeps the partial one and its progress record, then
+# `--resume` in one process finishes the same output as the uninterrupted run.
+check_resumed() { # output, log, what
+    local out=$1 log=$2 what=$3
+    if [[ -e "$out" || -e "${out%.nc}.extent.csv" ]]; then fail "$what: a complete-looking output is left"; fi
+    local partial
+    partial="$(dirname "$out")/.$(basename "$out").partial"
+    [[ -e "$partial" && -e "$partial.progress" ]] || fail "$what: no partial output and progress record kept"
+    if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --resume >"$log.resume" 2>&1; then
+        grep -o 'resumed at time step [0-9]*' "$log.resume" || true
+        same "$work/slabs.nc" "$out" "$what, then --resume" "$work/slabs.log" "$log.resume"
+    else
+        cat "$log.resume"; fail "$what: --resume"
+    fi
+}
+
+echo "== every rank stopped after 6 of 86 steps (3 ranks), then --resume in one process"
+out="$work/stopped.nc"
+if ACIDSCAPE_STOP_AFTER_STEPS=6 mpi_run 3 "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1; then
+    fail "a stopped MPI job exited 0"
+fi
+grep -m1 'error on rank' "$out.log" || fail "no message naming the failing rank"
+check_resumed "$out" "$out.log" "stopped after 6 steps"
+
+echo "== one of 2 ranks killed (SIGKILL) mid-run, then --resume in one process"
+out="$work/killed.nc"
+partial="$work/.killed.nc.partial"
+mpi_run 2 "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1 &
+launcher=$!
+# Kill one rank (the last process of the MPI binary under the launcher) once 4 to 59 of the
+# 86 steps are durable (well before the end, so the job cannot have finished).
+descendants() { local child; for child in $(pgrep -P "$1" || true); do echo "$child"; descendants "$child"; done; }
+victim=""
+for _ in $(seq 1 600); do
+    if grep -Eq '^steps_done ([4-9]|[1-5][0-9])$' "$partial.progress" 2>/dev/null; then
+        for pid in $(descendants "$launcher"); do
+            [[ "$(readlink -f "/proc/$pid/exe" 2>/dev/null)" == "$(readlink -f "$parallel")" ]] && victim=$pid
+        done
+        [[ -n "$victim" ]] && kill -KILL "$victim" && break
+    fi
+    sleep 0.05
+done
+if wait "$launcher"; then
+    fail "a job with a killed rank exited 0 (killed: ${victim:-none})"
+fi
+[[ -n "$victim" ]] || fail "no rank could be killed mid-run"
+tail -n 3 "$out.log"
+check_resumed "$out" "$out.log" "one of 2 ranks killed"
+
+echo "== the comparison fails on outputs that differ"
+"$serial" compute sample-grids/cmip-style/pathway-moderate/*.nc -o "$work/other.nc" --deflate-level 4 >/dev/null 2>&1
+if python3 scripts/compare_nc_outputs.py "$work/cmip-style-pathway-moderate.nc" "$work/other.nc" >/dev/null; then
+    fail "outputs with another deflate level compared equal"
+else
+    passed=$((passed + 1))
+fi
+
+echo "mpi: $passed passed, $failed failed"
+[[ $failed == 0 ]]
