@@ -5,7 +5,7 @@
 //! saturation states or the Revelle factor: those get a plain name with long_name and units.
 
 use crate::PipelineError;
-use acidscape_chem::Solution;
+use acidscape_chem::{Output, Solution};
 use std::fmt;
 use std::str::FromStr;
 
@@ -407,23 +407,31 @@ impl OutputField {
 
     /// The field's value for a solved cell; `density_kg_m3` converts per-mass to per-volume.
     pub fn value(&self, solution: &Solution, density_kg_m3: f64) -> f64 {
+        self.value_of_output(self.output().value(solution), density_kg_m3)
+    }
+
+    /// The chemistry's output the field is made from.
+    pub fn output(&self) -> Output {
         match self.quantity {
-            Quantity::Ph(PhScale::Total) => solution.ph_total,
-            Quantity::Ph(PhScale::Seawater) => solution.ph_seawater,
-            Quantity::Ph(PhScale::Free) => solution.ph_free,
-            Quantity::Concentration(species, unit) => {
-                let micromol_per_kg = match species {
-                    Species::Carbonate => solution.carbonate,
-                    Species::Bicarbonate => solution.bicarbonate,
-                    Species::Co2Star => solution.co2,
-                };
-                unit.convert_micromol_per_kg(micromol_per_kg, density_kg_m3)
-            }
-            Quantity::Pco2 => solution.pco2_uatm,
-            Quantity::Fco2 => solution.fco2_uatm,
-            Quantity::OmegaAragonite => solution.omega_aragonite,
-            Quantity::OmegaCalcite => solution.omega_calcite,
-            Quantity::RevelleFactor => solution.revelle_factor,
+            Quantity::Ph(PhScale::Total) => Output::PhTotal,
+            Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,
+            Quantity::Ph(PhScale::Free) => Output::PhFree,
+            Quantity::Concentration(Species::Carbonate, _) => Output::Carbonate,
+            Quantity::Concentration(Species::Bicarbonate, _) => Output::Bicarbonate,
+            Quantity::Concentration(Species::Co2Star, _) => Output::Co2,
+            Quantity::Pco2 => Output::Pco2,
+            Quantity::Fco2 => Output::Fco2,
+            Quantity::OmegaAragonite => Output::OmegaAragonite,
+            Quantity::OmegaCalcite => Output::OmegaCalcite,
+            Quantity::RevelleFactor => Output::RevelleFactor,
+        }
+    }
+
+    /// The field's value from its [`OutputField::output`] as the chemistry gives it.
+    pub fn value_of_output(&self, value: f64, density_kg_m3: f64) -> f64 {
+        match self.quantity {
+            Quantity::Concentration(_, unit) => unit.convert_micromol_per_kg(value, density_kg_m3),
+            _ => value,
         }
     }
 
