@@ -5,6 +5,7 @@ mod compare;
 mod compute;
 mod describe;
 mod draw;
+mod progress;
 mod run_options;
 mod samples;
 

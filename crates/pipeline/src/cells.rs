@@ -1,7 +1,7 @@
 //! Solving every cell of a slab in parallel, with a quality flag per cell.
 //!
-//! [`solve_slab`] gathers each task's solvable cells into the batch kernel's layout
-//! ([`acidscape_chem::solve_cells`], cells in SIMD lanes) and scatters its results;
+//! [`solve_slab`] with [`SlabSolver::Kernel`] gathers each task's solvable cells into the batch
+//! kernel's layout ([`acidscape_chem::solve_cells`], cells in SIMD lanes) and scatters its results;
 //! [`SlabSolver::ByCell`] calls [`acidscape_chem::solve`] cell by cell, the reference the kernel
 //! path is tested against. Both give every cell the same values and flag.
 
@@ -87,20 +87,9 @@ pub enum SlabSolver {
     ByCell,
 }
 
-/// Solves every cell of `inputs` with the batch kernel and fills the requested fields, the flags
-/// and the kept saturation states (in `spare`'s buffers, which may hold a previous slab's values).
+/// Solves every cell of `inputs` with `solver` and fills the requested fields, the flags and the
+/// kept saturation states (in `spare`'s buffers, which may hold a previous slab's values).
 pub fn solve_slab(
-    inputs: &SlabInputs,
-    fields: &[OutputField],
-    choice: &ConstantChoice,
-    keep: KeepOmega,
-    spare: SaturationStates,
-) -> SlabResult {
-    solve_slab_with(SlabSolver::Kernel, inputs, fields, choice, keep, spare)
-}
-
-/// [`solve_slab`] with the solver chosen.
-pub fn solve_slab_with(
     solver: SlabSolver,
     inputs: &SlabInputs,
     fields: &[OutputField],

@@ -1,7 +1,7 @@
 //! The overlapping read → solve → write loop of a job, with durable progress after every
 //! finished time step and a clean stop when asked.
 
-use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult};
+use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult, SlabSolver};
 use crate::column_output::{write_columns, write_extent_step};
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
@@ -16,6 +16,7 @@ use std::fs;
 use std::ops::Range;
 use std::path::Path;
 use std::sync::mpsc::sync_channel;
+use std::sync::{Mutex, PoisonError};
 use std::time::{Duration, Instant};
 
 /// Where a stream writes, and what it records.
@@ -35,7 +36,33 @@ pub(crate) struct StageTimes {
     /// Of `compute`: the column analysis (horizons, thicknesses, extent).
     pub columns: Duration,
     pub write: Duration,
+    /// Time inside netCDF reads and writes (see [`SerialNetcdf`]).
+    pub netcdf: Duration,
     pub cells: u64,
+}
+
+/// The job's serial netCDF time. libnetcdf serves one call at a time (the netcdf crate holds one
+/// global lock), so the stream's reads and writes also take this lock; the time it is held is
+/// the part of the run that no number of threads can shorten.
+#[derive(Debug, Default)]
+pub(crate) struct SerialNetcdf {
+    held: Mutex<Duration>,
+}
+
+impl SerialNetcdf {
+    /// Runs `work` (netCDF reads or writes) holding the lock, and adds its time.
+    pub(crate) fn run<T>(&self, work: impl FnOnce() -> T) -> T {
+        let mut held = self.held.lock().unwrap_or_else(PoisonError::into_inner);
+        let started = Instant::now();
+        let result = work();
+        *held += started.elapsed();
+        result
+    }
+
+    /// The time held so far.
+    pub(crate) fn total(&self) -> Duration {
+        *self.held.lock().unwrap_or_else(PoisonError::into_inner)
+    }
 }
 
 /// A solved slab with its column analysis, on its way to the writer.
@@ -59,7 +86,8 @@ fn solve(
     let inputs = run.convert_slab(raw);
     let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
     let buffers = std::mem::take(spare);
-    let mut cells = solve_slab(&inputs, fields, &options.constants, keep, buffers);
+    let solver = SlabSolver::Kernel;
+    let mut cells = solve_slab(solver, &inputs, fields, &options.constants, keep, buffers);
     let solved = t.elapsed();
     let columns = work.map(|w| w.analyse(&inputs, &cells)).transpose()?;
     // Kept for the next slab's states (no allocation, no zeroing).
@@ -85,6 +113,7 @@ pub(crate) fn stream(
 ) -> Result<StageTimes, PipelineError> {
     let stop = &options.stop;
     let mut times = StageTimes::default();
+    let serial = &SerialNetcdf::default();
     std::thread::scope(|scope| -> Result<StageTimes, PipelineError> {
         // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
         // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
@@ -102,7 +131,7 @@ pub(crate) fn stream(
                     break;
                 }
                 let t = Instant::now();
-                let slab = run.read_raw_slab(step, rows);
+                let slab = serial.run(|| run.read_raw_slab(step, rows));
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -132,13 +161,14 @@ pub(crate) fn stream(
             options,
             work,
         };
-        let written = write_results(result_rx, &stages, sink, progress, &mut times);
+        let written = write_results(result_rx, &stages, sink, progress, &mut times, serial);
         times.read = reader
             .join()
             .map_err(|_| PipelineError::Internal("the reader thread panicked".into()))?;
         (times.compute, times.columns) = solver
             .join()
             .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
+        times.netcdf = serial.total();
         written.map(|()| times)
     })
 }
@@ -158,6 +188,7 @@ fn write_results(
     sink: Sink<'_>,
     progress: &mut dyn Progress,
     times: &mut StageTimes,
+    serial: &SerialNetcdf,
 ) -> Result<(), PipelineError> {
     let Stages {
         plan,
@@ -180,9 +211,14 @@ fn write_results(
             columns,
         } = item?;
         let t = Instant::now();
-        write_slab(file, partial, layout, fields, &result)?;
-        if let (Some(work), Some(columns)) = (work, columns) {
-            write_columns(file, partial, layout, work, &columns, plan.shape)?;
+        serial.run(|| -> Result<(), PipelineError> {
+            write_slab(file, partial, layout, fields, &result)?;
+            if let (Some(work), Some(columns)) = (work, &columns) {
+                write_columns(file, partial, layout, work, columns, plan.shape)?;
+            }
+            Ok(())
+        })?;
+        if let Some(columns) = columns {
             match &mut extent {
                 None => extent = Some(columns.extent),
                 Some(sum) => sum
@@ -198,11 +234,13 @@ fn write_results(
         if result.rows.end == plan.shape[1] {
             // A finished time step: its extent, then make it durable and record it.
             let t = Instant::now();
-            if let (Some(work), Some(sum)) = (work, extent.take()) {
-                write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
-            }
-            nc(file.sync(), partial, || {
-                format!("flushing time step {}", result.step + 1)
+            serial.run(|| -> Result<(), PipelineError> {
+                if let (Some(work), Some(sum)) = (work, extent.take()) {
+                    write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
+                }
+                nc(file.sync(), partial, || {
+                    format!("flushing time step {}", result.step + 1)
+                })
             })?;
             sync_file(partial)?;
             record.finish_steps(result.step + 1);

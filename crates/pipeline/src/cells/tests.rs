@@ -136,9 +136,9 @@ fn the_kernel_gives_every_cell_the_reference_values_and_flag() {
             aragonite: vec![7.0; 10],
             calcite: vec![7.0; 10],
         };
-        let kernel = solve_slab(&inputs, &fields, &choice, keep, stale());
+        let kernel = solve_slab(SlabSolver::Kernel, &inputs, &fields, &choice, keep, stale());
         let by_cell = SlabSolver::ByCell;
-        let reference = solve_slab_with(by_cell, &inputs, &fields, &choice, keep, stale());
+        let reference = solve_slab(by_cell, &inputs, &fields, &choice, keep, stale());
         assert_same(&kernel, &reference);
         let cells: usize = SHAPE.iter().product();
         assert_eq!(kernel.omega.calcite.len(), cells);
