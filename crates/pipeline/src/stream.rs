@@ -36,8 +36,8 @@ pub(crate) struct StageTimes {
     /// Of `compute`: the column analysis (horizons, thicknesses, extent).
     pub columns: Duration,
     pub write: Duration,
-    /// Time inside netCDF reads and writes (see [`SerialNetcdf`]).
-    pub netcdf: Duration,
+    /// Time inside netCDF reads and inside netCDF writes (see [`SerialNetcdf`]).
+    pub netcdf: [Duration; 2],
     pub cells: u64,
 }
 
@@ -46,21 +46,29 @@ pub(crate) struct StageTimes {
 /// the part of the run that no number of threads can shorten.
 #[derive(Debug, Default)]
 pub(crate) struct SerialNetcdf {
-    held: Mutex<Duration>,
+    /// Reading, writing.
+    held: Mutex<[Duration; 2]>,
+}
+
+/// Which side of the job a netCDF call serves.
+#[derive(Clone, Copy, Debug)]
+pub(crate) enum Side {
+    Reading = 0,
+    Writing = 1,
 }
 
 impl SerialNetcdf {
-    /// Runs `work` (netCDF reads or writes) holding the lock, and adds its time.
-    pub(crate) fn run<T>(&self, work: impl FnOnce() -> T) -> T {
+    /// Runs `work` (netCDF reads or writes) holding the lock, and adds its time to `side`.
+    pub(crate) fn run<T>(&self, side: Side, work: impl FnOnce() -> T) -> T {
         let mut held = self.held.lock().unwrap_or_else(PoisonError::into_inner);
         let started = Instant::now();
         let result = work();
-        *held += started.elapsed();
+        held[side as usize] += started.elapsed();
         result
     }
 
-    /// The time held so far.
-    pub(crate) fn total(&self) -> Duration {
+    /// The time held so far: reading, writing.
+    pub(crate) fn totals(&self) -> [Duration; 2] {
         *self.held.lock().unwrap_or_else(PoisonError::into_inner)
     }
 }
@@ -131,7 +139,7 @@ pub(crate) fn stream(
                     break;
                 }
                 let t = Instant::now();
-                let slab = serial.run(|| run.read_raw_slab(step, rows));
+                let slab = serial.run(Side::Reading, || run.read_raw_slab(step, rows));
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -168,7 +176,7 @@ pub(crate) fn stream(
         (times.compute, times.columns) = solver
             .join()
             .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
-        times.netcdf = serial.total();
+        times.netcdf = serial.totals();
         written.map(|()| times)
     })
 }
@@ -211,7 +219,7 @@ fn write_results(
             columns,
         } = item?;
         let t = Instant::now();
-        serial.run(|| -> Result<(), PipelineError> {
+        serial.run(Side::Writing, || -> Result<(), PipelineError> {
             write_slab(file, partial, layout, fields, &result)?;
             if let (Some(work), Some(columns)) = (work, &columns) {
                 write_columns(file, partial, layout, work, columns, plan.shape)?;
@@ -234,7 +242,7 @@ fn write_results(
         if result.rows.end == plan.shape[1] {
             // A finished time step: its extent, then make it durable and record it.
             let t = Instant::now();
-            serial.run(|| -> Result<(), PipelineError> {
+            serial.run(Side::Writing, || -> Result<(), PipelineError> {
                 if let (Some(work), Some(sum)) = (work, extent.take()) {
                     write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
                 }
