@@ -179,7 +179,7 @@ if part baseline; then
         done
         echo "  the script reads $py_steps of $steps steps; its time is scaled by $steps / $py_steps (per cell)"
     fi
-    walls_a=(); walls_b=(); walls_p=(); serials=(); readings=()
+    walls_a=(); walls_b=(); walls_p=(); serials=()
     for ((i = 1; i <= repeat; i++)); do
         load=$(cut -d' ' -f1 /proc/loadavg)
         /usr/bin/time -f '%e %M' -o "$dir/turn.time" taskset -c 0,1 "$bin" compute "${half[@]}" -o "$dir/out-turn.nc" \
@@ -187,10 +187,9 @@ if part baseline; then
             || { cat "$dir/turn.out"; exit 1; }
         read -r wall rss <"$dir/turn.time"
         serial=$(grep -oE 'serial netCDF [0-9.]+' "$dir/turn.out" | grep -oE '[0-9.]+$')
-        reading=$(grep -oE '\(reading [0-9.]+' "$dir/turn.out" | grep -oE '[0-9.]+$' || echo 0)
-        walls_a+=("$wall"); serials+=("$serial"); readings+=("$reading")
-        printf '  round %d acidscape   wall %7.2f s  serial netCDF %6.2f s (reading %5.2f s)  peak RSS %6.0f MiB (load before %s)\n' \
-            "$i" "$wall" "$serial" "$reading" "$(echo "$rss / 1024" | bc -l)" "$load"
+        walls_a+=("$wall"); serials+=("$serial")
+        printf '  round %d acidscape   wall %7.2f s  serial netCDF %6.2f s  peak RSS %6.0f MiB (load before %s)\n' \
+            "$i" "$wall" "$serial" "$(echo "$rss / 1024" | bc -l)" "$load"
         if [[ -n "${BASELINE:-}" ]]; then
             load=$(cut -d' ' -f1 /proc/loadavg)
             /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "$BASELINE" compute "${half[@]}" -o "$dir/out-turn.nc" \
@@ -211,9 +210,8 @@ if part baseline; then
     a=$(printf '%s\n' "${walls_a[@]}" | median)
     p=$(printf '%s\n' "${walls_p[@]}" | median)
     sn=$(printf '%s\n' "${serials[@]}" | median)
-    rd=$(printf '%s\n' "${readings[@]}" | median)
-    printf 'acidscape, 2 cores:    median wall %7.2f s (serial netCDF %.2f s, %.0f %%; of it reading %.2f s)\n' \
-        "$a" "$sn" "$(echo "100 * $sn / $a" | bc -l)" "$rd"
+    printf 'acidscape, 2 cores:    median wall %7.2f s (serial netCDF %.2f s, %.0f %%)\n' \
+        "$a" "$sn" "$(echo "100 * $sn / $a" | bc -l)"
     printf 'xarray + numpy, 1 core: median wall %7.2f s for %d steps\n' "$p" "$steps"
     printf 'acidscape is %.2f x faster (medians); at most %.2f x while serial netCDF time stays\n' \
         "$(echo "$p / $a" | bc -l)" "$(echo "$p / $sn" | bc -l)"

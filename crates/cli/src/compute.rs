@@ -193,7 +193,7 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
         "Wrote {output}\n\
          cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
          wall time: {:.2} s; throughput {}\n\
-         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s (of which horizons and volumes {:.2} s), write {:.2} s; serial netCDF {:.2} s (reading {:.2} s)\n\
+         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s (of which horizons and volumes {:.2} s), write {:.2} s; serial netCDF {:.2} s\n\
          {}\
          {}\n\
          {}\
@@ -212,7 +212,6 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
         summary.columns.as_secs_f64(),
         summary.write.as_secs_f64(),
         summary.serial_netcdf.as_secs_f64(),
-        summary.serial_netcdf_reading.as_secs_f64(),
         serial_note(summary.serial_netcdf, summary.wall),
         flag_summary(summary, constants),
         summary

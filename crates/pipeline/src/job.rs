@@ -90,8 +90,6 @@ pub struct JobSummary {
     /// Time inside netCDF reads and writes (the first read, the stream's, closing the output):
     /// serial whatever the number of threads, as libnetcdf serves one call at a time.
     pub serial_netcdf: Duration,
-    /// Of `serial_netcdf`: reading the inputs.
-    pub serial_netcdf_reading: Duration,
     /// The corrosive-extent table written beside the output, with its first and last steps.
     pub extent: Option<ExtentOverview>,
 }
@@ -368,8 +366,7 @@ pub fn run_job(
         compute: times.compute,
         columns: times.columns,
         write: times.write,
-        serial_netcdf: first_read + times.netcdf[0] + times.netcdf[1] + finish,
-        serial_netcdf_reading: first_read + times.netcdf[0],
+        serial_netcdf: first_read + times.netcdf + finish,
         extent,
     })
 }

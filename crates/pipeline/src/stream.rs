@@ -36,40 +36,59 @@ pub(crate) struct StageTimes {
     /// Of `compute`: the column analysis (horizons, thicknesses, extent).
     pub columns: Duration,
     pub write: Duration,
-    /// Time inside netCDF reads and inside netCDF writes (see [`SerialNetcdf`]).
-    pub netcdf: [Duration; 2],
+    /// Time with netCDF reads or writes under way (see [`SerialNetcdf`]).
+    pub netcdf: Duration,
     pub cells: u64,
 }
 
 /// The job's serial netCDF time. libnetcdf serves one call at a time (the netcdf crate holds one
-/// global lock), so the stream's reads and writes also take this lock; the time it is held is
-/// the part of the run that no number of threads can shorten.
+/// global lock), so the time during which the reader or the writer is inside netCDF work is
+/// the part of the run that no number of threads can shorten. Only entries and exits are
+/// recorded (a lock held for the whole work would also keep the other side from its own
+/// non-netCDF work, and cost memory: measured).
 #[derive(Debug, Default)]
 pub(crate) struct SerialNetcdf {
-    /// Reading, writing.
-    held: Mutex<[Duration; 2]>,
+    clock: Mutex<SerialClock>,
 }
 
-/// Which side of the job a netCDF call serves.
-#[derive(Clone, Copy, Debug)]
-pub(crate) enum Side {
-    Reading = 0,
-    Writing = 1,
+#[derive(Debug, Default)]
+struct SerialClock {
+    /// Sides inside netCDF work now, and since when at least one has been.
+    inside: u32,
+    since: Option<Instant>,
+    /// Time with at least one side inside.
+    busy: Duration,
 }
 
 impl SerialNetcdf {
-    /// Runs `work` (netCDF reads or writes) holding the lock, and adds its time to `side`.
-    pub(crate) fn run<T>(&self, side: Side, work: impl FnOnce() -> T) -> T {
-        let mut held = self.held.lock().unwrap_or_else(PoisonError::into_inner);
+    /// Runs `work` (netCDF reads or writes) and records its time.
+    pub(crate) fn run<T>(&self, work: impl FnOnce() -> T) -> T {
         let started = Instant::now();
+        {
+            let mut clock = self.clock.lock().unwrap_or_else(PoisonError::into_inner);
+            if clock.inside == 0 {
+                clock.since = Some(started);
+            }
+            clock.inside += 1;
+        }
         let result = work();
-        held[side as usize] += started.elapsed();
+        let ended = Instant::now();
+        let mut clock = self.clock.lock().unwrap_or_else(PoisonError::into_inner);
+        clock.inside -= 1;
+        if clock.inside == 0 {
+            if let Some(since) = clock.since.take() {
+                clock.busy += ended - since;
+            }
+        }
         result
     }
 
-    /// The time held so far: reading, writing.
-    pub(crate) fn totals(&self) -> [Duration; 2] {
-        *self.held.lock().unwrap_or_else(PoisonError::into_inner)
+    /// The time with netCDF work under way so far.
+    pub(crate) fn total(&self) -> Duration {
+        self.clock
+            .lock()
+            .unwrap_or_else(PoisonError::into_inner)
+            .busy
     }
 }
 
@@ -139,7 +158,7 @@ pub(crate) fn stream(
                     break;
                 }
                 let t = Instant::now();
-                let slab = serial.run(Side::Reading, || run.read_raw_slab(step, rows));
+                let slab = serial.run(|| run.read_raw_slab(step, rows));
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -176,7 +195,7 @@ pub(crate) fn stream(
         (times.compute, times.columns) = solver
             .join()
             .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
-        times.netcdf = serial.totals();
+        times.netcdf = serial.total();
         written.map(|()| times)
     })
 }
@@ -219,7 +238,7 @@ fn write_results(
             columns,
         } = item?;
         let t = Instant::now();
-        serial.run(Side::Writing, || -> Result<(), PipelineError> {
+        serial.run(|| -> Result<(), PipelineError> {
             write_slab(file, partial, layout, fields, &result)?;
             if let (Some(work), Some(columns)) = (work, &columns) {
                 write_columns(file, partial, layout, work, columns, plan.shape)?;
@@ -242,7 +261,7 @@ fn write_results(
         if result.rows.end == plan.shape[1] {
             // A finished time step: its extent, then make it durable and record it.
             let t = Instant::now();
-            serial.run(Side::Writing, || -> Result<(), PipelineError> {
+            serial.run(|| -> Result<(), PipelineError> {
                 if let (Some(work), Some(sum)) = (work, extent.take()) {
                     write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
                 }
@@ -278,4 +297,30 @@ pub(crate) fn sync_file(path: &Path) -> Result<(), PipelineError> {
             path: path.to_path_buf(),
             message: format!("cannot flush to disk: {e}"),
         })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn serial_time_counts_overlapping_work_once() {
+        let serial = SerialNetcdf::default();
+        let spin = || {
+            std::hint::black_box((0..10_000u64).fold(0u64, |a, b| std::hint::black_box(a ^ b)));
+        };
+        let timed = |work: &dyn Fn()| {
+            let started = Instant::now();
+            work();
+            started.elapsed()
+        };
+        let alone = timed(&|| serial.run(spin));
+        assert!(serial.total() <= alone);
+        // Work that overlaps other work adds only the span of the two together.
+        let before = serial.total();
+        let outer = timed(&|| serial.run(|| serial.run(spin)));
+        let added = serial.total() - before;
+        assert!(added <= outer && added > Duration::ZERO);
+        assert_eq!(serial.clock.lock().unwrap().inside, 0);
+    }
 }
