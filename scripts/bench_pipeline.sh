@@ -18,9 +18,17 @@
 #      and the same with --no-horizons (and, with BASELINE=path/to/another/acidscape, that
 #      binary, e.g. a build from before a change), run in turn REPEAT times, so that a load
 #      change on a shared machine hits every variant alike; medians and their ratios;
-#   4. peak RSS on the 2*STEPS-step run (memory must stay flat as steps grow).
+#   4. peak RSS on the 2*STEPS-step run (memory must stay flat as steps grow);
+#   5. against the same job written with xarray and vectorised numpy
+#      (scripts/baseline_xarray_numpy.py, pinned to one core): acidscape on 2 cores and the
+#      script run in turn REPEAT times on the same STEPS-step run, with the load seen before
+#      each (and BASELINE, when given, in the same rounds); medians, the ratios, and acidscape's
+#      serial netCDF time. With PY_STEPS=N the script
+#      reads only the first N steps and its time is scaled per cell to STEPS steps (said so).
+# PARTS chooses the parts (default "floor cores horizons memory baseline").
 # Usage: scripts/bench_pipeline.sh [DIR]
-#        (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50", REPEAT=3, BASELINE=)
+#        (env: STEPS=12, BUDGET=2GiB, LEVEL=1, SIZE="360 180 50", REPEAT=3, BASELINE=,
+#         PARTS=..., PY_STEPS=)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 dir=${1:-${TMPDIR:-/tmp}/acidscape-bench}
@@ -29,6 +37,8 @@ budget=${BUDGET:-2GiB}
 level=${LEVEL:-1}
 size=${SIZE:-360 180 50}
 repeat=${REPEAT:-3}
+parts=" ${PARTS:-floor cores horizons memory baseline} "
+part() { [[ $parts == *" $1 "* ]]; }
 export CARGO_TARGET_DIR=${CARGO_TARGET_DIR:-target}
 cargo build --release --quiet -p acidscape
 bin="$CARGO_TARGET_DIR/release/acidscape"
@@ -71,6 +81,7 @@ measure() {
     echo "$wall_median" >"$dir/$label.median"
 }
 
+if part floor; then
 echo "== I/O floor (nccopy), median of $repeat"
 reads=()
 for ((i = 1; i <= repeat; i++)); do
@@ -83,6 +94,9 @@ rm -rf "$dir/nccopy"
 read_s=$(printf '%s\n' "${reads[@]}" | median)
 printf 'read inputs (nccopy -d 0):  %.2f s for %s of input\n' "$read_s" "$(du -ch "${half[@]}" | tail -1 | cut -f1)"
 
+fi
+
+if part cores; then
 echo "== acidscape compute, $steps steps"
 out1="$dir/out-1core.nc"; out2="$dir/out-2cores.nc"
 measure "acidscape-1-core" taskset -c 0 "$bin" compute "${half[@]}" -o "$out1" --overwrite --threads 1 --memory-budget "$budget" --deflate-level "$level"
@@ -99,10 +113,16 @@ for ((i = 1; i <= repeat; i++)); do
     rm -f "$dir/nccopy-output.nc"
 done
 write_s=$(printf '%s\n' "${writes[@]}" | median)
-floor=$(echo "$read_s + $write_s" | bc -l)
 printf 'write output (nccopy -d %s -s of our output, %s): %.2f s\n' "$level" "$(du -h "$out2" | cut -f1)" "$write_s"
-printf 'I/O floor (read + write): %.2f s; acidscape on 2 cores / floor: %.2f x\n' "$floor" "$(echo "$(cat "$dir/acidscape-2-cores.median") / $floor" | bc -l)"
+if part floor; then
+    floor=$(echo "$read_s + $write_s" | bc -l)
+    printf 'I/O floor (read + write): %.2f s; acidscape on 2 cores / floor: %.2f x\n' "$floor" "$(echo "$(cat "$dir/acidscape-2-cores.median") / $floor" | bc -l)"
+fi
+rm -f "$out1" "$out2"
 
+fi
+
+if part horizons; then
 echo "== horizons and volumes: variants run in turn on 2 cores, $repeat rounds"
 variants=(horizons no-horizons)
 [[ -n "${BASELINE:-}" ]] && variants+=(baseline)
@@ -119,7 +139,71 @@ if [[ -n "${BASELINE:-}" ]]; then
     printf 'horizons / baseline (medians): %.3f\n' "$(echo "$(cat "$dir/turn-horizons.median") / $(cat "$dir/turn-baseline.median")" | bc -l)"
 fi
 
+fi
+
+if part memory; then
 echo "== memory as steps double: $((2 * steps)) steps, 2 cores"
 measure "acidscape-2x-steps" taskset -c 0,1 "$bin" compute "${all[@]}" -o "$dir/out-2x.nc" --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level"
 grep -E "^(cells|wall|stage|peak)" "$dir/acidscape-2x-steps.out"
-rm -f "$out1" "$out2" "$dir/out-2x.nc"
+rm -f "$dir/out-2x.nc"
+fi
+
+if part baseline; then
+    py_steps=${PY_STEPS:-$steps}
+    echo "== acidscape (2 cores) against xarray + numpy (1 core), in turn, $repeat rounds"
+    py_inputs=("${half[@]}")
+    if ((py_steps < steps)); then
+        # The first PY_STEPS steps of every time-split input, as the script reads whole files.
+        mkdir -p "$dir/py-inputs"
+        py_inputs=()
+        for f in "${half[@]}"; do
+            if [[ $(basename "$f") =~ _[0-9]{6}-[0-9]{6}\.nc$ ]]; then
+                ncks -O -d time,0,$((py_steps - 1)) "$f" "$dir/py-inputs/$(basename "$f")"
+                py_inputs+=("$dir/py-inputs/$(basename "$f")")
+            fi
+        done
+        echo "  the script reads $py_steps of $steps steps; its time is scaled by $steps / $py_steps (per cell)"
+    fi
+    walls_a=(); walls_b=(); walls_p=(); serials=()
+    for ((i = 1; i <= repeat; i++)); do
+        load=$(cut -d' ' -f1 /proc/loadavg)
+        /usr/bin/time -f '%e %M' -o "$dir/turn.time" taskset -c 0,1 "$bin" compute "${half[@]}" -o "$dir/out-turn.nc" \
+            --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
+            || { cat "$dir/turn.out"; exit 1; }
+        read -r wall rss <"$dir/turn.time"
+        serial=$(grep -oE 'serial netCDF [0-9.]+' "$dir/turn.out" | grep -oE '[0-9.]+$')
+        walls_a+=("$wall"); serials+=("$serial")
+        printf '  round %d acidscape   wall %7.2f s  serial netCDF %6.2f s  peak RSS %6.0f MiB (load before %s)\n' \
+            "$i" "$wall" "$serial" "$(echo "$rss / 1024" | bc -l)" "$load"
+        if [[ -n "${BASELINE:-}" ]]; then
+            load=$(cut -d' ' -f1 /proc/loadavg)
+            /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "$BASELINE" compute "${half[@]}" -o "$dir/out-turn.nc" \
+                --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
+                || { cat "$dir/turn.out"; exit 1; }
+            walls_b+=("$(cat "$dir/turn.time")")
+            printf '  round %d baseline    wall %7.2f s (load before %s)\n' "$i" "$(cat "$dir/turn.time")" "$load"
+        fi
+        load=$(cut -d' ' -f1 /proc/loadavg)
+        OMP_NUM_THREADS=1 OPENBLAS_NUM_THREADS=1 MKL_NUM_THREADS=1 \
+            /usr/bin/time -f '%e %M' -o "$dir/turn.time" taskset -c 0 python3 scripts/baseline_xarray_numpy.py \
+            "${py_inputs[@]}" -o "$dir/out-python.nc" >"$dir/turn.out" 2>&1 || { cat "$dir/turn.out"; exit 1; }
+        read -r wall rss <"$dir/turn.time"
+        walls_p+=("$(echo "$wall * $steps / $py_steps" | bc -l)")
+        printf '  round %d xarray+numpy wall %7.2f s for %d steps  peak RSS %6.0f MiB (load before %s)\n' \
+            "$i" "$wall" "$py_steps" "$(echo "$rss / 1024" | bc -l)" "$load"
+    done
+    a=$(printf '%s\n' "${walls_a[@]}" | median)
+    p=$(printf '%s\n' "${walls_p[@]}" | median)
+    sn=$(printf '%s\n' "${serials[@]}" | median)
+    printf 'acidscape, 2 cores:    median wall %7.2f s (serial netCDF %.2f s, %.0f %%)\n' \
+        "$a" "$sn" "$(echo "100 * $sn / $a" | bc -l)"
+    printf 'xarray + numpy, 1 core: median wall %7.2f s for %d steps\n' "$p" "$steps"
+    printf 'acidscape is %.2f x faster (medians); at most %.2f x while serial netCDF time stays\n' \
+        "$(echo "$p / $a" | bc -l)" "$(echo "$p / $sn" | bc -l)"
+    if [[ -n "${BASELINE:-}" ]]; then
+        b=$(printf '%s\n' "${walls_b[@]}" | median)
+        printf 'BASELINE acidscape:    median wall %7.2f s; this build is %.2f x faster; xarray + numpy / BASELINE %.2f x\n' \
+            "$b" "$(echo "$b / $a" | bc -l)" "$(echo "$p / $b" | bc -l)"
+    fi
+    rm -rf "$dir/out-turn.nc" "$dir/out-turn.extent.csv" "$dir/out-python.nc" "$dir/py-inputs"
+fi

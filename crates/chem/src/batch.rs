@@ -15,7 +15,7 @@ use crate::solver::{bracketed_halley, CarbonFixed, Equation, NonCarbonate};
 use crate::speciation::{
     check_alkalinity, check_dic, speciation, ACCEPTED_ALKALINITY, ACCEPTED_DIC, MICRO,
 };
-use crate::{solve, ChemError, Conditions, ConstantChoice, InputPair, Solution, Validity};
+use crate::{solve, ChemError, Conditions, ConstantChoice, InputPair, Output, Solution, Validity};
 use std::fmt;
 
 /// Halley iterations a lane may take before its unconverged cells go to the scalar solver. The
@@ -122,6 +122,27 @@ impl<'a> CellOutputs<'a> {
             omega_calcite: None,
             revelle_factor: None,
         }
+    }
+
+    /// Asks for `output` in `slice`; false (and nothing asked) for an output the batch does not
+    /// report: [`Output::Hydrogen`], [`Output::Dic`] and [`Output::Alkalinity`].
+    pub fn request(&mut self, output: Output, slice: &'a mut [f64]) -> bool {
+        let place = match output {
+            Output::PhTotal => &mut self.ph_total,
+            Output::PhSeawater => &mut self.ph_seawater,
+            Output::PhFree => &mut self.ph_free,
+            Output::Co2 => &mut self.co2,
+            Output::Bicarbonate => &mut self.bicarbonate,
+            Output::Carbonate => &mut self.carbonate,
+            Output::Pco2 => &mut self.pco2_uatm,
+            Output::Fco2 => &mut self.fco2_uatm,
+            Output::OmegaAragonite => &mut self.omega_aragonite,
+            Output::OmegaCalcite => &mut self.omega_calcite,
+            Output::RevelleFactor => &mut self.revelle_factor,
+            Output::Hydrogen | Output::Dic | Output::Alkalinity => return false,
+        };
+        *place = Some(slice);
+        true
     }
 
     /// The quantity slices, in the order of [`reported`].

@@ -1,6 +1,7 @@
 //! `compute`: indicator fields for a whole run, written as CF NetCDF-4.
 
 use crate::grid_uncertainty::GridUncertaintyOptions;
+use crate::progress::{format_rate, BarProgress, LogProgress};
 use crate::run_options::{ConstantOptions, RunOptions};
 use acidscape_chem::ConstantChoice;
 use acidscape_gridio::Run;
@@ -11,11 +12,10 @@ use acidscape_pipeline::{
     JobSummary, Progress, StopRequest, FLAG_BITS,
 };
 use clap::Args;
-use indicatif::{ProgressBar, ProgressStyle};
 use std::error::Error;
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 /// Environment variable that stops a job after N finished time steps, as if it had been
 /// interrupted (used by the tests of `--resume`).
@@ -246,8 +246,9 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
     format!(
         "Wrote {output}\n\
          cells: {} processed{resumed}, grid {} x {} x {} over {} time step(s), {} slab(s) per step\n\
-         wall time: {:.2} s; throughput {:.3e} cells/s\n\
-         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s (of which horizons and volumes {:.2} s), write {:.2} s\n\
+         wall time: {:.2} s; throughput {}\n\
+         stage time (stages overlap): read {:.2} s, convert+solve {:.2} s (of which horizons and volumes {:.2} s), write {:.2} s; serial netCDF {:.2} s\n\
+         {}\
          {}\n\
          {}\
          peak memory estimate: {}\n\
@@ -259,11 +260,13 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
         summary.plan.steps,
         summary.plan.slabs_per_step(),
         seconds,
-        summary.cells_processed as f64 / seconds,
+        format_rate(summary.cells_processed as f64 / seconds),
         summary.read.as_secs_f64(),
         summary.compute.as_secs_f64(),
         summary.columns.as_secs_f64(),
         summary.write.as_secs_f64(),
+        summary.serial_netcdf.as_secs_f64(),
+        serial_note(summary.serial_netcdf, summary.wall),
         flag_summary(summary, constants),
         summary
             .extent
@@ -271,6 +274,25 @@ fn summary_text(summary: &JobSummary, constants: &ConstantChoice) -> String {
             .map_or(String::new(), |e| format!("{e}horizon depths per step: the horizon_depth_* and horizon_status_* variables\n")),
         format_bytes(summary.plan.estimated_peak_bytes()),
     )
+}
+
+/// Share of the wall time in serial netCDF calls from which more threads would not help: the
+/// rest, spread over any number of threads, could shorten the run by at most a fifth.
+const SERIAL_SHARE_LIMIT: f64 = 0.8;
+
+/// One line, ending in a newline, when serial netCDF time is close to the wall time; else none.
+fn serial_note(serial_netcdf: Duration, wall: Duration) -> String {
+    let wall = wall.as_secs_f64();
+    if wall > 0.0 && serial_netcdf.as_secs_f64() >= SERIAL_SHARE_LIMIT * wall {
+        format!(
+            "more threads would not help: {:.0} % of the wall time went to netCDF reads and writes, \
+             which one process makes one at a time; more processes would (split the run by time \
+             into separate jobs)\n",
+            100.0 * serial_netcdf.as_secs_f64() / wall
+        )
+    } else {
+        String::new()
+    }
 }
 
 /// The quality flag's counts over all steps: one line per bit, with the limits behind it.
@@ -300,145 +322,21 @@ fn flag_summary(summary: &JobSummary, constants: &ConstantChoice) -> String {
     lines.join("\n")
 }
 
-const BAR_TEMPLATE: &str =
-    "{elapsed_precise} [{bar:40}] {percent:>3}% {human_pos}/{human_len} cells, {per_sec}, ETA {eta}";
-
-/// An indicatif bar for terminals.
-#[derive(Default)]
-struct BarProgress {
-    bar: Option<ProgressBar>,
-}
-
-impl Progress for BarProgress {
-    fn note(&mut self, text: &str) {
-        match &self.bar {
-            Some(bar) => bar.println(format!("acidscape: note: {text}")),
-            None => eprintln!("acidscape: note: {text}"),
-        }
-    }
-    fn begin(&mut self, total_cells: u64, done_cells: u64) {
-        let bar = ProgressBar::new(total_cells);
-        let style = ProgressStyle::with_template(BAR_TEMPLATE)
-            .unwrap_or_else(|_| ProgressStyle::default_bar());
-        bar.set_style(style.progress_chars("=> "));
-        bar.set_position(done_cells);
-        bar.reset_eta();
-        self.bar = Some(bar);
-    }
-    fn advance(&mut self, cells: u64) {
-        if let Some(bar) = &self.bar {
-            bar.inc(cells);
-        }
-    }
-    fn finish(&mut self) {
-        if let Some(bar) = self.bar.take() {
-            bar.finish_and_clear();
-        }
-    }
-}
-
-/// Plain log lines for batch jobs: every 10 s or every 5 % of the work, whichever comes
-/// first, and once after the first time step is durable.
-#[derive(Default)]
-struct LogProgress {
-    total: u64,
-    done: u64,
-    done_at_start: u64,
-    started: Option<Instant>,
-    last_line: Option<Instant>,
-    last_percent_step: u64,
-    steps: Option<(usize, usize)>,
-    first_step_reported: bool,
-}
-
-const LOG_INTERVAL: Duration = Duration::from_secs(10);
-
-impl LogProgress {
-    fn line(&mut self, now: Instant) {
-        self.last_line = Some(now);
-        self.last_percent_step = self.done * 20 / self.total;
-        let elapsed = self
-            .started
-            .map_or(0.0, |t| (now - t).as_secs_f64())
-            .max(1e-9);
-        let rate = (self.done - self.done_at_start) as f64 / elapsed;
-        let remaining = (self.total - self.done.min(self.total)) as f64 / rate.max(1e-9);
-        let steps = self
-            .steps
-            .map(|(done, total)| format!("; {done}/{total} time steps written"))
-            .unwrap_or_default();
-        eprintln!(
-            "acidscape: {:5.1}% ({}/{} cells), {:.3e} cells/s, about {:.0} s left{steps}",
-            100.0 * self.done as f64 / self.total as f64,
-            self.done,
-            self.total,
-            rate,
-            remaining
-        );
-    }
-
-    fn due(&self, now: Instant) -> bool {
-        self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL)
-            || self.done * 20 / self.total > self.last_percent_step
-    }
-}
-
-impl Progress for LogProgress {
-    fn note(&mut self, text: &str) {
-        eprintln!("acidscape: note: {text}");
-    }
-    fn begin(&mut self, total_cells: u64, done_cells: u64) {
-        self.total = total_cells.max(1);
-        self.done = done_cells;
-        self.done_at_start = done_cells;
-        self.started = Some(Instant::now());
-        self.last_line = self.started;
-        self.last_percent_step = done_cells * 20 / self.total;
-        eprintln!("acidscape: computing {total_cells} cells ({done_cells} already done)");
-    }
-    fn advance(&mut self, cells: u64) {
-        self.done += cells;
-        let now = Instant::now();
-        // Mid-step lines only on the clock; percentage lines wait for the step's end.
-        if self.last_line.is_none_or(|t| now - t >= LOG_INTERVAL) {
-            self.line(now);
-        }
-    }
-    fn step_finished(&mut self, steps_done: usize, steps_total: usize) {
-        self.steps = Some((steps_done, steps_total));
-        let now = Instant::now();
-        if !self.first_step_reported || self.due(now) {
-            self.first_step_reported = true;
-            self.line(now);
-        }
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
 
     #[test]
-    fn the_bar_template_is_valid() {
-        assert!(ProgressStyle::with_template(BAR_TEMPLATE).is_ok());
-    }
-
-    #[test]
-    fn log_lines_come_every_five_percent_and_after_the_first_step() {
-        let mut log = LogProgress::default();
-        log.begin(100, 0);
-        log.advance(3);
-        log.step_finished(1, 100);
-        assert!(log.first_step_reported);
-        let after_first = log.last_percent_step;
-        log.advance(1);
-        log.step_finished(2, 100);
-        assert_eq!(
-            log.last_percent_step, after_first,
-            "4 % is not yet a 5 % step"
+    fn the_note_on_threads_comes_only_when_netcdf_takes_most_of_the_wall_time() {
+        let secs = Duration::from_secs_f64;
+        assert_eq!(serial_note(secs(7.0), secs(10.0)), "");
+        let note = serial_note(secs(8.5), secs(10.0));
+        assert!(
+            note.starts_with("more threads would not help: 85 %"),
+            "{note}"
         );
-        log.advance(2);
-        log.step_finished(3, 100);
-        assert_eq!(log.last_percent_step, 1, "6 % crosses the first 5 % step");
+        assert!(note.contains("more processes would") && note.ends_with('\n'));
+        assert!(!serial_note(secs(8.0), secs(10.0)).is_empty());
+        assert_eq!(serial_note(secs(0.0), secs(0.0)), "");
     }
 }

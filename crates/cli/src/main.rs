@@ -6,6 +6,7 @@ mod compute;
 mod describe;
 mod draw;
 mod grid_uncertainty;
+mod progress;
 mod run_options;
 mod samples;
 

@@ -120,6 +120,7 @@ pub fn practical_from_absolute(absolute_g_kg: f64) -> f64 {
 /// let atg = acidscape_gridio::seawater::adiabatic_lapse_rate_ipts68(40.0, 40.0, 10000.0);
 /// assert!((atg - 3.255976e-4).abs() < 5e-11);
 /// ```
+#[inline(always)]
 pub fn adiabatic_lapse_rate_ipts68(s: f64, t68: f64, p: f64) -> f64 {
     let ds = s - 35.0;
     let t = t68;
@@ -140,6 +141,7 @@ pub fn adiabatic_lapse_rate_ipts68(s: f64, t68: f64, p: f64) -> f64 {
 /// let theta = acidscape_gridio::seawater::potential_temperature_ipts68(40.0, 40.0, 10000.0, 0.0);
 /// assert!((theta - 36.89073).abs() < 5e-6);
 /// ```
+#[inline(always)]
 pub fn potential_temperature_ipts68(s: f64, t68: f64, p: f64, p_ref: f64) -> f64 {
     let h = p_ref - p;
     let mut xk = h * adiabatic_lapse_rate_ipts68(s, t68, p);
@@ -222,6 +224,60 @@ pub fn in_situ_from_potential(practical: f64, theta90: f64, p: f64) -> Result<f6
         quantity: "potential temperature",
         value: theta90,
     })
+}
+
+/// [`in_situ_from_potential`] for N cells side by side: the same steps on each, so each cell's
+/// result is bit for bit the scalar one, but the cells' evaluations are independent chains the
+/// CPU overlaps (one cell's Runge–Kutta steps wait on each other; eight cells' do not). `None`
+/// where the scalar function returns an error (no convergence); NaN for non-finite inputs.
+pub fn in_situ_from_potential_lanes<const N: usize>(
+    practical: &[f64; N],
+    theta90: &[f64; N],
+    p: &[f64; N],
+) -> [Option<f64>; N] {
+    let tolerance = NEWTON_TOLERANCE * T68_PER_T90;
+    let mut theta68 = [0.0; N];
+    let mut t68 = [0.0; N];
+    for i in 0..N {
+        theta68[i] = theta90[i] * T68_PER_T90;
+        t68[i] = potential_temperature_ipts68(practical[i], theta68[i], 0.0, p[i]);
+    }
+    let mut result = [None; N];
+    let mut active = [true; N];
+    for (i, active) in active.iter_mut().enumerate() {
+        if !(theta90[i].is_finite() && practical[i].is_finite() && p[i].is_finite()) {
+            (result[i], *active) = (Some(f64::NAN), false);
+        }
+    }
+    for _ in 0..8 {
+        let mut f = [0.0; N];
+        for i in 0..N {
+            f[i] = potential_temperature_ipts68(practical[i], t68[i], p[i], 0.0) - theta68[i];
+        }
+        let mut any_active = false;
+        for i in 0..N {
+            if !active[i] {
+                continue;
+            }
+            if f[i].abs() < tolerance {
+                (result[i], active[i]) = (Some(t68[i] / T68_PER_T90), false);
+                continue;
+            }
+            let step = f[i] / potential_temperature_slope(practical[i], t68[i], theta68[i], p[i]);
+            t68[i] -= step;
+            if !t68[i].is_finite() {
+                active[i] = false;
+            } else if step.abs() * SLOPE_RELATIVE_ERROR_BOUND < tolerance {
+                (result[i], active[i]) = (Some(t68[i] / T68_PER_T90), false);
+            } else {
+                any_active = true;
+            }
+        }
+        if !any_active {
+            break;
+        }
+    }
+    result
 }
 
 /// TEOS-10 potential temperature \[°C\] from Conservative Temperature by inverting gsw ct_from_pt.
@@ -339,6 +395,18 @@ pub fn in_situ_state(
     practical: f64,
     p: f64,
 ) -> Result<InSituState, SeawaterError> {
+    in_situ_state_knowing(kind, temperature, practical, p, None)
+}
+
+/// [`in_situ_state`], given the in-situ temperature of a potential temperature when it is
+/// already known (from [`in_situ_from_potential_lanes`]); ignored for other kinds.
+pub fn in_situ_state_knowing(
+    kind: TemperatureKind,
+    temperature: f64,
+    practical: f64,
+    p: f64,
+    in_situ: Option<f64>,
+) -> Result<InSituState, SeawaterError> {
     if practical < 0.0 {
         return Err(SeawaterError::NegativeSalinity {
             salinity: practical,
@@ -351,7 +419,10 @@ pub fn in_situ_state(
             (temperature, conservative_from_potential(sa, theta)?)
         }
         TemperatureKind::Potential => (
-            in_situ_from_potential(practical, temperature, p)?,
+            match in_situ {
+                Some(t) => t,
+                None => in_situ_from_potential(practical, temperature, p)?,
+            },
             conservative_from_potential(sa, temperature)?,
         ),
         TemperatureKind::Conservative => {
@@ -395,6 +466,29 @@ mod tests {
         }
         eprintln!("largest relative error of d theta/d t: {worst:.2e}");
         assert!(worst < 0.1 * SLOPE_RELATIVE_ERROR_BOUND, "{worst:e}");
+    }
+
+    #[test]
+    fn cells_side_by_side_get_the_scalar_in_situ_temperature_bit_for_bit() {
+        // Synthetic cells over the oceanic range, with a non-finite one in the lane group.
+        for (k, p0) in [0.0, 800.0, 3000.0, 6000.0, 11000.0]
+            .into_iter()
+            .enumerate()
+        {
+            let s: [f64; 8] = std::array::from_fn(|i| 30.0 + i as f64);
+            let theta: [f64; 8] = std::array::from_fn(|i| -1.9 + 5.0 * i as f64 + k as f64);
+            let mut p: [f64; 8] = std::array::from_fn(|i| p0 + 37.0 * i as f64);
+            p[5] = f64::NAN;
+            let lanes = in_situ_from_potential_lanes(&s, &theta, &p);
+            for i in 0..8 {
+                let scalar = in_situ_from_potential(s[i], theta[i], p[i]).ok();
+                assert_eq!(
+                    lanes[i].map(f64::to_bits),
+                    scalar.map(f64::to_bits),
+                    "cell {i} at {p0} dbar"
+                );
+            }
+        }
     }
 
     #[test]

@@ -15,6 +15,9 @@ use crate::{DensityChoice, SlabInputs};
 use rayon::prelude::*;
 use std::ops::Range;
 
+/// Cells converted side by side (see [`seawater::in_situ_from_potential_lanes`]).
+const LANES: usize = 8;
+
 impl Run {
     /// Reads and converts one slab: time step `step`, all levels, rows `rows`, all columns.
     pub fn read_slab(&self, step: usize, rows: Range<usize>) -> Result<SlabInputs> {
@@ -134,54 +137,76 @@ impl Run {
         let mut density_kg_m3 = vec![0.0; cells];
         (
             (
-                temperature_c.par_iter_mut(),
-                salinity.par_iter_mut(),
-                density_kg_m3.par_iter_mut(),
-                pressure_dbar.par_iter(),
+                temperature_c.par_chunks_mut(LANES),
+                salinity.par_chunks_mut(LANES),
+                density_kg_m3.par_chunks_mut(LANES),
+                pressure_dbar.par_chunks(LANES),
             ),
             (
-                dic.par_iter_mut(),
-                alkalinity.par_iter_mut(),
-                phosphate.par_iter_mut(),
-                silicate.par_iter_mut(),
+                dic.par_chunks_mut(LANES),
+                alkalinity.par_chunks_mut(LANES),
+                phosphate.par_chunks_mut(LANES),
+                silicate.par_chunks_mut(LANES),
             ),
         )
             .into_par_iter()
-            .with_min_len(256)
+            .with_min_len(32)
             .for_each(|((t, s, rho, p), (dic, alk, po4, si))| {
-                let p = *p;
-                let sp = match salinity_conversion {
-                    (SalinityKind::Practical, _) => *s * salinity_scale,
-                    (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
-                        seawater::practical_from_absolute(*s * to_g_per_kg)
-                    }
-                    (SalinityKind::Absolute, SalinityUnits::Practical) => {
-                        seawater::practical_from_absolute(*s)
-                    }
-                };
-                let t_file = t_scale.to_celsius(*t);
-                let (t_situ, density) = if t_file.is_finite() && sp.is_finite() && p.is_finite() {
-                    in_situ_temperature_and_density(self.density, t_kind, t_file, sp, p)
-                } else {
-                    let reference = match self.density {
-                        DensityChoice::Reference(rho) => rho,
-                        DensityChoice::InSitu => f64::NAN,
+                let cells = t.len();
+                let (mut sp, mut t_file, mut pressure) = ([0.0; LANES], [0.0; LANES], [0.0; LANES]);
+                for i in 0..cells {
+                    sp[i] = match salinity_conversion {
+                        (SalinityKind::Practical, _) => s[i] * salinity_scale,
+                        (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
+                            seawater::practical_from_absolute(s[i] * to_g_per_kg)
+                        }
+                        (SalinityKind::Absolute, SalinityUnits::Practical) => {
+                            seawater::practical_from_absolute(s[i])
+                        }
                     };
-                    (f64::NAN, reference)
-                };
-                *s = sp;
-                *t = t_situ;
-                *rho = density;
-                let convert = |units: Option<Concentration>, v: f64| {
-                    units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
-                };
-                *dic = convert(dic_units, *dic);
-                *alk = convert(alk_units, *alk);
-                if po4_units.is_some() {
-                    *po4 = convert(po4_units, *po4);
+                    t_file[i] = t_scale.to_celsius(t[i]);
+                    pressure[i] = p[i];
                 }
-                if si_units.is_some() {
-                    *si = convert(si_units, *si);
+                // The costliest step, potential to in-situ temperature, for the cells side by side.
+                let known = match t_kind {
+                    TemperatureKind::Potential => {
+                        seawater::in_situ_from_potential_lanes(&sp, &t_file, &pressure)
+                    }
+                    _ => [None; LANES],
+                };
+                for i in 0..cells {
+                    let (sp, t_file, p) = (sp[i], t_file[i], pressure[i]);
+                    let (t_situ, density) = if t_file.is_finite() && sp.is_finite() && p.is_finite()
+                    {
+                        in_situ_temperature_and_density(
+                            self.density,
+                            t_kind,
+                            t_file,
+                            sp,
+                            p,
+                            known[i],
+                        )
+                    } else {
+                        let reference = match self.density {
+                            DensityChoice::Reference(rho) => rho,
+                            DensityChoice::InSitu => f64::NAN,
+                        };
+                        (f64::NAN, reference)
+                    };
+                    s[i] = sp;
+                    t[i] = t_situ;
+                    rho[i] = density;
+                    let convert = |units: Option<Concentration>, v: f64| {
+                        units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
+                    };
+                    dic[i] = convert(dic_units, dic[i]);
+                    alk[i] = convert(alk_units, alk[i]);
+                    if po4_units.is_some() {
+                        po4[i] = convert(po4_units, po4[i]);
+                    }
+                    if si_units.is_some() {
+                        si[i] = convert(si_units, si[i]);
+                    }
                 }
             });
         SlabInputs {
@@ -321,14 +346,20 @@ fn in_situ_temperature_and_density(
     temperature: f64,
     practical: f64,
     p: f64,
+    known: Option<f64>,
 ) -> (f64, f64) {
-    let in_situ_only = || seawater::in_situ_temperature(kind, temperature, practical, p);
+    let in_situ_only = || match known {
+        Some(t) => Ok(t),
+        None => seawater::in_situ_temperature(kind, temperature, practical, p),
+    };
     match density {
         DensityChoice::Reference(rho) => (in_situ_only().unwrap_or(f64::NAN), rho),
         // One pass gives both (saves a potential-temperature evaluation per cell).
-        DensityChoice::InSitu => match seawater::in_situ_state(kind, temperature, practical, p) {
-            Ok(state) => (state.temperature_c, state.density_kg_m3),
-            Err(_) => (in_situ_only().unwrap_or(f64::NAN), f64::NAN),
-        },
+        DensityChoice::InSitu => {
+            match seawater::in_situ_state_knowing(kind, temperature, practical, p, known) {
+                Ok(state) => (state.temperature_c, state.density_kg_m3),
+                Err(_) => (in_situ_only().unwrap_or(f64::NAN), f64::NAN),
+            }
+        }
     }
 }

@@ -1,13 +1,25 @@
 //! Solving every cell of a slab in parallel, with a quality flag per cell.
+//!
+//! [`solve_slab`] with [`SlabSolver::Kernel`] gathers each task's solvable cells into the batch
+//! kernel's layout ([`acidscape_chem::solve_cells`], cells in SIMD lanes) and scatters its results;
+//! [`SlabSolver::ByCell`] calls [`acidscape_chem::solve`] cell by cell, the reference the kernel
+//! path is tested against. Both give every cell the same values and flag.
 
-use crate::cells_uncertainty::{solve_cell_with_uncertainty, UncertaintyRequest};
-use crate::flags::{
-    error_flag, range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION,
-};
-use crate::indicators::{CellUncertainty, OutputField};
-use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair};
-use acidscape_chem::{Solution, Validity};
+mod by_cell;
+mod gathered;
+#[cfg(test)]
+mod tests;
+
+pub use by_cell::solve_cell;
+pub(crate) use by_cell::{solve_cell_by, solve_each_cell, CellSolved};
+
+use crate::cells_uncertainty::{UncertaintyRequest, WithUncertainty};
+use crate::flags::{range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION};
+use crate::indicators::OutputField;
+use acidscape_chem::{ConstantChoice, Validity};
 use acidscape_gridio::SlabInputs;
+use by_cell::ByCell;
+use gathered::Gathered;
 use rayon::prelude::*;
 use std::ops::Range;
 
@@ -42,22 +54,47 @@ pub struct KeepOmega {
     pub calcite: bool,
 }
 
-/// One rayon task's share: first cell index, its piece of every field, its flags, its piece
-/// of each kept saturation state.
-type Block<'a> = (
-    usize,
-    Vec<&'a mut [f32]>,
-    &'a mut [Flag],
-    [Option<&'a mut [f64]>; 2],
-);
+/// One rayon task's share of a slab: its first cell, its piece of every field, its flags, its
+/// piece of each kept saturation state.
+pub(crate) struct Block<'a> {
+    start: usize,
+    fields: Vec<&'a mut [f32]>,
+    flags: &'a mut [Flag],
+    omega: [Option<&'a mut [f64]>; 2],
+}
 
-/// Cells handed to one rayon task: large enough to amortise scheduling.
+impl Block<'_> {
+    /// Keeps a solved cell's Ω aragonite and Ω calcite where they are kept.
+    fn put_omega(&mut self, offset: usize, values: [f64; 2]) {
+        for (state, value) in self.omega.iter_mut().zip(values) {
+            if let Some(state) = state {
+                state[offset] = value;
+            }
+        }
+    }
+}
+
+/// Cells handed to one rayon task: large enough to amortise scheduling and the kernel's
+/// gathering.
 const CELLS_PER_TASK: usize = 4096;
 
-/// Solves every cell of `inputs` and fills the requested fields, the flags and the kept
-/// saturation states (in `spare`'s buffers, which may hold a previous slab's values); with
-/// `uncertainty`, every cell takes the uncertainty path (see [`crate::cells_uncertainty`]).
+/// How a slab's cells are solved.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum SlabSolver {
+    /// The batch kernel, [`acidscape_chem::solve_cells`], on each task's solvable cells.
+    #[default]
+    Kernel,
+    /// [`acidscape_chem::solve`] cell by cell: the same values and flags, several times slower;
+    /// the reference in tests.
+    ByCell,
+}
+
+/// Solves every cell of `inputs` with `solver` and fills the requested fields, the flags and the
+/// kept saturation states (in `spare`'s buffers, which may hold a previous slab's values); with
+/// `uncertainty`, every cell takes the scalar uncertainty path whatever `solver` says (the
+/// kernel gives no derivatives; see [`crate::cells_uncertainty`]).
 pub fn solve_slab(
+    solver: SlabSolver,
     inputs: &SlabInputs,
     fields: &[OutputField],
     choice: &ConstantChoice,
@@ -65,176 +102,185 @@ pub fn solve_slab(
     spare: SaturationStates,
     uncertainty: Option<&UncertaintyRequest>,
 ) -> SlabResult {
-    let cells = inputs.shape.iter().product::<usize>();
-    let mut values: Vec<Vec<f32>> = fields.iter().map(|_| vec![VALUE_FILL; cells]).collect();
-    let mut flags = vec![FLAG_FILL; cells];
-    // The kept states reuse `spare` (the previous slab's) as they are: every cell is written
-    // once below, on the rayon pool, so no pass over the slab precedes the solve.
-    let kept = |on: bool, mut buffer: Vec<f64>| {
-        if on {
-            buffer.resize(cells, 0.0);
-            buffer
-        } else {
-            Vec::new()
-        }
+    let job = SlabJob {
+        inputs,
+        fields,
+        choice,
+        keep,
     };
-    let mut omega = [
-        kept(keep.aragonite, spare.aragonite),
-        kept(keep.calcite, spare.calcite),
-    ];
+    match (uncertainty, solver) {
+        (Some(request), _) => job.solve(spare, || WithUncertainty(request)),
+        (None, SlabSolver::Kernel) => job.solve(spare, || Gathered::new(fields, keep)),
+        (None, SlabSolver::ByCell) => job.solve(spare, || ByCell),
+    }
+}
 
-    // Split every field and the flags into the same blocks, then hand blocks to rayon.
-    let mut blocks: Vec<Block<'_>> = flags
-        .chunks_mut(CELLS_PER_TASK)
-        .enumerate()
-        .map(|(i, f)| {
-            let start = i * CELLS_PER_TASK;
-            (start, Vec::with_capacity(fields.len()), f, [None, None])
-        })
-        .collect();
-    for field in values.iter_mut() {
-        for (block, chunk) in blocks.iter_mut().zip(field.chunks_mut(CELLS_PER_TASK)) {
-            block.1.push(chunk);
-        }
-    }
-    for (m, states) in omega.iter_mut().enumerate() {
-        for (block, chunk) in blocks.iter_mut().zip(states.chunks_mut(CELLS_PER_TASK)) {
-            block.3[m] = Some(chunk);
-        }
-    }
-    let counts = blocks
-        .into_par_iter()
-        .map(|(start, mut outs, flag_block, mut states)| {
-            let mut counts = FlagCounts::default();
-            for (offset, flag) in flag_block.iter_mut().enumerate() {
-                let cell = start + offset;
-                let put = |k: usize, v: f32| outs[k][offset] = v;
-                let mut omega = [f64::NAN; 2];
-                let put_omega = |aragonite: f64, calcite: f64| omega = [aragonite, calcite];
-                *flag = match uncertainty {
-                    None => solve_cell(inputs, cell, fields, choice, put, put_omega),
-                    Some(request) => solve_cell_with_uncertainty(
-                        inputs, cell, fields, choice, request, put, put_omega,
-                    ),
-                };
-                for (state, value) in states.iter_mut().zip(omega) {
-                    if let Some(state) = state {
-                        state[offset] = value;
-                    }
-                }
-                counts.record(*flag);
+/// Solves the cells of one block, with what it keeps from block to block.
+pub(crate) trait BlockSolver {
+    fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>);
+}
+
+/// What every block of a slab is solved with.
+pub(crate) struct SlabJob<'a> {
+    pub(crate) inputs: &'a SlabInputs,
+    pub(crate) fields: &'a [OutputField],
+    pub(crate) choice: &'a ConstantChoice,
+    keep: KeepOmega,
+}
+
+impl SlabJob<'_> {
+    /// Splits the slab's outputs into blocks and hands them to rayon, each task solving its
+    /// blocks with a solver made by `init` (one per task split, kept across its blocks).
+    fn solve<S: BlockSolver>(
+        &self,
+        spare: SaturationStates,
+        init: impl Fn() -> S + Sync + Send,
+    ) -> SlabResult {
+        let inputs = self.inputs;
+        let field_count = self.fields.len();
+        let cells = inputs.shape.iter().product::<usize>();
+        let mut values: Vec<Vec<f32>> = (0..field_count).map(|_| vec![VALUE_FILL; cells]).collect();
+        let mut flags = vec![FLAG_FILL; cells];
+        // The kept states reuse `spare` (the previous slab's) as they are: every cell is written
+        // once, on the rayon pool, so no pass over the slab precedes the solve.
+        let kept = |on: bool, mut buffer: Vec<f64>| {
+            if on {
+                buffer.resize(cells, 0.0);
+                buffer
+            } else {
+                Vec::new()
             }
-            counts
-        })
-        .reduce(FlagCounts::default, |mut a, b| {
-            a += b;
-            a
-        });
-    SlabResult {
-        step: inputs.step,
-        rows: inputs.rows.clone(),
-        shape: inputs.shape,
-        fields: values,
-        flags,
-        counts,
-        omega: SaturationStates {
-            aragonite: std::mem::take(&mut omega[0]),
-            calcite: std::mem::take(&mut omega[1]),
-        },
-    }
-}
-
-/// Solves one cell; calls `put(field index, value)` for each field and `put_omega(Ω
-/// aragonite, Ω calcite)` when solved, and returns the flag (or [`FLAG_FILL`] for land: every
-/// primary input missing).
-pub fn solve_cell(
-    inputs: &SlabInputs,
-    cell: usize,
-    fields: &[OutputField],
-    choice: &ConstantChoice,
-    put: impl FnMut(usize, f32),
-    put_omega: impl FnMut(f64, f64),
-) -> Flag {
-    let solve = |pair, conditions: &Conditions| Ok((solve(pair, conditions, choice)?, None));
-    solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
-}
-
-/// What a cell's solver gives: the solution, and the uncertainties of its outputs when they
-/// are asked for.
-pub(crate) type CellSolved = Result<(Solution, Option<CellUncertainty>), ChemError>;
-
-/// As [`solve_cell`], solving the cell's checked inputs with `solve`.
-pub(crate) fn solve_cell_by(
-    inputs: &SlabInputs,
-    cell: usize,
-    fields: &[OutputField],
-    choice: &ConstantChoice,
-    mut put: impl FnMut(usize, f32),
-    mut put_omega: impl FnMut(f64, f64),
-    solve: impl FnOnce(InputPair, &Conditions) -> CellSolved,
-) -> Flag {
-    let temperature_c = inputs.temperature_c[cell];
-    let salinity = inputs.salinity[cell];
-    let dic = inputs.dic[cell];
-    let alkalinity = inputs.alkalinity[cell];
-    if [temperature_c, salinity, dic, alkalinity]
-        .iter()
-        .all(|v| v.is_nan())
-    {
-        return FLAG_FILL;
-    }
-    let conditions = Conditions {
-        temperature_c,
-        salinity,
-        pressure_dbar: inputs.pressure_dbar[cell],
-        phosphate: inputs.phosphate[cell],
-        silicate: inputs.silicate[cell],
-    };
-    // Range bits for a cell that was not solved: from its conditions, when they are known.
-    let ranges = |validity: Validity| {
-        range_flag(validity.out_of_range(temperature_c, salinity, conditions.pressure_dbar))
-    };
-    let assessed = || {
-        let known = [temperature_c, salinity, conditions.pressure_dbar]
-            .iter()
-            .all(|v| v.is_finite());
-        if known {
-            ranges(Validity::assess(
-                temperature_c,
-                salinity,
-                conditions.pressure_dbar,
-                choice,
-            ))
-        } else {
-            0
-        }
-    };
-    let density = inputs.density_kg_m3[cell];
-    let inputs_finite = [
-        temperature_c,
-        salinity,
-        dic,
-        alkalinity,
-        conditions.pressure_dbar,
-        conditions.phosphate,
-        conditions.silicate,
-    ]
-    .iter()
-    .all(|v| v.is_finite());
-    let density_usable = density.is_finite() && density > 0.0;
-    if !inputs_finite || (!density_usable && fields.iter().any(|f| f.needs_density())) {
-        return MISSING_INPUT | assessed();
-    }
-    let (solution, uncertainties) =
-        match solve(InputPair::AlkalinityDic { alkalinity, dic }, &conditions) {
-            Ok(solved) => solved,
-            Err(error) => return error_flag(&error) | assessed(),
         };
+        let mut omega = [
+            kept(self.keep.aragonite, spare.aragonite),
+            kept(self.keep.calcite, spare.calcite),
+        ];
+
+        let mut blocks: Vec<Block<'_>> = flags
+            .chunks_mut(CELLS_PER_TASK)
+            .enumerate()
+            .map(|(i, flags)| Block {
+                start: i * CELLS_PER_TASK,
+                fields: Vec::with_capacity(field_count),
+                flags,
+                omega: [None, None],
+            })
+            .collect();
+        for field in values.iter_mut() {
+            for (block, chunk) in blocks.iter_mut().zip(field.chunks_mut(CELLS_PER_TASK)) {
+                block.fields.push(chunk);
+            }
+        }
+        for (m, states) in omega.iter_mut().enumerate() {
+            for (block, chunk) in blocks.iter_mut().zip(states.chunks_mut(CELLS_PER_TASK)) {
+                block.omega[m] = Some(chunk);
+            }
+        }
+        let counts = blocks
+            .into_par_iter()
+            .map_init(init, |solver, mut block| {
+                for states in block.omega.iter_mut().flatten() {
+                    states.fill(f64::NAN);
+                }
+                solver.solve_block(self, &mut block);
+                let mut counts = FlagCounts::default();
+                for flag in block.flags.iter() {
+                    counts.record(*flag);
+                }
+                counts
+            })
+            .reduce(FlagCounts::default, |mut a, b| {
+                a += b;
+                a
+            });
+        SlabResult {
+            step: inputs.step,
+            rows: inputs.rows.clone(),
+            shape: inputs.shape,
+            fields: values,
+            flags,
+            counts,
+            omega: SaturationStates {
+                aragonite: std::mem::take(&mut omega[0]),
+                calcite: std::mem::take(&mut omega[1]),
+            },
+        }
+    }
+}
+
+/// The flag of a cell that cannot be solved whatever the chemistry says: [`FLAG_FILL`] for land
+/// (every primary input missing), [`MISSING_INPUT`] (with its range bits) for a wet cell with an
+/// input missing or not finite, or without a usable density when a field needs one.
+fn unsolvable(
+    inputs: &SlabInputs,
+    cell: usize,
+    needs_density: bool,
+    choice: &ConstantChoice,
+) -> Option<Flag> {
+    let primary = [
+        inputs.temperature_c[cell],
+        inputs.salinity[cell],
+        inputs.dic[cell],
+        inputs.alkalinity[cell],
+    ];
+    if primary.iter().all(|v| v.is_nan()) {
+        return Some(FLAG_FILL);
+    }
+    let others = [
+        inputs.pressure_dbar[cell],
+        inputs.phosphate[cell],
+        inputs.silicate[cell],
+    ];
+    let inputs_finite = primary.iter().chain(&others).all(|v| v.is_finite());
+    let density = inputs.density_kg_m3[cell];
+    let density_usable = density.is_finite() && density > 0.0;
+    if !inputs_finite || (needs_density && !density_usable) {
+        return Some(MISSING_INPUT | assessed_ranges(inputs, cell, choice));
+    }
+    None
+}
+
+/// Range bits of a cell that was not solved: from its conditions, when they are known.
+fn assessed_ranges(inputs: &SlabInputs, cell: usize, choice: &ConstantChoice) -> Flag {
+    let (t, s, p) = conditions(inputs, cell);
+    if [t, s, p].iter().all(|v| v.is_finite()) {
+        ranges(Validity::assess(t, s, p, choice), inputs, cell)
+    } else {
+        0
+    }
+}
+
+/// The range bits of `validity` at the cell's conditions. Only breaches that can move an
+/// indicator count (KF's range does not: `Validity::MATERIAL`).
+fn ranges(validity: Validity, inputs: &SlabInputs, cell: usize) -> Flag {
+    let (t, s, p) = conditions(inputs, cell);
+    range_flag(validity.out_of_range(t, s, p))
+}
+
+/// Temperature, salinity and pressure of a cell.
+fn conditions(inputs: &SlabInputs, cell: usize) -> (f64, f64, f64) {
+    (
+        inputs.temperature_c[cell],
+        inputs.salinity[cell],
+        inputs.pressure_dbar[cell],
+    )
+}
+
+/// Writes a solved cell: every field from `value(field index)` (in the field's units), and Ω
+/// (aragonite, calcite) through `put_omega`; or, when an indicator is not finite, the fill in
+/// every field and [`NO_PHYSICAL_SOLUTION`]. An uncertainty that cannot be propagated is fill
+/// on its own and leaves the indicators standing. Returns the flag, given the range bits.
+fn write_solved(
+    fields: &[OutputField],
+    range_bits: Flag,
+    value: impl Fn(usize) -> f64,
+    mut put: impl FnMut(usize, f32),
+    put_omega: impl FnOnce(),
+) -> Flag {
     let mut all_finite = true;
     for (k, field) in fields.iter().enumerate() {
-        let value = field.cell_value(&solution, uncertainties.as_ref(), density);
+        let value = value(k);
         if field.uncertainty.is_some() && !value.is_finite() {
-            // An uncertainty that cannot be propagated leaves the indicators standing.
             put(k, VALUE_FILL);
             continue;
         }
@@ -245,9 +291,8 @@ pub(crate) fn solve_cell_by(
         for k in 0..fields.len() {
             put(k, VALUE_FILL);
         }
-        return NO_PHYSICAL_SOLUTION | ranges(solution.validity);
+        return NO_PHYSICAL_SOLUTION | range_bits;
     }
-    put_omega(solution.omega_aragonite, solution.omega_calcite);
-    // Only breaches that can move an indicator count (KF's range does not: Validity::MATERIAL).
-    ranges(solution.validity)
+    put_omega();
+    range_bits
 }

@@ -7,7 +7,7 @@
 //! describe the cell's temperature, salinity and pressure whenever those are present, whatever
 //! the outcome. Breaches of KF's range set no bit (see `Validity::MATERIAL`).
 
-use acidscape_chem::{ChemError, ConstantChoice, OutOfRange};
+use acidscape_chem::{CellStatus, ChemError, ConstantChoice, OutOfRange};
 use std::ops::AddAssign;
 
 /// Stored type of the flag variable: a signed 16-bit integer, because CF 1.8 allows no
@@ -130,9 +130,16 @@ pub fn range_flag(out_of_range: OutOfRange) -> Flag {
 
 /// The outcome bit of a chemistry error.
 pub fn error_flag(error: &ChemError) -> Flag {
-    match error {
-        ChemError::InvalidInput { .. } => INPUT_OUTSIDE_SEAWATER_LIMITS,
-        ChemError::NoSolution { .. } => NO_PHYSICAL_SOLUTION,
+    outcome_flag(CellStatus::of_error(error))
+}
+
+/// The outcome bit of the batch kernel's status of a cell (none for a solved cell).
+pub fn outcome_flag(status: CellStatus) -> Flag {
+    match status {
+        CellStatus::Solved => 0,
+        CellStatus::MissingInput => MISSING_INPUT,
+        CellStatus::InvalidInput => INPUT_OUTSIDE_SEAWATER_LIMITS,
+        CellStatus::NoSolution => NO_PHYSICAL_SOLUTION,
     }
 }
 

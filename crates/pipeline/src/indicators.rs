@@ -7,7 +7,7 @@
 mod uncertainty;
 
 use crate::PipelineError;
-use acidscape_chem::Solution;
+use acidscape_chem::{Output, Solution};
 use std::borrow::Cow;
 use std::fmt;
 use std::str::FromStr;
@@ -433,23 +433,19 @@ impl OutputField {
 
     /// The field's value for a solved cell; `density_kg_m3` converts per-mass to per-volume.
     pub fn value(&self, solution: &Solution, density_kg_m3: f64) -> f64 {
+        self.value_of_output(self.output().value(solution), density_kg_m3)
+    }
+
+    /// The chemistry's output the field is made from.
+    pub fn output(&self) -> Output {
+        self.quantity.output()
+    }
+
+    /// The field's value from its [`OutputField::output`] as the chemistry gives it.
+    pub fn value_of_output(&self, value: f64, density_kg_m3: f64) -> f64 {
         match self.quantity {
-            Quantity::Ph(PhScale::Total) => solution.ph_total,
-            Quantity::Ph(PhScale::Seawater) => solution.ph_seawater,
-            Quantity::Ph(PhScale::Free) => solution.ph_free,
-            Quantity::Concentration(species, unit) => {
-                let micromol_per_kg = match species {
-                    Species::Carbonate => solution.carbonate,
-                    Species::Bicarbonate => solution.bicarbonate,
-                    Species::Co2Star => solution.co2,
-                };
-                unit.convert_micromol_per_kg(micromol_per_kg, density_kg_m3)
-            }
-            Quantity::Pco2 => solution.pco2_uatm,
-            Quantity::Fco2 => solution.fco2_uatm,
-            Quantity::OmegaAragonite => solution.omega_aragonite,
-            Quantity::OmegaCalcite => solution.omega_calcite,
-            Quantity::RevelleFactor => solution.revelle_factor,
+            Quantity::Concentration(_, unit) => unit.convert_micromol_per_kg(value, density_kg_m3),
+            _ => value,
         }
     }
 

@@ -90,6 +90,9 @@ pub struct JobSummary {
     /// Of `compute`: the column analysis (horizons, thicknesses, corrosive extent).
     pub columns: Duration,
     pub write: Duration,
+    /// Time inside netCDF reads and writes (the first read, the stream's, closing the output):
+    /// serial whatever the number of threads, as libnetcdf serves one call at a time.
+    pub serial_netcdf: Duration,
     /// The corrosive-extent table written beside the output, with its first and last steps.
     pub extent: Option<ExtentOverview>,
 }
@@ -358,8 +361,10 @@ pub fn run_job(
     );
     progress.finish();
     let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
+    let finish_started = Instant::now();
     let extent = finish_job(run, &job, work.as_ref(), file, &record)
         .map_err(|e| ended.kept(e, plan.steps))?;
+    let finish = finish_started.elapsed();
     let _ = fs::remove_file(&record_path);
     sync_parent(&output);
 
@@ -374,6 +379,7 @@ pub fn run_job(
         compute: times.compute,
         columns: times.columns,
         write: times.write,
+        serial_netcdf: first_read + times.netcdf + finish,
         extent,
     })
 }

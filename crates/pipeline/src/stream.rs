@@ -1,7 +1,7 @@
 //! The overlapping read → solve → write loop of a job, with durable progress after every
 //! finished time step and a clean stop when asked.
 
-use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult};
+use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult, SlabSolver};
 use crate::column_output::{write_columns, write_extent_step};
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
@@ -17,6 +17,7 @@ use std::fs;
 use std::ops::Range;
 use std::path::Path;
 use std::sync::mpsc::sync_channel;
+use std::sync::{Mutex, PoisonError};
 use std::time::{Duration, Instant};
 
 /// Where a stream writes, and where it records its progress.
@@ -66,7 +67,60 @@ pub(crate) struct StageTimes {
     /// Of `compute`: the column analysis (horizons, thicknesses, extent).
     pub columns: Duration,
     pub write: Duration,
+    /// Time with netCDF reads or writes under way (see [`SerialNetcdf`]).
+    pub netcdf: Duration,
     pub cells: u64,
+}
+
+/// The job's serial netCDF time. libnetcdf serves one call at a time (the netcdf crate holds one
+/// global lock), so the time during which the reader or the writer is inside netCDF work is
+/// the part of the run that no number of threads can shorten. Only entries and exits are
+/// recorded (a lock held for the whole work would also keep the other side from its own
+/// non-netCDF work, and cost memory: measured).
+#[derive(Debug, Default)]
+pub(crate) struct SerialNetcdf {
+    clock: Mutex<SerialClock>,
+}
+
+#[derive(Debug, Default)]
+struct SerialClock {
+    /// Sides inside netCDF work now, and since when at least one has been.
+    inside: u32,
+    since: Option<Instant>,
+    /// Time with at least one side inside.
+    busy: Duration,
+}
+
+impl SerialNetcdf {
+    /// Runs `work` (netCDF reads or writes) and records its time.
+    pub(crate) fn run<T>(&self, work: impl FnOnce() -> T) -> T {
+        let started = Instant::now();
+        {
+            let mut clock = self.clock.lock().unwrap_or_else(PoisonError::into_inner);
+            if clock.inside == 0 {
+                clock.since = Some(started);
+            }
+            clock.inside += 1;
+        }
+        let result = work();
+        let ended = Instant::now();
+        let mut clock = self.clock.lock().unwrap_or_else(PoisonError::into_inner);
+        clock.inside -= 1;
+        if clock.inside == 0 {
+            if let Some(since) = clock.since.take() {
+                clock.busy += ended - since;
+            }
+        }
+        result
+    }
+
+    /// The time with netCDF work under way so far.
+    pub(crate) fn total(&self) -> Duration {
+        self.clock
+            .lock()
+            .unwrap_or_else(PoisonError::into_inner)
+            .busy
+    }
 }
 
 /// A solved slab with its column analysis, on its way to the writer.
@@ -90,8 +144,10 @@ fn solve(
     let inputs = run.convert_slab(raw);
     let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
     let buffers = std::mem::take(spare);
+    let solver = SlabSolver::Kernel;
     let uncertainty = options.uncertainty.as_ref();
     let mut cells = solve_slab(
+        solver,
         &inputs,
         fields,
         &options.constants,
@@ -124,6 +180,7 @@ pub(crate) fn stream(
 ) -> Result<StageTimes, PipelineError> {
     let stop = &options.stop;
     let mut times = StageTimes::default();
+    let serial = &SerialNetcdf::default();
     std::thread::scope(|scope| -> Result<StageTimes, PipelineError> {
         // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
         // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
@@ -141,7 +198,7 @@ pub(crate) fn stream(
                     break;
                 }
                 let t = Instant::now();
-                let slab = run.read_raw_slab(step, rows);
+                let slab = serial.run(|| run.read_raw_slab(step, rows));
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -171,13 +228,14 @@ pub(crate) fn stream(
             options,
             work,
         };
-        let written = write_results(result_rx, &stages, sink, progress, &mut times);
+        let written = write_results(result_rx, &stages, sink, progress, &mut times, serial);
         times.read = reader
             .join()
             .map_err(|_| PipelineError::Internal("the reader thread panicked".into()))?;
         (times.compute, times.columns) = solver
             .join()
             .map_err(|_| PipelineError::Internal("the solver thread panicked".into()))?;
+        times.netcdf = serial.total();
         written.map(|()| times)
     })
 }
@@ -197,6 +255,7 @@ fn write_results(
     sink: Sink<'_>,
     progress: &mut dyn Progress,
     times: &mut StageTimes,
+    serial: &SerialNetcdf,
 ) -> Result<(), PipelineError> {
     let Stages {
         plan,
@@ -218,18 +277,23 @@ fn write_results(
             columns,
         } = item?;
         let t = Instant::now();
-        write_slab(file, partial, layout, fields, &result)?;
-        if let (Some(work), Some(columns)) = (work, columns) {
-            let with_step_zero = ledger.peers_on_step_zero();
-            write_columns(
-                file,
-                partial,
-                layout,
-                work,
-                &columns,
-                plan.shape,
-                with_step_zero,
-            )?;
+        let with_step_zero = ledger.peers_on_step_zero();
+        serial.run(|| -> Result<(), PipelineError> {
+            write_slab(file, partial, layout, fields, &result)?;
+            if let (Some(work), Some(columns)) = (work, &columns) {
+                write_columns(
+                    file,
+                    partial,
+                    layout,
+                    work,
+                    columns,
+                    plan.shape,
+                    with_step_zero,
+                )?;
+            }
+            Ok(())
+        })?;
+        if let Some(columns) = columns {
             match &mut extent {
                 None => extent = Some(columns.extent),
                 Some(sum) => sum
@@ -245,11 +309,13 @@ fn write_results(
         if result.rows.end == plan.shape[1] {
             // A finished time step: its extent, then make it durable and record it.
             let t = Instant::now();
-            if let (Some(work), Some(sum)) = (work, extent.take()) {
-                write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
-            }
-            nc(file.sync(), partial, || {
-                format!("flushing time step {}", result.step + 1)
+            serial.run(|| -> Result<(), PipelineError> {
+                if let (Some(work), Some(sum)) = (work, extent.take()) {
+                    write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
+                }
+                nc(file.sync(), partial, || {
+                    format!("flushing time step {}", result.step + 1)
+                })
             })?;
             sync_file(partial)?;
             let steps_done = ledger.step_durable(result.step)?;
@@ -277,4 +343,30 @@ pub(crate) fn sync_file(path: &Path) -> Result<(), PipelineError> {
             path: path.to_path_buf(),
             message: format!("cannot flush to disk: {e}"),
         })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn serial_time_counts_overlapping_work_once() {
+        let serial = SerialNetcdf::default();
+        let spin = || {
+            std::hint::black_box((0..10_000u64).fold(0u64, |a, b| std::hint::black_box(a ^ b)));
+        };
+        let timed = |work: &dyn Fn()| {
+            let started = Instant::now();
+            work();
+            started.elapsed()
+        };
+        let alone = timed(&|| serial.run(spin));
+        assert!(serial.total() <= alone);
+        // Work that overlaps other work adds only the span of the two together.
+        let before = serial.total();
+        let outer = timed(&|| serial.run(|| serial.run(spin)));
+        let added = serial.total() - before;
+        assert!(added <= outer && added > Duration::ZERO);
+        assert_eq!(serial.clock.lock().unwrap().inside, 0);
+    }
 }

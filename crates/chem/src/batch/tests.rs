@@ -156,3 +156,33 @@ fn every_instruction_set_this_cpu_has_matches_the_scalar_solver() {
         assert_close(&run(&cells, avx512), &reference, 1e-10);
     }
 }
+
+/// `request` places each reported output where the solution's own field is (Output::value).
+#[test]
+fn each_output_asked_by_name_holds_that_output() {
+    let cells = cells();
+    let block = CellBlock::new(&cells);
+    let choice = ConstantChoice::default();
+    for output in Output::ALL {
+        let (mut status, mut validity) = (vec![CellStatus::Solved; cells.len()], vec![]);
+        validity.resize(cells.len(), Validity::default());
+        let mut values = vec![0.0; cells.len()];
+        let mut outputs = CellOutputs::new(&mut status, &mut validity);
+        let reported = outputs.request(output, &mut values);
+        let unreported = [Output::Hydrogen, Output::Dic, Output::Alkalinity];
+        assert_eq!(reported, !unreported.contains(&output), "{output:?}");
+        solve_cells(&block.inputs(), &choice, &mut outputs).unwrap();
+        if !reported {
+            continue;
+        }
+        for (i, (conditions, pair)) in cells.iter().enumerate() {
+            if status[i] != CellStatus::Solved {
+                assert!(values[i].is_nan(), "{output:?} cell {i}");
+                continue;
+            }
+            let want = output.value(&solve(*pair, conditions, &choice).unwrap());
+            let close = values[i] == want || ((values[i] - want) / want).abs() <= 1e-10;
+            assert!(close, "{output:?} cell {i}: {} vs {want}", values[i]);
+        }
+    }
+}

@@ -54,7 +54,7 @@ pub fn with_uncertainty_fields(
 
 impl Quantity {
     /// The chemistry's output this quantity is (before any change of units).
-    fn output(self) -> Output {
+    pub(super) fn output(self) -> Output {
         match self {
             Quantity::Ph(PhScale::Total) => Output::PhTotal,
             Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,

@@ -1,0 +1,101 @@
+//! The reference path: [`acidscape_chem::solve`] once per cell.
+
+use super::{assessed_ranges, ranges, unsolvable, write_solved, Block, BlockSolver, SlabJob};
+use crate::flags::{error_flag, Flag};
+use crate::indicators::{CellUncertainty, OutputField};
+use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Output, Solution};
+use acidscape_gridio::SlabInputs;
+
+/// The scalar solver, one cell after another.
+pub(super) struct ByCell;
+
+impl BlockSolver for ByCell {
+    fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
+        solve_each_cell(block, |cell, put, put_omega| {
+            solve_cell(job.inputs, cell, job.fields, job.choice, put, put_omega)
+        });
+    }
+}
+
+/// Solves every cell of `block` with `solve_one(cell, put, put_omega)` (the flag it returns is
+/// the cell's), keeping Ω where it is kept.
+pub(crate) fn solve_each_cell(
+    block: &mut Block<'_>,
+    solve_one: impl Fn(usize, &mut dyn FnMut(usize, f32), &mut dyn FnMut(f64, f64)) -> Flag,
+) {
+    for offset in 0..block.flags.len() {
+        let mut omega = None;
+        let outs = &mut block.fields;
+        block.flags[offset] = solve_one(
+            block.start + offset,
+            &mut |k, v| outs[k][offset] = v,
+            &mut |aragonite, calcite| omega = Some([aragonite, calcite]),
+        );
+        if let Some(values) = omega {
+            block.put_omega(offset, values);
+        }
+    }
+}
+
+/// Solves one cell; calls `put(field index, value)` for each field and `put_omega(Ω
+/// aragonite, Ω calcite)` when solved, and returns the flag (or [`crate::flags::FLAG_FILL`] for
+/// land: every primary input missing).
+pub fn solve_cell(
+    inputs: &SlabInputs,
+    cell: usize,
+    fields: &[OutputField],
+    choice: &ConstantChoice,
+    put: impl FnMut(usize, f32),
+    put_omega: impl FnMut(f64, f64),
+) -> Flag {
+    let solve = |pair, conditions: &Conditions| Ok((solve(pair, conditions, choice)?, None));
+    solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
+}
+
+/// What a cell's solver gives: the solution, and the uncertainties of its outputs when they
+/// are asked for.
+pub(crate) type CellSolved = Result<(Solution, Option<CellUncertainty>), ChemError>;
+
+/// As [`solve_cell`], solving the cell's checked inputs with `solve`.
+pub(crate) fn solve_cell_by(
+    inputs: &SlabInputs,
+    cell: usize,
+    fields: &[OutputField],
+    choice: &ConstantChoice,
+    put: impl FnMut(usize, f32),
+    mut put_omega: impl FnMut(f64, f64),
+    solve: impl FnOnce(InputPair, &Conditions) -> CellSolved,
+) -> Flag {
+    let needs_density = fields.iter().any(OutputField::needs_density);
+    if let Some(flag) = unsolvable(inputs, cell, needs_density, choice) {
+        return flag;
+    }
+    let conditions = Conditions {
+        temperature_c: inputs.temperature_c[cell],
+        salinity: inputs.salinity[cell],
+        pressure_dbar: inputs.pressure_dbar[cell],
+        phosphate: inputs.phosphate[cell],
+        silicate: inputs.silicate[cell],
+    };
+    let pair = InputPair::AlkalinityDic {
+        alkalinity: inputs.alkalinity[cell],
+        dic: inputs.dic[cell],
+    };
+    let (solution, uncertainty) = match solve(pair, &conditions) {
+        Ok(solved) => solved,
+        Err(error) => return error_flag(&error) | assessed_ranges(inputs, cell, choice),
+    };
+    let density = inputs.density_kg_m3[cell];
+    write_solved(
+        fields,
+        ranges(solution.validity, inputs, cell),
+        |k| fields[k].cell_value(&solution, uncertainty.as_ref(), density),
+        put,
+        || {
+            put_omega(
+                Output::OmegaAragonite.value(&solution),
+                Output::OmegaCalcite.value(&solution),
+            )
+        },
+    )
+}
