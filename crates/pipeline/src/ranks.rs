@@ -157,8 +157,10 @@ pub fn run_job_on_ranks(
     );
     progress.finish();
     let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
+    let closing = Instant::now();
     nc(file.close(), &partial, || "closing the file".into())
         .map_err(|e| ended.kept(e, plan.steps))?;
+    let closing = closing.elapsed();
     ranks.world.barrier();
     let extent = if ranks.rank() == 0 {
         let placed = place_on_rank_zero(run, &job.output, work.as_ref(), &record, plan.steps);
@@ -178,6 +180,8 @@ pub fn run_job_on_ranks(
         compute: times.compute,
         columns: times.columns,
         write: times.write,
+        // This rank's own: reading its steps, its share of the collective writes, closing.
+        serial_netcdf: times.netcdf + closing,
         extent,
     })
 }
