@@ -144,7 +144,24 @@ if wait "$launcher"; then
 fi
 [[ -n "$victim" ]] || fail "no rank could be killed mid-run"
 tail -n 3 "$out.log"
-check_resumed "$out" "$out.log" "one of 2 ranks killed"
+# A rank killed inside a collective write can leave the parallel HDF5 file's metadata
+# half-updated (it keeps no journal); then --resume must stop with a clear error and no
+# complete-looking output, and --overwrite must give the uninterrupted output. Seen about once
+# in five runs on this machine; either way no wrong number may come out.
+if [[ -e "$out" ]]; then fail "one of 2 ranks killed: a complete-looking output is left"; fi
+if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --resume >"$out.log.resume" 2>&1; then
+    grep -o 'resumed at time step [0-9]*' "$out.log.resume" || true
+    same "$work/slabs.nc" "$out" "one of 2 ranks killed, then --resume" "$work/slabs.log" "$out.log.resume"
+elif [[ ! -e "$out" ]] && grep -q "run the same command with --resume" "$out.log.resume"; then
+    echo "--resume stopped on the damaged partial output (as documented):"; tail -n 2 "$out.log.resume"
+    if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --overwrite >"$out.log.over" 2>&1; then
+        same "$work/slabs.nc" "$out" "one of 2 ranks killed, then --overwrite" "$work/slabs.log" "$out.log.over"
+    else
+        cat "$out.log.over"; fail "one of 2 ranks killed: --overwrite"
+    fi
+else
+    cat "$out.log.resume"; fail "one of 2 ranks killed: --resume neither continued nor stopped cleanly"
+fi
 
 echo "== the comparison fails on outputs that differ"
 "$serial" compute sample-grids/cmip-style/pathway-moderate/*.nc -o "$work/other.nc" --deflate-level 4 >/dev/null 2>&1
