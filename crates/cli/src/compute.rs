@@ -286,8 +286,8 @@ fn serial_note(serial_netcdf: Duration, wall: Duration) -> String {
     if wall > 0.0 && serial_netcdf.as_secs_f64() >= SERIAL_SHARE_LIMIT * wall {
         format!(
             "more threads would not help: {:.0} % of the wall time went to netCDF reads and writes, \
-             which one process makes one at a time; more processes would (split the run by time \
-             into separate jobs)\n",
+             which one process makes one at a time; more processes would (MPI ranks: a build with \
+             the `mpi` feature under mpirun or srun, see the README)\n",
             100.0 * serial_netcdf.as_secs_f64() / wall
         )
     } else {
