@@ -11,9 +11,9 @@ mod gathered;
 mod tests;
 
 pub use by_cell::solve_cell;
-pub(crate) use by_cell::{solve_cell_by, solve_each_cell, CellSolved};
+pub(crate) use by_cell::{solve_cell_by, CellSolved};
 
-use crate::cells_uncertainty::{UncertaintyRequest, WithUncertainty};
+use crate::cells_uncertainty::UncertaintyRequest;
 use crate::flags::{range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION};
 use crate::indicators::OutputField;
 use acidscape_chem::{ConstantChoice, Validity};
@@ -56,7 +56,7 @@ pub struct KeepOmega {
 
 /// One rayon task's share of a slab: its first cell, its piece of every field, its flags, its
 /// piece of each kept saturation state.
-pub(crate) struct Block<'a> {
+struct Block<'a> {
     start: usize,
     fields: Vec<&'a mut [f32]>,
     flags: &'a mut [Flag],
@@ -109,22 +109,21 @@ pub fn solve_slab(
         keep,
     };
     match (uncertainty, solver) {
-        (Some(request), _) => job.solve(spare, || WithUncertainty(request)),
         (None, SlabSolver::Kernel) => job.solve(spare, || Gathered::new(fields, keep)),
-        (None, SlabSolver::ByCell) => job.solve(spare, || ByCell),
+        _ => job.solve(spare, || ByCell { uncertainty }),
     }
 }
 
 /// Solves the cells of one block, with what it keeps from block to block.
-pub(crate) trait BlockSolver {
+trait BlockSolver {
     fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>);
 }
 
 /// What every block of a slab is solved with.
-pub(crate) struct SlabJob<'a> {
-    pub(crate) inputs: &'a SlabInputs,
-    pub(crate) fields: &'a [OutputField],
-    pub(crate) choice: &'a ConstantChoice,
+struct SlabJob<'a> {
+    inputs: &'a SlabInputs,
+    fields: &'a [OutputField],
+    choice: &'a ConstantChoice,
     keep: KeepOmega,
 }
 

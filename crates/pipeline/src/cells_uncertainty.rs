@@ -3,7 +3,7 @@
 //! Gattuso 2018, Marine Chemistry 207; the implicit differentiation is the chemistry crate's
 //! `standard_uncertainties`). The batch kernel gives no derivatives, so this path is scalar.
 
-use crate::cells::{solve_cell_by, solve_each_cell, Block, BlockSolver, CellSolved, SlabJob};
+use crate::cells::{solve_cell_by, CellSolved};
 use crate::flags::Flag;
 use crate::indicators::{CellUncertainty, OutputField};
 use crate::PipelineError;
@@ -240,19 +240,4 @@ pub fn solve_cell_with_uncertainty(
         Ok((solution, Some(uncertainty)))
     };
     solve_cell_by(inputs, cell, fields, choice, put, put_omega, solve)
-}
-
-/// The uncertainty path as a block solver: every cell of a block through
-/// [`solve_cell_with_uncertainty`].
-pub(crate) struct WithUncertainty<'a>(pub(crate) &'a UncertaintyRequest);
-
-impl BlockSolver for WithUncertainty<'_> {
-    fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
-        let request = self.0;
-        solve_each_cell(block, |cell, put, put_omega| {
-            solve_cell_with_uncertainty(
-                job.inputs, cell, job.fields, job.choice, request, put, put_omega,
-            )
-        });
-    }
 }

@@ -291,6 +291,25 @@ enum Quantity {
     RevelleFactor,
 }
 
+impl Quantity {
+    /// The chemistry's output this quantity is (before any change of units).
+    fn output(self) -> Output {
+        match self {
+            Quantity::Ph(PhScale::Total) => Output::PhTotal,
+            Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,
+            Quantity::Ph(PhScale::Free) => Output::PhFree,
+            Quantity::Concentration(Species::Carbonate, _) => Output::Carbonate,
+            Quantity::Concentration(Species::Bicarbonate, _) => Output::Bicarbonate,
+            Quantity::Concentration(Species::Co2Star, _) => Output::Co2,
+            Quantity::Pco2 => Output::Pco2,
+            Quantity::Fco2 => Output::Fco2,
+            Quantity::OmegaAragonite => Output::OmegaAragonite,
+            Quantity::OmegaCalcite => Output::OmegaCalcite,
+            Quantity::RevelleFactor => Output::RevelleFactor,
+        }
+    }
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Species {
     Carbonate,

@@ -1,38 +1,36 @@
 //! The reference path: [`acidscape_chem::solve`] once per cell.
 
 use super::{assessed_ranges, ranges, unsolvable, write_solved, Block, BlockSolver, SlabJob};
+use crate::cells_uncertainty::{solve_cell_with_uncertainty, UncertaintyRequest};
 use crate::flags::{error_flag, Flag};
 use crate::indicators::{CellUncertainty, OutputField};
 use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Output, Solution};
 use acidscape_gridio::SlabInputs;
 
-/// The scalar solver, one cell after another.
-pub(super) struct ByCell;
-
-impl BlockSolver for ByCell {
-    fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
-        solve_each_cell(block, |cell, put, put_omega| {
-            solve_cell(job.inputs, cell, job.fields, job.choice, put, put_omega)
-        });
-    }
+/// The scalar solver, one cell after another; with an uncertainty request, each cell through
+/// [`solve_cell_with_uncertainty`] (the kernel has no derivatives).
+pub(super) struct ByCell<'a> {
+    pub(super) uncertainty: Option<&'a UncertaintyRequest>,
 }
 
-/// Solves every cell of `block` with `solve_one(cell, put, put_omega)` (the flag it returns is
-/// the cell's), keeping Ω where it is kept.
-pub(crate) fn solve_each_cell(
-    block: &mut Block<'_>,
-    solve_one: impl Fn(usize, &mut dyn FnMut(usize, f32), &mut dyn FnMut(f64, f64)) -> Flag,
-) {
-    for offset in 0..block.flags.len() {
-        let mut omega = None;
-        let outs = &mut block.fields;
-        block.flags[offset] = solve_one(
-            block.start + offset,
-            &mut |k, v| outs[k][offset] = v,
-            &mut |aragonite, calcite| omega = Some([aragonite, calcite]),
-        );
-        if let Some(values) = omega {
-            block.put_omega(offset, values);
+impl BlockSolver for ByCell<'_> {
+    fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
+        let (inputs, fields, choice) = (job.inputs, job.fields, job.choice);
+        for offset in 0..block.flags.len() {
+            let cell = block.start + offset;
+            let mut omega = None;
+            let outs = &mut block.fields;
+            let put = |k: usize, v: f32| outs[k][offset] = v;
+            let put_omega = |aragonite, calcite| omega = Some([aragonite, calcite]);
+            block.flags[offset] = match self.uncertainty {
+                None => solve_cell(inputs, cell, fields, choice, put, put_omega),
+                Some(request) => solve_cell_with_uncertainty(
+                    inputs, cell, fields, choice, request, put, put_omega,
+                ),
+            };
+            if let Some(values) = omega {
+                block.put_omega(offset, values);
+            }
         }
     }
 }

@@ -1,9 +1,9 @@
 //! The fields of the indicators' uncertainties: each indicator's combined standard uncertainty
 //! and, on request, each source's signed contribution to it (see [`crate::cells_uncertainty`]).
 
-use super::{OutputField, PhScale, Quantity, Species};
+use super::{OutputField, Quantity};
 use crate::cells_uncertainty::{source_key, UncertaintyRequest};
-use acidscape_chem::{Output, PerOutput, PerSource, Solution, Source};
+use acidscape_chem::{PerOutput, PerSource, Solution, Source};
 use std::borrow::Cow;
 
 /// Suffix of the name of an indicator's standard-uncertainty field.
@@ -50,25 +50,6 @@ pub fn with_uncertainty_fields(
     fields.extend(combined);
     fields.extend(contributions);
     fields
-}
-
-impl Quantity {
-    /// The chemistry's output this quantity is (before any change of units).
-    pub(super) fn output(self) -> Output {
-        match self {
-            Quantity::Ph(PhScale::Total) => Output::PhTotal,
-            Quantity::Ph(PhScale::Seawater) => Output::PhSeawater,
-            Quantity::Ph(PhScale::Free) => Output::PhFree,
-            Quantity::Concentration(Species::Carbonate, _) => Output::Carbonate,
-            Quantity::Concentration(Species::Bicarbonate, _) => Output::Bicarbonate,
-            Quantity::Concentration(Species::Co2Star, _) => Output::Co2,
-            Quantity::Pco2 => Output::Pco2,
-            Quantity::Fco2 => Output::Fco2,
-            Quantity::OmegaAragonite => Output::OmegaAragonite,
-            Quantity::OmegaCalcite => Output::OmegaCalcite,
-            Quantity::RevelleFactor => Output::RevelleFactor,
-        }
-    }
 }
 
 impl OutputField {
