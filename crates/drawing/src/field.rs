@@ -73,7 +73,7 @@ impl ChosenField {
         }
         let meaning = Meaning::of(&info.name, source.compared.as_ref());
         let moment = choose_step(&source, &info, &meaning, &request.when)?;
-        let colouring = colouring(&request.colours, meaning.is_difference())?;
+        let colouring = colouring(&request.colours, meaning.is_signed())?;
         let run_label = request
             .run_label
             .clone()

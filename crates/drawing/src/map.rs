@@ -74,6 +74,9 @@ impl MapPlan {
             );
         } else if meaning.is_horizon_depth() {
             spec.missing_label = "land, or no horizon above the sea floor".to_string();
+        } else if meaning.is_horizon_depth_uncertainty() {
+            spec.missing_label =
+                "land, no horizon above the sea floor, or the horizon at the surface".to_string();
         } else if level.choice != LevelChoice::Whole && level.prefix != "surface" {
             spec.missing_label = "land, below the sea floor, or no data".to_string();
         }

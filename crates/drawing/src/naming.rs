@@ -20,6 +20,9 @@ pub(crate) enum Relation {
     Difference { baseline: String },
     /// The year of emergence of each column.
     EmergenceYear,
+    /// A field's standard uncertainty (`F_uncertainty`), or one source's signed contribution
+    /// to it (`F_uncertainty_from_SOURCE`), as `compute` writes them.
+    Uncertainty { source: Option<String> },
 }
 
 /// A variable's meaning.
@@ -40,6 +43,10 @@ impl Meaning {
             run: run.map(str::to_string),
             relation,
         };
+        if let Some((base, source)) = uncertainty_of(name) {
+            let source = source.map(source_words);
+            return plain(base, None, Relation::Uncertainty { source });
+        }
         let Some(compared) = compared else {
             return plain(name, None, Relation::Values);
         };
@@ -110,6 +117,23 @@ impl Meaning {
         )
     }
 
+    /// Whether signed values around zero: differences and contributions to an uncertainty
+    /// (drawn on a diverging palette centred on zero).
+    pub(crate) fn is_signed(&self) -> bool {
+        self.is_difference() || matches!(self.relation, Relation::Uncertainty { source: Some(_) })
+    }
+
+    /// Whether an uncertainty (combined or one source's contribution) of the base field.
+    fn is_uncertainty(&self) -> bool {
+        matches!(self.relation, Relation::Uncertainty { .. })
+    }
+
+    /// Whether the uncertainty of a horizon depth (missing where the depth is, and where it is
+    /// 0 m at the surface).
+    pub(crate) fn is_horizon_depth_uncertainty(&self) -> bool {
+        self.is_uncertainty() && self.base.starts_with(HORIZON_DEPTH)
+    }
+
     /// Whether the shoaling of a horizon (positive = shallower), not a depth difference.
     fn is_shoaling(&self) -> bool {
         self.is_difference() && self.base.starts_with(HORIZON_DEPTH)
@@ -127,6 +151,7 @@ impl Meaning {
     /// Whether the values are Ω itself (a map gets its Ω = 1 contour).
     pub(crate) fn is_omega(&self) -> bool {
         !self.is_difference()
+            && !self.is_uncertainty()
             && self.relation != Relation::EmergenceYear
             && self.base.starts_with("omega_")
             && self.omega_mineral().is_some()
@@ -139,7 +164,7 @@ impl Meaning {
 
     /// Whether the values are a horizon depth.
     pub(crate) fn is_horizon_depth(&self) -> bool {
-        !self.is_difference() && self.base.starts_with(HORIZON_DEPTH)
+        !self.is_difference() && !self.is_uncertainty() && self.base.starts_with(HORIZON_DEPTH)
     }
 
     /// The name of another field of the same run and kind of values (e.g. `omega_calcite`
@@ -158,6 +183,12 @@ impl Meaning {
             return "year of emergence".to_string();
         }
         let words = quantity_words(&self.base, info.long_name.as_deref());
+        if let Relation::Uncertainty { source } = &self.relation {
+            return match source {
+                None => format!("standard uncertainty of {words}"),
+                Some(source) => format!("contribution of {source} to the uncertainty of {words}"),
+            };
+        }
         if self.is_shoaling() {
             format!("{} shoaling", words.trim_end_matches(" depth"))
         } else if self.is_difference() {
@@ -212,6 +243,29 @@ impl Meaning {
             Relation::Statistic(_) => "percentile of annual means",
             _ => "mean",
         }
+    }
+}
+
+/// The field and the source (if one source's contribution) of an uncertainty field of
+/// `compute`: `ph_uncertainty` → (`ph`, None), `ph_uncertainty_from_dic` → (`ph`, `dic`).
+fn uncertainty_of(name: &str) -> Option<(&str, Option<&str>)> {
+    const SUFFIX: &str = "_uncertainty";
+    if let Some(base) = name.strip_suffix(SUFFIX) {
+        return Some((base, None));
+    }
+    let (base, source) = name.split_once("_uncertainty_from_")?;
+    Some((base, Some(source)))
+}
+
+/// A source of uncertainty as `compute` names it, in words: `dic` → DIC, `pksp_aragonite` →
+/// pKsp aragonite, `total_boron` → total boron.
+fn source_words(key: &str) -> String {
+    match key {
+        "dic" => "DIC".to_string(),
+        _ => match key.strip_prefix("pk") {
+            Some(rest) => format!("pK{}", rest.replace('_', " ")),
+            None => key.replace('_', " "),
+        },
     }
 }
 
@@ -307,6 +361,35 @@ mod tests {
         assert_eq!(
             Meaning::of("horizon_depth_aragonite_1p5", None).omega_mineral(),
             None
+        );
+    }
+
+    #[test]
+    fn uncertainty_names_decode() {
+        let m = Meaning::of("omega_aragonite_uncertainty", None);
+        assert_eq!(m.base, "omega_aragonite");
+        assert!(
+            !m.is_omega() && !m.is_signed(),
+            "no Ω = 1 contour, one-sided values"
+        );
+        let m = Meaning::of("horizon_depth_aragonite_uncertainty", None);
+        assert_eq!(m.base, "horizon_depth_aragonite");
+        assert!(!m.is_horizon_depth() && m.is_horizon_depth_uncertainty());
+        let m = Meaning::of("ph_uncertainty_from_pksp_aragonite", None);
+        assert_eq!(
+            m.relation,
+            Relation::Uncertainty {
+                source: Some("pKsp aragonite".into())
+            }
+        );
+        let m = Meaning::of("ph_uncertainty_from_total_boron", None);
+        assert_eq!(m.base, "ph");
+        assert!(m.is_signed() && !m.is_difference());
+        assert_eq!(
+            m.relation,
+            Relation::Uncertainty {
+                source: Some("total boron".into())
+            }
         );
     }
 }

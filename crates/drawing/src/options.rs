@@ -126,9 +126,10 @@ const PALETTES: [(&str, Palette); 4] = [
 ];
 
 /// The colouring of a field: the user's palette and range, or by default viridis for single
-/// fields and purple–orange centred on zero for differences, over the 2nd–98th percentiles.
-pub(crate) fn colouring(request: &ColourRequest, difference: bool) -> Result<Colouring> {
-    let mut colouring = if difference {
+/// fields and purple–orange centred on zero for signed values (differences, contributions to
+/// an uncertainty), over the 2nd–98th percentiles.
+pub(crate) fn colouring(request: &ColourRequest, signed: bool) -> Result<Colouring> {
+    let mut colouring = if signed {
         Colouring::difference()
     } else {
         Colouring::default()
