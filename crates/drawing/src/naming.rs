@@ -4,7 +4,7 @@
 
 use crate::source::ComparedRuns;
 use acidscape_comparison::HORIZON_PREFIX as HORIZON_DEPTH;
-use acidscape_gridio::FieldInfo;
+use acidscape_gridio::{uncertainty_of, FieldInfo};
 const HORIZON_SHOALING: &str = "horizon_shoaling_";
 
 /// How a compare variable relates to the runs.
@@ -244,17 +244,6 @@ impl Meaning {
             _ => "mean",
         }
     }
-}
-
-/// The field and the source (if one source's contribution) of an uncertainty field of
-/// `compute`: `ph_uncertainty` → (`ph`, None), `ph_uncertainty_from_dic` → (`ph`, `dic`).
-fn uncertainty_of(name: &str) -> Option<(&str, Option<&str>)> {
-    const SUFFIX: &str = "_uncertainty";
-    if let Some(base) = name.strip_suffix(SUFFIX) {
-        return Some((base, None));
-    }
-    let (base, source) = name.split_once("_uncertainty_from_")?;
-    Some((base, Some(source)))
 }
 
 /// A source of uncertainty as `compute` names it, in words: `dic` → DIC, `pksp_aragonite` →

@@ -266,11 +266,21 @@ fn auxiliary_names(file: &InputFile) -> BTreeSet<String> {
     names
 }
 
+/// The field and the source (for one source's contribution) of an uncertainty variable as
+/// `compute` names them: `ph_uncertainty` → (`ph`, None), `ph_uncertainty_from_dic` → (`ph`,
+/// Some(`dic`)); None for other names.
+pub fn uncertainty_of(name: &str) -> Option<(&str, Option<&str>)> {
+    if let Some(base) = name.strip_suffix("_uncertainty") {
+        return Some((base, None));
+    }
+    let (base, source) = name.split_once("_uncertainty_from_")?;
+    Some((base, Some(source)))
+}
+
 /// Whether a variable holds the standard uncertainty of another (as `compute` names them, or
 /// with the CF standard-name modifier `standard_error`).
 fn is_uncertainty(name: &str, var: &netcdf::Variable) -> bool {
-    name.ends_with("_uncertainty")
-        || name.contains("_uncertainty_from_")
+    uncertainty_of(name).is_some()
         || attr_text(var, "standard_name").is_some_and(|s| s.ends_with(" standard_error"))
 }
 

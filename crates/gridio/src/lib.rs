@@ -39,9 +39,9 @@ pub use cell_geometry::{CellGeometry, ColumnField, VerticalCells};
 pub use cell_outlines::CellOutlines;
 pub use error::{GridError, Result};
 pub use indicator_file::{
-    bounds_between, CopiedCoordinates, FieldInfo, FieldKind, GridLayout, HorizontalGrid,
-    IndicatorFile, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate, CELL_AREA,
-    CELL_THICKNESS, SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
+    bounds_between, uncertainty_of, CopiedCoordinates, FieldInfo, FieldKind, GridLayout,
+    HorizontalGrid, IndicatorFile, ParametricColumns, TimeSteps, VerticalAxis, VerticalCoordinate,
+    CELL_AREA, CELL_THICKNESS, SEA_FLOOR_DEPTH, VERSION_ATTRIBUTE,
 };
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
