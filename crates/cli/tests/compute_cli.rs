@@ -80,6 +80,7 @@ fn partial(output: &Path) -> PathBuf {
 
 #[test]
 fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_run(dir.path());
     let whole = dir.path().join("whole.nc");
@@ -119,6 +120,7 @@ fn stopped_run_leaves_no_output_and_resume_matches_a_whole_run() {
 
 #[test]
 fn killed_run_resumes_to_identical_values() {
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_run(dir.path());
     let whole = dir.path().join("whole.nc");
@@ -165,6 +167,7 @@ fn killed_run_resumes_to_identical_values() {
 
 #[test]
 fn bad_inputs_and_options_fail_before_any_output() {
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_run(dir.path());
     let output = dir.path().join("out.nc");
@@ -238,6 +241,7 @@ fn bad_inputs_and_options_fail_before_any_output() {
 
 #[test]
 fn never_replaces_an_input_or_an_existing_output() {
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_run(dir.path());
     let before = std::fs::read(&inputs[0]).unwrap();
@@ -302,6 +306,7 @@ fn compute_with_size_limit(inputs: &[PathBuf], output: &Path, blocks: u64) -> Ou
 
 #[test]
 fn a_write_failure_mid_run_resumes_to_identical_values() {
+    let _serial = common::one_at_a_time();
     let (dir, inputs, whole) = sample_and_whole_run();
     let size = std::fs::metadata(&whole).unwrap().len();
 
@@ -373,6 +378,7 @@ fn signal_after(
 
 #[test]
 fn sigterm_and_sigint_end_the_job_cleanly_and_resumably() {
+    let _serial = common::one_at_a_time();
     let (dir, inputs, whole) = sample_and_whole_run();
     for (signal, name, code, steps) in [("-TERM", "SIGTERM", 143, 1), ("-INT", "SIGINT", 130, 2)] {
         let output = dir.path().join(format!("{name}.nc"));
@@ -398,6 +404,7 @@ fn sigterm_and_sigint_end_the_job_cleanly_and_resumably() {
 
 #[test]
 fn a_kill_at_any_moment_leaves_one_way_on() {
+    let _serial = common::one_at_a_time();
     let (dir, inputs, whole) = sample_and_whole_run();
     for delay_ms in [0, 2, 5, 10, 20, 40, 80, 160, 320] {
         let output = dir.path().join(format!("killed-{delay_ms}.nc"));
@@ -432,6 +439,7 @@ fn a_kill_at_any_moment_leaves_one_way_on() {
 
 #[test]
 fn copied_and_touched_inputs_resume_and_changed_ones_are_refused() {
+    let _serial = common::one_at_a_time();
     let (dir, inputs, whole) = sample_and_whole_run();
     let stop = |output: &Path, steps: &str| {
         let out = compute(
@@ -492,6 +500,7 @@ fn copied_and_touched_inputs_resume_and_changed_ones_are_refused() {
 /// the corrosive water as the extent table holds it.
 #[test]
 fn the_summary_counts_each_flag_bit() {
+    let _serial = common::one_at_a_time();
     let dir = tempfile::tempdir().unwrap();
     let inputs = sample_run(dir.path());
     let output = dir.path().join("out.nc");

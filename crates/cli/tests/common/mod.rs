@@ -37,9 +37,11 @@ pub fn text(output: &Output) -> (String, String) {
     )
 }
 
-/// Held by each test that writes NetCDF files in this process or spawns acidscape: a child
-/// inherits (HDF5 does not open files close-on-exec) a descriptor, with its HDF5 file lock, of
-/// a file another test has open, which that test's own child then cannot open.
+/// Held for its whole length by each test that opens NetCDF files in this process and also
+/// spawns acidscape: HDF5 does not open files close-on-exec, so a child spawned by one test
+/// inherits the descriptor, and with it the HDF5 file lock, of a file another test has open,
+/// and keeps that file locked after the test closes it (a later `compute` on it then fails
+/// with "HDF error").
 static ONE_AT_A_TIME: std::sync::Mutex<()> = std::sync::Mutex::new(());
 
 /// Runs the calling test alone among those that take this guard.
