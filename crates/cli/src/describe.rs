@@ -4,7 +4,7 @@ use crate::run_options::RunOptions;
 use acidscape_gridio::Run;
 use acidscape_pipeline::geometry::ColumnGeometry;
 use acidscape_pipeline::{
-    parse_memory_size, plan_slabs, ColumnLoad, HorizonChoice, HorizonPlan, IndicatorChoice,
+    parse_memory_size, plan_run_slabs, ColumnLoad, HorizonChoice, HorizonPlan, IndicatorChoice,
 };
 use clap::Args;
 use std::error::Error;
@@ -28,20 +28,13 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     spec.checks.accept_implausible = true;
     let run = Run::open(&spec)?;
     println!("{}", run.report());
-    let shape = run.shape();
     let indicators = IndicatorChoice::default();
     let fields = indicators.fields()?.len();
     let horizons = HorizonChoice::default().plan(&indicators)?;
     let columns = horizons
         .as_ref()
         .map_or(ColumnLoad::default(), HorizonPlan::column_load);
-    let plan = plan_slabs(
-        [shape.levels, shape.rows, shape.cols],
-        run.time_steps(),
-        fields,
-        columns,
-        budget,
-    )?;
+    let plan = plan_run_slabs(&run, fields, columns, budget, None)?;
     println!("Work split for `compute` with its default indicators and horizons:");
     println!("{plan}");
     println!("Cells' geometry for the saturation horizons and volumes:");

@@ -15,6 +15,7 @@ mod axes;
 mod catalog;
 mod cell_geometry;
 mod cell_outlines;
+mod chunk_cache;
 mod conversion;
 mod discovery;
 mod error;
@@ -46,6 +47,7 @@ pub use indicator_file::{
 pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping, ROLE_NAMES};
 pub use run::Run;
 
+pub use chunk_cache::lcm as least_common_multiple;
 pub use slab::RawSlab;
 
 use std::ops::Range;

@@ -82,6 +82,11 @@ pub(crate) const PLAUSIBLE: [Plausible; 7] = [
 /// is refused: a few bad cells are flagged per cell, a tenth of the grid is a wrong input.
 pub(crate) const REFUSE_SHARE: f64 = 0.10;
 
+/// The most chunk cache the sampling at open may hold (freed before any slab is read; half
+/// the default memory budget): inputs whose chunks need more are sampled with the library's
+/// default cache, which inflates a chunk spanning many rows or steps once per block read.
+const SAMPLING_CACHE_LIMIT_BYTES: u64 = 1024 * 1024 * 1024;
+
 /// Most time steps whose values are checked when a run is opened (each read in full).
 pub(crate) const MAX_SAMPLED_STEPS: usize = 24;
 
@@ -284,6 +289,11 @@ impl Run {
             .map(|&i| ValueCheck::new(&self.inputs[i]))
             .collect();
         let mut sampled_salinity = vec![false; self.required(Role::Salinity).meanings.len()];
+        let block = self.sampling_rows();
+        if self.read_cache_bytes(block) <= SAMPLING_CACHE_LIMIT_BYTES {
+            self.read_in_slabs_of(Some(block));
+        }
+        // (On an error the run is not opened, so the caches go with it.)
         for &step in &steps {
             let (tallies, wet) = self.tally_step(step, &checked)?;
             if step == 0 {
@@ -303,6 +313,7 @@ impl Run {
                 });
             }
         }
+        self.read_in_slabs_of(None);
         // Salinity files not sampled share their variable's first file's scale.
         let salinity = self.inputs.iter().position(|i| i.role == Role::Salinity);
         if let Some(s) = salinity {
@@ -350,10 +361,15 @@ impl Run {
         }
     }
 
+    /// Rows read at a time while sampling: about a million cells.
+    fn sampling_rows(&self) -> usize {
+        (1_000_000 / (self.shape.levels * self.shape.cols).max(1)).max(1)
+    }
+
     /// One pass over a step, in blocks of rows: a tally per checked input and the number
     /// of cells where all four required inputs are present.
     fn tally_step(&self, step: usize, checked: &[usize]) -> Result<(Vec<Tally>, u64)> {
-        let block = (1_000_000 / (self.shape.levels * self.shape.cols).max(1)).max(1);
+        let block = self.sampling_rows();
         let mut tallies = vec![Tally::default(); checked.len()];
         let mut wet = 0u64;
         let required: Vec<usize> = REQUIRED

@@ -25,6 +25,36 @@ impl Run {
         Ok(self.convert_slab(raw))
     }
 
+    /// The rows of the inputs' chunks, where they are chunked by rows: slabs of a multiple of
+    /// this read whole chunks (the least common multiple over the inputs a slab reads).
+    pub fn input_chunk_rows(&self) -> Option<usize> {
+        self.slab_inputs()
+            .filter_map(|i| i.source.chunk_rows())
+            .reduce(crate::chunk_cache::lcm)
+            .filter(|rows| *rows <= self.shape.rows)
+    }
+
+    /// Chunk cache bytes, over the inputs a slab reads, so that slabs of `rows` rows inflate
+    /// each stored chunk once (0 when every slab takes whole chunks).
+    pub fn read_cache_bytes(&self, rows: usize) -> u64 {
+        self.slab_inputs()
+            .map(|i| i.source.cache_bytes_for(rows))
+            .sum()
+    }
+
+    /// Sizes each input's chunk cache for slabs of `rows` rows ([`Run::read_cache_bytes`] in
+    /// all); `None` gives the library's default back.
+    pub fn read_in_slabs_of(&self, rows: Option<usize>) {
+        for input in self.slab_inputs() {
+            input.source.read_in_slabs_of(rows);
+        }
+    }
+
+    /// The inputs read for every slab (one value per cell).
+    fn slab_inputs(&self) -> impl Iterator<Item = &crate::run::Input> {
+        self.inputs.iter().filter(|i| i.role.per_cell())
+    }
+
     /// The file-reading half of [`Run::read_slab`]: every value the slab needs, masked and
     /// unpacked but not converted. Reading is serialised by libnetcdf; converting
     /// ([`Run::convert_slab`]) is pure computation, so a pipeline can convert one slab on

@@ -3,6 +3,7 @@
 
 use crate::axes::{classify_dims, position, Axis};
 use crate::catalog::{dim_lens, InputFile, MaskRule};
+use crate::chunk_cache::{open_with_chunk_cache, Chunking};
 use crate::error::{GridError, Result};
 use crate::timeline::TimeSpan;
 use netcdf::types::{FloatType, NcVariableType};
@@ -22,6 +23,8 @@ pub(crate) struct Piece {
     pub axes: Vec<Axis>,
     /// Bytes the file's header promises (re-checked before each read).
     pub expected_len: u64,
+    /// How this file stores the variable (for its chunk cache).
+    pub chunking: Chunking,
 }
 
 impl Piece {
@@ -32,8 +35,9 @@ impl Piece {
             first_step: 0,
             steps: 1,
             mask: MaskRule::of(var),
-            axes,
             expected_len: file.expected.length,
+            chunking: Chunking::of(var),
+            axes,
         }
     }
 }
@@ -56,13 +60,33 @@ pub(crate) struct VarSource {
 /// per variable, 13 MB for a 360×180×50 float step): memory stays flat however many files
 /// the run has. (HDF5 shares a dataset's cache among all handles of one file, so the run
 /// keeps no other handle open while reading: see `Run::open`.)
+/// Each file is opened with a chunk cache of [`DataHandle::cache_bytes`] (see
+/// [`VarSource::read_in_slabs_of`]).
 #[derive(Default)]
-pub(crate) struct DataHandle(Mutex<Option<(usize, netcdf::File)>>);
+pub(crate) struct DataHandle(Mutex<OpenFile>);
+
+#[derive(Default)]
+struct OpenFile {
+    file: Option<(usize, netcdf::File)>,
+    cache_bytes: usize,
+}
+
+impl DataHandle {
+    fn lock(&self) -> std::sync::MutexGuard<'_, OpenFile> {
+        self.0
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner)
+    }
+}
 
 impl Clone for DataHandle {
-    /// A clone opens its own file when it first reads.
+    /// A clone opens its own file when it first reads, with the same cache size.
     fn clone(&self) -> Self {
-        DataHandle::default()
+        let cache_bytes = self.lock().cache_bytes;
+        DataHandle(Mutex::new(OpenFile {
+            file: None,
+            cache_bytes,
+        }))
     }
 }
 
@@ -139,6 +163,7 @@ impl VarSource {
                 mask: MaskRule::of(&var),
                 axes,
                 expected_len: file.expected.length,
+                chunking: Chunking::of(&var),
             });
         }
         let (axes, lens, _) = first.ok_or_else(|| GridError::OutOfRange {
@@ -156,6 +181,53 @@ impl VarSource {
     /// Length along an axis (None when the variable lacks that axis).
     pub fn len_of(&self, axis: Axis) -> Option<usize> {
         position(&self.axes, axis).map(|i| self.lens[i])
+    }
+
+    /// Chunk cache bytes for reads of `rows` rows at a time: the most any file needs.
+    pub fn cache_bytes_for(&self, rows: usize) -> u64 {
+        let lens = |piece: &Piece| -> Vec<usize> {
+            // Each file in its own order: map the variable's lengths by axis.
+            piece
+                .axes
+                .iter()
+                .map(|a| match a {
+                    Axis::T => piece.steps,
+                    _ => self.len_of(*a).unwrap_or(1),
+                })
+                .collect()
+        };
+        self.pieces
+            .iter()
+            .map(|p| p.chunking.cache_bytes(&p.axes, &lens(p), rows))
+            .max()
+            .unwrap_or(0)
+    }
+
+    /// The rows of one chunk, where every file chunks the variable by the same rows.
+    pub fn chunk_rows(&self) -> Option<usize> {
+        let first = self
+            .pieces
+            .first()?
+            .chunking
+            .along(&self.pieces[0].axes, Axis::Y)?;
+        self.pieces
+            .iter()
+            .all(|p| p.chunking.along(&p.axes, Axis::Y) == Some(first))
+            .then_some(first)
+    }
+
+    /// Sizes this variable's chunk cache for reads of `rows` rows at a time (`None`: the
+    /// library's default); an open file
+    /// with another size is closed, to be opened again with the new one.
+    pub fn read_in_slabs_of(&self, rows: Option<usize>) {
+        let bytes = rows.map_or(0, |rows| self.cache_bytes_for(rows) as usize);
+        // A margin over the chunks themselves: HDF5 evicts before a cache is quite full.
+        let bytes = if bytes == 0 { 0 } else { bytes + bytes / 16 };
+        let mut data = self.data.lock();
+        if data.cache_bytes != bytes {
+            data.file = None;
+            data.cache_bytes = bytes;
+        }
     }
 
     pub fn has_time(&self) -> bool {
@@ -195,24 +267,22 @@ impl VarSource {
             },
             other => other,
         })?;
-        let mut data = self
-            .data
-            .0
-            .lock()
-            .unwrap_or_else(std::sync::PoisonError::into_inner);
-        let nc = match data.take() {
+        let mut data = self.data.lock();
+        let nc = match data.file.take() {
             Some((f, nc)) if f == piece.file => nc,
             previous => {
                 // Close the previous file before opening the next: one cache at a time.
                 drop(previous);
-                netcdf::open(path).map_err(|e| GridError::Unreadable {
-                    path: path.clone(),
-                    message: e.to_string(),
+                open_with_chunk_cache(path, data.cache_bytes).map_err(|e| {
+                    GridError::Unreadable {
+                        path: path.clone(),
+                        message: e.to_string(),
+                    }
                 })?
             }
         };
         let values = self.read_from(&nc, path, piece, step, rows);
-        *data = Some((piece.file, nc));
+        data.file = Some((piece.file, nc));
         values
     }
 

@@ -127,17 +127,14 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
             ),
         });
     }
-    let shape = run.shape();
-    let mut plan = plan_slabs(
-        [shape.levels, shape.rows, shape.cols],
-        run.time_steps(),
+    let plan = plan_run_slabs(
+        run,
         fields.len(),
         columns,
         options.memory_budget_bytes,
+        options.max_rows_per_slab,
     )?;
-    if let Some(limit) = options.max_rows_per_slab {
-        plan.limit_rows_per_slab(limit);
-    }
+    run.read_in_slabs_of((plan.read_cache_bytes > 0).then_some(plan.rows_per_slab));
     check_output_path(run, options, plan.steps)?;
     Ok(JobPlan {
         slabs: plan,
@@ -145,6 +142,30 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
         horizons,
         output: options.output.clone(),
     })
+}
+
+/// Splits `run` into slabs of at most `max_rows` rows that fit `budget_bytes`, fitted to the
+/// inputs' chunks (see [`SlabPlan::fit_input_chunks`]).
+pub fn plan_run_slabs(
+    run: &Run,
+    output_fields: usize,
+    columns: ColumnLoad,
+    budget_bytes: u64,
+    max_rows: Option<usize>,
+) -> Result<SlabPlan, PipelineError> {
+    let shape = run.shape();
+    let mut plan = plan_slabs(
+        [shape.levels, shape.rows, shape.cols],
+        run.time_steps(),
+        output_fields,
+        columns,
+        budget_bytes,
+    )?;
+    if let Some(limit) = max_rows {
+        plan.limit_rows_per_slab(limit);
+    }
+    plan.fit_input_chunks(run.input_chunk_rows(), |rows| run.read_cache_bytes(rows));
+    Ok(plan)
 }
 
 /// Refuses outputs that would overwrite an input, and leftovers the user did not say what

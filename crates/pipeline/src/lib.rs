@@ -39,7 +39,9 @@ pub use indicators::{
     parse_list, with_uncertainty_fields, ConcentrationUnit, Indicator, IndicatorChoice,
     OutputField, PhScale, UncertaintyPart, UNCERTAINTY_SUFFIX,
 };
-pub use job::{plan_job, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Progress};
+pub use job::{
+    plan_job, plan_run_slabs, run_job, JobOptions, JobPlan, JobSummary, NoProgress, Progress,
+};
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};
 pub use plan::{plan_slabs, ColumnLoad, SlabPlan};

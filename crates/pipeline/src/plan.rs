@@ -19,6 +19,7 @@
 
 use crate::memory::format_bytes;
 use crate::PipelineError;
+use acidscape_gridio::least_common_multiple as lcm;
 use std::fmt;
 use std::ops::Range;
 
@@ -97,6 +98,12 @@ pub struct SlabPlan {
     pub columns: ColumnLoad,
     /// The budget the plan was made for, in bytes.
     pub budget_bytes: u64,
+    /// Chunk cache held for reading the inputs, so each stored chunk is inflated once
+    /// (see [`SlabPlan::fit_input_chunks`]).
+    pub read_cache_bytes: u64,
+    /// The cache that would have been needed when the budget could not hold it: each input
+    /// chunk taller than a slab, or spanning several steps, is then inflated more than once.
+    pub read_cache_shortfall: u64,
 }
 
 impl SlabPlan {
@@ -131,7 +138,39 @@ impl SlabPlan {
     /// Estimated peak memory of a compute job with this plan.
     pub fn estimated_peak_bytes(&self) -> u64 {
         self.fixed_bytes()
+            + self.read_cache_bytes
             + self.rows_per_slab as u64 * row_bytes(self.shape, self.output_fields, self.columns)
+    }
+
+    /// Fits the slabs to the inputs' chunks (`chunk_rows`: rows of one stored chunk, where
+    /// the inputs are chunked by rows): slabs of whole chunks where a slab holds at least one
+    /// (also whole output chunks), then the chunk cache `cache_for(rows)` that lets slabs of
+    /// `rows` rows inflate every chunk once, when the budget holds it beside the slabs.
+    pub fn fit_input_chunks(
+        &mut self,
+        chunk_rows: Option<usize>,
+        cache_for: impl Fn(usize) -> u64,
+    ) {
+        if let Some(chunk_rows) = chunk_rows.filter(|_| self.rows_per_slab < self.shape[1]) {
+            let whole = lcm(chunk_rows, self.chunk[1]);
+            if whole <= self.rows_per_slab {
+                self.rows_per_slab -= self.rows_per_slab % whole;
+            }
+        }
+        self.read_cache_bytes = 0;
+        self.read_cache_shortfall = 0;
+        // Smaller slabs beside the cache, rather than chunks inflated again for every slab.
+        let row_bytes = row_bytes(self.shape, self.output_fields, self.columns);
+        let fits = |rows: usize| {
+            self.fixed_bytes() + rows as u64 * row_bytes + cache_for(rows) <= self.budget_bytes
+        };
+        match (1..=self.rows_per_slab).rev().find(|&rows| fits(rows)) {
+            Some(rows) => {
+                self.limit_rows_per_slab(rows);
+                self.read_cache_bytes = cache_for(self.rows_per_slab);
+            }
+            None => self.read_cache_shortfall = cache_for(self.rows_per_slab),
+        }
     }
 
     /// Makes slabs at most `limit` rows (at least one), with chunks no taller than a slab.
@@ -182,7 +221,23 @@ impl fmt::Display for SlabPlan {
             f,
             "Output chunks: 1 time step x {} levels x {} rows x {} columns.",
             self.chunk[0], self.chunk[1], self.chunk[2]
-        )
+        )?;
+        if self.read_cache_bytes > 0 {
+            write!(
+                f,
+                "\nInput chunks span more rows than a slab, or several time steps: {} of chunk cache (in the estimate) inflates each once.",
+                format_bytes(self.read_cache_bytes)
+            )?;
+        }
+        if self.read_cache_shortfall > 0 {
+            write!(
+                f,
+                "\nInput chunks span more rows than a slab, or several time steps, and the budget cannot also hold the {} of chunk cache that would inflate each once: chunks will be inflated again for each slab that reads them (slower, not wrong); a budget of {} avoids it.",
+                format_bytes(self.read_cache_shortfall),
+                format_bytes(self.estimated_peak_bytes() + self.read_cache_shortfall)
+            )?;
+        }
+        Ok(())
     }
 }
 
@@ -264,6 +319,8 @@ pub fn plan_slabs(
         output_fields,
         columns,
         budget_bytes,
+        read_cache_bytes: 0,
+        read_cache_shortfall: 0,
     })
 }
 
@@ -345,5 +402,61 @@ mod tests {
         let plan = plan_slabs([2, 10, 4], 3, 1, ColumnLoad::default(), GIB).unwrap();
         let slabs: Vec<_> = plan.slabs(2).collect();
         assert_eq!(slabs, vec![(2, 0..10)]);
+    }
+
+    /// A cache model like the reader's: none for slabs of whole input chunks of `chunk_rows`
+    /// rows, else two bands of chunks of `band_bytes` each.
+    fn cache_model(chunk_rows: usize, band_bytes: u64) -> impl Fn(usize) -> u64 {
+        move |rows| {
+            if rows % chunk_rows == 0 {
+                0
+            } else {
+                2 * band_bytes
+            }
+        }
+    }
+
+    #[test]
+    fn slabs_take_whole_input_chunks_where_they_can() {
+        // Output chunks of 9 rows (4 MiB), input chunks of 18: slabs of a multiple of 18.
+        let mut plan = plan_slabs([75, 720, 1440], 3, 5, HORIZONS, 3584 * MIB).unwrap();
+        let before = plan.rows_per_slab;
+        assert_eq!(plan.chunk[1], 9);
+        assert_ne!(before % 18, 0, "{plan}");
+        plan.fit_input_chunks(Some(18), cache_model(18, 10 * MIB));
+        assert_eq!(plan.rows_per_slab % 18, 0, "{plan}");
+        assert!(plan.rows_per_slab <= before && plan.rows_per_slab + 18 > before);
+        assert_eq!((plan.read_cache_bytes, plan.read_cache_shortfall), (0, 0));
+        assert!(plan.estimated_peak_bytes() <= 3584 * MIB);
+    }
+
+    #[test]
+    fn slabs_shrink_to_hold_the_cache_that_inflates_each_chunk_once() {
+        // Chunks of all 720 rows (a whole step per chunk): no slab takes whole chunks.
+        let whole = plan_slabs([75, 720, 1440], 3, 5, HORIZONS, 2 * GIB).unwrap();
+        let mut plan = whole.clone();
+        plan.fit_input_chunks(Some(720), cache_model(720, 300 * MIB));
+        assert_eq!(plan.read_cache_bytes, 600 * MIB, "{plan}");
+        assert!(plan.rows_per_slab < whole.rows_per_slab, "{plan}");
+        assert!(plan.estimated_peak_bytes() <= 2 * GIB, "{plan}");
+        assert!(plan.to_string().contains("inflates each once"), "{plan}");
+        let mut seen = vec![0u32; 720 * 3];
+        for (step, rows) in plan.slabs(0) {
+            assert_eq!(rows.start % plan.chunk[1], 0);
+            rows.for_each(|row| seen[step * 720 + row] += 1);
+        }
+        assert!(seen.iter().all(|&n| n == 1));
+    }
+
+    #[test]
+    fn a_cache_the_budget_cannot_hold_is_reported_not_taken() {
+        let mut plan = plan_slabs([75, 720, 1440], 3, 5, HORIZONS, GIB).unwrap();
+        let before = plan.clone();
+        plan.fit_input_chunks(Some(720), cache_model(720, 2 * GIB));
+        assert_eq!(plan.read_cache_bytes, 0);
+        assert_eq!(plan.read_cache_shortfall, 4 * GIB);
+        assert_eq!(plan.rows_per_slab, before.rows_per_slab);
+        assert_eq!(plan.estimated_peak_bytes(), before.estimated_peak_bytes());
+        assert!(plan.to_string().contains("inflated again"), "{plan}");
     }
 }

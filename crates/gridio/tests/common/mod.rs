@@ -15,6 +15,9 @@ pub struct Var {
     pub float32: bool,
     /// Stored as 16-bit integers (packed data: values are the packed integers).
     pub int16: bool,
+    /// Chunk lengths in dimension order, stored deflated (NetCDF-4 only); `None`: the
+    /// library's choice.
+    pub chunks: Option<Vec<usize>>,
 }
 
 impl Var {
@@ -26,7 +29,13 @@ impl Var {
             values,
             float32: false,
             int16: false,
+            chunks: None,
         }
+    }
+    /// Stored in chunks of these lengths, deflated with shuffle.
+    pub fn chunked(mut self, chunks: &[usize]) -> Var {
+        self.chunks = Some(chunks.to_vec());
+        self
     }
     pub fn attr(mut self, key: &str, value: impl Into<AttributeValue>) -> Var {
         self.attrs.push((key.to_string(), value.into()));
@@ -107,6 +116,10 @@ pub fn write_nc_as(path: &Path, format: Format, dims: &[(&str, usize)], vars: &[
             f.add_variable::<f64>(&v.name, &dims).unwrap();
         }
         let mut var = f.variable_mut(&v.name).unwrap();
+        if let Some(chunks) = &v.chunks {
+            var.set_chunking(chunks).unwrap();
+            var.set_compression(1, true).unwrap();
+        }
         for (k, value) in &v.attrs {
             var.put_attribute(k, value.clone()).unwrap();
         }
