@@ -1,10 +1,12 @@
 //! `describe`: what acidscape understood of a run, and how it would split the work.
 
+use crate::grid_uncertainty::GridUncertaintyOptions;
 use crate::run_options::RunOptions;
-use acidscape_gridio::Run;
+use acidscape_gridio::{Run, UncertaintyField};
 use acidscape_pipeline::geometry::ColumnGeometry;
 use acidscape_pipeline::{
-    parse_memory_size, plan_slabs, ColumnLoad, HorizonChoice, HorizonPlan, IndicatorChoice,
+    parse_memory_size, plan_slabs_reading, source_key, with_uncertainty_fields, ColumnLoad,
+    HorizonChoice, HorizonPlan, IndicatorChoice,
 };
 use clap::Args;
 use std::error::Error;
@@ -17,10 +19,16 @@ pub struct DescribeArgs {
     /// Memory the compute job may use, for the work-split estimate (e.g. 512MiB, 4GiB)
     #[arg(long, value_name = "SIZE", default_value = "2GiB")]
     pub memory_budget: String,
+
+    /// compute's uncertainty options, for the estimate (its uncertainty fields and the inputs'
+    /// uncertainty fields it reads); the fields are opened and checked against the run
+    #[command(flatten)]
+    pub uncertainty: GridUncertaintyOptions,
 }
 
 pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     let budget = parse_memory_size(&args.memory_budget)?;
+    let uncertainty = args.uncertainty.request()?;
     // Implausible inputs are opened anyway, so the whole report shows what compute would
     // refuse; the verdict comes at the end.
     let mut spec = args.run.spec()?;
@@ -30,19 +38,30 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     println!("{}", run.report());
     let shape = run.shape();
     let indicators = IndicatorChoice::default();
-    let fields = indicators.fields()?.len();
+    let fields = with_uncertainty_fields(indicators.fields()?, uncertainty.as_ref()).len();
+    let input_fields = uncertainty.as_ref().map_or(&[][..], |u| &u.fields[..]);
+    for f in input_fields {
+        let field = UncertaintyField::open(&run, source_key(f.source), &f.path, &f.variable)?;
+        println!("Standard uncertainty of {}", field.describe());
+    }
     let horizons = HorizonChoice::default().plan(&indicators)?;
     let columns = horizons
         .as_ref()
         .map_or(ColumnLoad::default(), HorizonPlan::column_load);
-    let plan = plan_slabs(
+    let plan = plan_slabs_reading(
         [shape.levels, shape.rows, shape.cols],
         run.time_steps(),
         fields,
+        input_fields.len(),
         columns,
         budget,
     )?;
-    println!("Work split for `compute` with its default indicators and horizons:");
+    let with = if uncertainty.is_some() {
+        ", with the uncertainty options given"
+    } else {
+        " (no uncertainty fields: give compute's uncertainty options to count them)"
+    };
+    println!("Work split for `compute` with its default indicators and horizons{with}:");
     println!("{plan}");
     println!("Cells' geometry for the saturation horizons and volumes:");
     match ColumnGeometry::of(&run) {

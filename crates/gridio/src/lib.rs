@@ -32,6 +32,7 @@ mod run;
 mod slab;
 mod source;
 mod timeline;
+mod uncertainty_field;
 mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
@@ -47,6 +48,7 @@ pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping
 pub use run::Run;
 
 pub use slab::RawSlab;
+pub use uncertainty_field::UncertaintyField;
 
 use std::ops::Range;
 

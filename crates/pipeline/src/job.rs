@@ -2,7 +2,7 @@
 //! (see [`crate::stream`]), durable progress after every time step, and the final rename.
 //! Any failure once the partial output holds finished work leaves it resumable.
 
-use crate::cells_uncertainty::UncertaintyRequest;
+use crate::cells_uncertainty::{source_key, UncertaintyRequest};
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::extent_table::{write_extent_table, ExtentOverview};
@@ -15,14 +15,14 @@ use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
     FLAG_VARIABLE,
 };
-use crate::plan::{plan_slabs, ColumnLoad, SlabPlan};
+use crate::plan::{plan_slabs_reading, ColumnLoad, SlabPlan};
 use crate::repair::restore_cut_tail;
 use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
 use crate::stop::StopRequest;
-use crate::stream::{stream, sync_file, OwnRecord, Sink};
+use crate::stream::{read_slab, stream, sync_file, OwnRecord, Sink};
 use crate::PipelineError;
-use acidscape_chem::ConstantChoice;
-use acidscape_gridio::Run;
+use acidscape_chem::{ConstantChoice, Source};
+use acidscape_gridio::{Run, UncertaintyField};
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
@@ -95,6 +95,8 @@ pub struct JobSummary {
     pub serial_netcdf: Duration,
     /// The corrosive-extent table written beside the output, with its first and last steps.
     pub extent: Option<ExtentOverview>,
+    /// Whether the output has standard-uncertainty fields.
+    pub uncertainty: bool,
 }
 
 /// What a job plans to do: the slabs, the output fields and the horizons.
@@ -103,14 +105,23 @@ pub struct JobPlan {
     pub slabs: SlabPlan,
     pub fields: Vec<OutputField>,
     pub horizons: Option<HorizonPlan>,
+    /// The inputs' standard-uncertainty fields, opened and checked against the run, in the
+    /// order of the request's `fields`.
+    pub uncertainty_fields: Vec<(Source, UncertaintyField)>,
     /// The output file.
     pub output: PathBuf,
 }
 
 /// Plans a job without running it: checks options and output path, and splits the work.
 pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineError> {
+    let mut uncertainty_fields = Vec::new();
     if let Some(request) = &options.uncertainty {
         request.check()?;
+        for f in &request.fields {
+            let key = source_key(f.source);
+            let field = UncertaintyField::open(run, key, &f.path, &f.variable)?;
+            uncertainty_fields.push((f.source, field));
+        }
     }
     let fields =
         with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.as_ref());
@@ -128,10 +139,11 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
         });
     }
     let shape = run.shape();
-    let mut plan = plan_slabs(
+    let mut plan = plan_slabs_reading(
         [shape.levels, shape.rows, shape.cols],
         run.time_steps(),
         fields.len(),
+        uncertainty_fields.len(),
         columns,
         options.memory_budget_bytes,
     )?;
@@ -143,6 +155,7 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
         slabs: plan,
         fields,
         horizons,
+        uncertainty_fields,
         output: options.output.clone(),
     })
 }
@@ -315,7 +328,7 @@ pub fn run_job(
     let read_started = Instant::now();
     let first = match slabs.next() {
         Some((step, rows)) => Some(
-            run.read_raw_slab(step, rows)
+            read_slab(run, &job.uncertainty_fields, step, rows)
                 .map_err(|e| ended.early(e.into(), first_step))?,
         ),
         None => None,
@@ -352,6 +365,7 @@ pub fn run_job(
         run,
         plan,
         &job.fields,
+        &job.uncertainty_fields,
         options,
         work.as_ref(),
         first,
@@ -381,6 +395,7 @@ pub fn run_job(
         write: times.write,
         serial_netcdf: first_read + times.netcdf + finish,
         extent,
+        uncertainty: options.uncertainty.is_some(),
     })
 }
 
