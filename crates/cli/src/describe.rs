@@ -2,11 +2,11 @@
 
 use crate::grid_uncertainty::GridUncertaintyOptions;
 use crate::run_options::RunOptions;
-use acidscape_gridio::{Run, UncertaintyField};
+use acidscape_gridio::Run;
 use acidscape_pipeline::geometry::ColumnGeometry;
 use acidscape_pipeline::{
-    parse_memory_size, plan_slabs_reading, source_key, with_uncertainty_fields, ColumnLoad,
-    HorizonChoice, HorizonPlan, IndicatorChoice,
+    parse_memory_size, plan_slabs_reading, with_uncertainty_fields, ColumnLoad, HorizonChoice,
+    HorizonPlan, IndicatorChoice,
 };
 use clap::Args;
 use std::error::Error;
@@ -39,9 +39,11 @@ pub fn run(args: &DescribeArgs) -> Result<(), Box<dyn Error>> {
     let shape = run.shape();
     let indicators = IndicatorChoice::default();
     let fields = with_uncertainty_fields(indicators.fields()?, uncertainty.as_ref()).len();
-    let input_fields = uncertainty.as_ref().map_or(&[][..], |u| &u.fields[..]);
-    for f in input_fields {
-        let field = UncertaintyField::open(&run, source_key(f.source), &f.path, &f.variable)?;
+    let input_fields = match &uncertainty {
+        Some(request) => request.open_fields(&run)?,
+        None => Vec::new(),
+    };
+    for (_, field) in &input_fields {
         println!("Standard uncertainty of {}", field.describe());
     }
     let horizons = HorizonChoice::default().plan(&indicators)?;

@@ -109,28 +109,7 @@ impl UncertaintyField {
             variable: variable.to_string(),
             message,
         };
-        let units = attr_text(&var, "units").ok_or_else(|| GridError::Units {
-            file: path.to_path_buf(),
-            variable: variable.to_string(),
-            message: format!(
-                "no `units` attribute; expected the units of {} (e.g. {}) or % for a percentage of each cell's value",
-                role.key(),
-                role.example_units()
-            ),
-        })?;
-        let scale = field_scale(role, &units).map_err(|e| GridError::Units {
-            file: path.to_path_buf(),
-            variable: variable.to_string(),
-            message: format!("{e}; or % for a percentage of each cell's value"),
-        })?;
-        if role == Role::Temperature && scale == FieldScale::Percent {
-            return Err(GridError::Units {
-                file: path.to_path_buf(),
-                variable: variable.to_string(),
-                message: "a relative uncertainty of temperature has no meaning; expected K or degC"
-                    .into(),
-            });
-        }
+        let (units, scale) = units_of(role, path, &var)?;
         let axes = classify_dims(file, &var)?;
         check_shape(run, &var, &axes).map_err(fail)?;
         let has_time = axes.contains(&Axis::T);
@@ -162,6 +141,11 @@ impl UncertaintyField {
     /// The input's key (e.g. "dic").
     pub fn role(&self) -> &'static str {
         self.role.key()
+    }
+
+    /// The file the field is read from.
+    pub fn path(&self) -> &Path {
+        &self.path
     }
 
     /// Whether the values are fractions of each cell's value (units `%`).
@@ -239,6 +223,30 @@ impl UncertaintyField {
                 .for_each(|v| *v = seawater::practical_from_absolute(*v * to_g_per_kg)),
         }
     }
+}
+
+/// The field's `units` and what they mean for `role`.
+fn units_of(role: Role, path: &Path, var: &netcdf::Variable) -> Result<(String, FieldScale)> {
+    let refuse = |message: String| GridError::Units {
+        file: path.to_path_buf(),
+        variable: var.name(),
+        message,
+    };
+    let units = attr_text(var, "units").ok_or_else(|| {
+        refuse(format!(
+            "no `units` attribute; expected the units of {} (e.g. {}) or % for a percentage of each cell's value",
+            role.key(),
+            role.example_units()
+        ))
+    })?;
+    let scale = field_scale(role, &units)
+        .map_err(|e| refuse(format!("{e}; or % for a percentage of each cell's value")))?;
+    if role == Role::Temperature && scale == FieldScale::Percent {
+        return Err(refuse(
+            "a relative uncertainty of temperature has no meaning; expected K or degC".into(),
+        ));
+    }
+    Ok((units, scale))
 }
 
 /// The run's (z, y, x) cells, with or without time; a field without the run's levels is

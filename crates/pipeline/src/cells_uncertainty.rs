@@ -11,7 +11,7 @@ use acidscape_chem::uncertainty_budget;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
 use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
 use acidscape_chem::{InputUncertainties, SolvedSample, Source, Uncertainties};
-use acidscape_gridio::SlabInputs;
+use acidscape_gridio::{Run, SlabInputs, UncertaintyField};
 use std::path::PathBuf;
 
 /// A standard uncertainty as given: in the chemistry's units, or relative to the value.
@@ -158,6 +158,18 @@ impl UncertaintyRequest {
             }
         }
         Ok(())
+    }
+
+    /// Checks the request, then opens its fields and checks them against `run`.
+    pub fn open_fields(&self, run: &Run) -> Result<Vec<(Source, UncertaintyField)>, PipelineError> {
+        self.check()?;
+        (self.fields.iter())
+            .map(|f| {
+                let field =
+                    UncertaintyField::open(run, source_key(f.source), &f.path, &f.variable)?;
+                Ok((f.source, field))
+            })
+            .collect()
     }
 
     /// The standard uncertainty of every source for cell `cell`, in the chemistry's units:

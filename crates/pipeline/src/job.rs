@@ -2,7 +2,7 @@
 //! (see [`crate::stream`]), durable progress after every time step, and the final rename.
 //! Any failure once the partial output holds finished work leaves it resumable.
 
-use crate::cells_uncertainty::{source_key, UncertaintyRequest};
+use crate::cells_uncertainty::UncertaintyRequest;
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::extent_table::{write_extent_table, ExtentOverview};
@@ -114,15 +114,10 @@ pub struct JobPlan {
 
 /// Plans a job without running it: checks options and output path, and splits the work.
 pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineError> {
-    let mut uncertainty_fields = Vec::new();
-    if let Some(request) = &options.uncertainty {
-        request.check()?;
-        for f in &request.fields {
-            let key = source_key(f.source);
-            let field = UncertaintyField::open(run, key, &f.path, &f.variable)?;
-            uncertainty_fields.push((f.source, field));
-        }
-    }
+    let uncertainty_fields = match &options.uncertainty {
+        Some(request) => request.open_fields(run)?,
+        None => Vec::new(),
+    };
     let fields =
         with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.as_ref());
     let horizons = options.horizons.plan(&options.indicators)?;
@@ -234,12 +229,23 @@ fn job_description(
     job
 }
 
-/// Each input file's identity and the time steps that read it.
-fn input_records(run: &Run) -> Result<Vec<InputRecord>, PipelineError> {
-    run.input_files()
-        .iter()
+/// Each input file's identity and the time steps that read it, the uncertainty fields' files
+/// last (every step reads them).
+fn input_records(
+    run: &Run,
+    fields: &[(Source, UncertaintyField)],
+) -> Result<Vec<InputRecord>, PipelineError> {
+    let steps = run.time_steps();
+    let field_files = (fields.iter()).map(|(_, field)| {
+        (
+            field.path().to_path_buf(),
+            field.has_time().then_some(0..steps),
+        )
+    });
+    (run.input_files().into_iter())
         .zip(run.steps_of_files())
-        .map(|(path, steps)| InputRecord::of(path, steps))
+        .chain(field_files)
+        .map(|(path, steps)| InputRecord::of(&path, steps))
         .collect()
 }
 
@@ -253,8 +259,8 @@ pub(crate) fn starting_record(
     resuming: bool,
     progress: &mut dyn Progress,
 ) -> Result<ProgressRecord, PipelineError> {
+    let inputs = input_records(run, &job.uncertainty_fields)?;
     let job = job_description(run, &job.slabs, options, work);
-    let inputs = input_records(run)?;
     let output = &options.output;
     if !resuming {
         let mut record = ProgressRecord::new(job, inputs);

@@ -418,8 +418,21 @@ fn a_resume_with_another_field_is_refused() {
         .to_string();
     assert!(err.contains("differ from the interrupted run"), "{err}");
     assert!(err.contains("second.nc"), "{err}");
-    // The same field resumes.
+    // The same field with other values is refused by name (its content is recorded as the
+    // run's files' is); put back, it resumes.
     let mut same = job(&output, request(vec![], vec![(Source::Dic, &first, "u")]));
     same.resume = true;
+    let kept = dir.path().join("first.kept");
+    std::fs::copy(&first, &kept).unwrap();
+    std::fs::remove_file(&first).unwrap();
+    write_field(&first, "u", "umol kg-1", &RUN_GRID, |_, _| 2.5);
+    let err = run_job(&opened, &same, &mut NoProgress)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains("first.nc is not the file the interrupted run read"),
+        "{err}"
+    );
+    std::fs::copy(&kept, &first).unwrap();
     run_job(&opened, &same, &mut NoProgress).unwrap();
 }
