@@ -40,6 +40,12 @@ const RUN_GRID: Layout = Layout {
     without_levels: false,
 };
 
+/// The run's grid with its time steps.
+const WITH_TIME: Layout = Layout {
+    with_time: true,
+    ..RUN_GRID
+};
+
 /// Writes `variable` with `units` at `path` (SYNTHETIC values from `value(step, cell)`, cells
 /// in (level, row, col) order, NaN written as the fill value).
 fn write_field(
@@ -166,11 +172,7 @@ fn a_constant_field_gives_the_constant_bit_for_bit() {
         |_, _| 3.0,
     );
     let stepped = dir.path().join("dic_misfit_steps.nc");
-    let with_time = Layout {
-        with_time: true,
-        ..RUN_GRID
-    };
-    write_field(&stepped, "dic_misfit", "umol kg-1", &with_time, |_, _| 3.0);
+    write_field(&stepped, "dic_misfit", "umol kg-1", &WITH_TIME, |_, _| 3.0);
     let dic = |u| vec![(Source::Dic, UncertaintyAmount::Absolute(u))];
 
     let number = dir.path().join("number.nc");
@@ -203,6 +205,35 @@ fn a_constant_field_gives_the_constant_bit_for_bit() {
     let field = vec![(Source::Phosphate, percent.as_path(), "phosphate_misfit")];
     compute(&run, &by_field, request(vec![], field)).unwrap();
     assert_same_uncertainties(&by_number, &by_field, "phosphate");
+}
+
+#[test]
+fn a_field_with_time_steps_gives_each_step_its_own_values() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = write_cmip_style_run(dir.path(), STEPS, 1);
+    let field = dir.path().join("by_step.nc");
+    let per_step = [2.0, 4.5];
+    write_field(&field, "u", "umol kg-1", &WITH_TIME, |step, _| {
+        per_step[step]
+    });
+    let out = dir.path().join("field.nc");
+    compute(
+        &run,
+        &out,
+        request(vec![], vec![(Source::Dic, &field, "u")]),
+    )
+    .unwrap();
+    let cells = LEVELS * ROWS * COLS;
+    for (step, u) in per_step.into_iter().enumerate() {
+        let number = dir.path().join(format!("number{step}.nc"));
+        let dic = vec![(Source::Dic, UncertaintyAmount::Absolute(u))];
+        compute(&run, &number, request(dic, vec![])).unwrap();
+        for name in UNCERTAINTIES {
+            let (a, b) = (read_f32(&number, name), read_f32(&out, name));
+            let this_step = step * cells..(step + 1) * cells;
+            assert_eq!(a[this_step.clone()], b[this_step], "{name} at step {step}");
+        }
+    }
 }
 
 // A difference of 1 K is a difference of 1 °C (SI brochure, 9th edition, section 2.3.1): no
@@ -386,12 +417,8 @@ fn fields_that_do_not_fit_the_run_are_refused_by_name() {
 fn a_field_with_other_time_steps_is_refused() {
     let dir = tempfile::tempdir().unwrap();
     let run = write_cmip_style_run(dir.path(), STEPS + 1, 1);
-    let with_time = Layout {
-        with_time: true,
-        ..RUN_GRID
-    };
     let field = dir.path().join("steps.nc");
-    write_field(&field, "u", "umol kg-1", &with_time, |_, _| 2.0);
+    write_field(&field, "u", "umol kg-1", &WITH_TIME, |_, _| 2.0);
     let err = refusal(&run, dir.path(), &field, "u", Source::Dic);
     assert!(
         err.contains("time=2") && err.contains("3 time step(s)"),
