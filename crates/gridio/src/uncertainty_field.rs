@@ -209,19 +209,24 @@ impl UncertaintyField {
     /// the chemistry's units, or to fractions when relative; a per-volume concentration goes
     /// through each cell's density as the run's own variable does (NaN where it has none).
     pub fn convert(&self, values: &mut [f64], inputs: &SlabInputs) {
-        match self.scale {
-            // As `--uncertainty dic=5%` reads: the percentage divided by 100.
-            FieldScale::Percent => values.iter_mut().for_each(|v| *v /= 100.0),
-            FieldScale::Factor(f) => values.iter_mut().for_each(|v| *v *= f),
-            FieldScale::Concentration(c) => {
-                for (v, rho) in values.iter_mut().zip(&inputs.density_kg_m3) {
-                    *v = c.to_umol_per_kg(*v, *rho);
-                }
+        convert_values(self.scale, values, &inputs.density_kg_m3);
+    }
+}
+
+/// Converts a field's values in place by `scale`, per-volume ones through `density_kg_m3`.
+fn convert_values(scale: FieldScale, values: &mut [f64], density_kg_m3: &[f64]) {
+    match scale {
+        // As `--uncertainty dic=5%` reads: the percentage divided by 100.
+        FieldScale::Percent => values.iter_mut().for_each(|v| *v /= 100.0),
+        FieldScale::Factor(f) => values.iter_mut().for_each(|v| *v *= f),
+        FieldScale::Concentration(c) => {
+            for (v, rho) in values.iter_mut().zip(density_kg_m3) {
+                *v = c.to_umol_per_kg(*v, *rho);
             }
-            FieldScale::AbsoluteSalinity { to_g_per_kg } => values
-                .iter_mut()
-                .for_each(|v| *v = seawater::practical_from_absolute(*v * to_g_per_kg)),
         }
+        FieldScale::AbsoluteSalinity { to_g_per_kg } => values
+            .iter_mut()
+            .for_each(|v| *v = seawater::practical_from_absolute(*v * to_g_per_kg)),
     }
 }
 
@@ -388,5 +393,36 @@ mod tests {
         );
         assert!(field_scale(Role::Dic, "1").is_err());
         assert!(field_scale(Role::Alkalinity, "furlongs").is_err());
+    }
+
+    #[test]
+    fn conversions_to_the_chemistry_units() {
+        let convert = |units: &str, role: Role, value: f64| {
+            let mut values = [value, f64::NAN];
+            convert_values(
+                field_scale(role, units).unwrap(),
+                &mut values,
+                &[1025.0, 1025.0],
+            );
+            assert!(values[1].is_nan(), "{units}: a missing value stays missing");
+            values[0]
+        };
+        // 0.002 mol m-3 in water of 1025 kg m-3 is 2000/1025 µmol kg-1.
+        let per_volume = convert("mol m-3", Role::Dic, 0.002);
+        assert!((per_volume - 2000.0 / 1025.0).abs() < 1e-12, "{per_volume}");
+        assert_eq!(
+            convert("mmol m-3", Role::Alkalinity, 2.05),
+            2.05 * 1e3 / 1025.0
+        );
+        assert_eq!(convert("umol kg-1", Role::Phosphate, 0.03), 0.03);
+        assert_eq!(convert("%", Role::Silicate, 5.0), 0.05);
+        // Reference-composition salinity: SP = SR × 35/35.16504 (Millero et al. 2008).
+        let practical = convert("g kg-1", Role::Salinity, 0.01);
+        assert!(
+            (practical - 0.01 * 35.0 / 35.16504).abs() < 1e-15,
+            "{practical}"
+        );
+        assert_eq!(convert("dbar", Role::Pressure, 3.0), 3.0);
+        assert_eq!(convert("K", Role::Temperature, 0.1), 0.1);
     }
 }
