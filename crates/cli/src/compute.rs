@@ -305,6 +305,12 @@ fn flag_summary(summary: &JobSummary, constants: &ConstantChoice) -> String {
         counts.with_values(),
         counts.no_flag
     )];
+    if summary.uncertainty {
+        lines.push(format!(
+            "  wet cells with indicators but no standard uncertainty (an uncertainty field missing there, or none could be propagated): {}",
+            counts.without_uncertainty
+        ));
+    }
     for bit in FLAG_BITS {
         let limits = bit.limits(constants);
         let why = if limits.is_empty() {

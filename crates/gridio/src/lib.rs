@@ -33,6 +33,7 @@ mod run;
 mod slab;
 mod source;
 mod timeline;
+mod uncertainty_field;
 mod vertical;
 
 pub use catalog::silence_hdf5_diagnostics;
@@ -49,6 +50,7 @@ pub use run::Run;
 
 pub use chunk_cache::lcm as least_common_multiple;
 pub use slab::RawSlab;
+pub use uncertainty_field::UncertaintyField;
 
 use std::ops::Range;
 

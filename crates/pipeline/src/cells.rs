@@ -13,7 +13,8 @@ mod tests;
 pub use by_cell::solve_cell;
 pub(crate) use by_cell::{solve_cell_by, CellSolved};
 
-use crate::cells_uncertainty::UncertaintyRequest;
+use crate::cells_uncertainty::SlabUncertainty;
+use crate::flags::WITHOUT_VALUES;
 use crate::flags::{range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION};
 use crate::indicators::OutputField;
 use acidscape_chem::{ConstantChoice, Validity};
@@ -100,7 +101,7 @@ pub fn solve_slab(
     choice: &ConstantChoice,
     keep: KeepOmega,
     spare: SaturationStates,
-    uncertainty: Option<&UncertaintyRequest>,
+    uncertainty: Option<SlabUncertainty<'_>>,
 ) -> SlabResult {
     let job = SlabJob {
         inputs,
@@ -175,6 +176,8 @@ impl SlabJob<'_> {
                 block.omega[m] = Some(chunk);
             }
         }
+        // The first standard-uncertainty field stands for all: they are missing together.
+        let uncertainty = (self.fields.iter()).position(|f| f.combined_uncertainty_of().is_some());
         let counts = blocks
             .into_par_iter()
             .map_init(init, |solver, mut block| {
@@ -183,8 +186,13 @@ impl SlabJob<'_> {
                 }
                 solver.solve_block(self, &mut block);
                 let mut counts = FlagCounts::default();
-                for flag in block.flags.iter() {
+                for (offset, flag) in block.flags.iter().enumerate() {
                     counts.record(*flag);
+                    let solved = *flag != FLAG_FILL && *flag & WITHOUT_VALUES == 0;
+                    if uncertainty.is_some_and(|k| solved && block.fields[k][offset] == VALUE_FILL)
+                    {
+                        counts.without_uncertainty += 1;
+                    }
                 }
                 counts
             })

@@ -11,7 +11,8 @@ use acidscape_chem::uncertainty_budget;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
 use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
 use acidscape_chem::{InputUncertainties, SolvedSample, Source, Uncertainties};
-use acidscape_gridio::SlabInputs;
+use acidscape_gridio::{Run, SlabInputs, UncertaintyField};
+use std::path::PathBuf;
 
 /// A standard uncertainty as given: in the chemistry's units, or relative to the value.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -74,12 +75,52 @@ pub fn source_key(source: Source) -> &'static str {
     }
 }
 
+/// An input's standard uncertainty read per cell from a NetCDF variable on the run's grid
+/// (opened by the job as an [`acidscape_gridio::UncertaintyField`]).
+#[derive(Clone, Debug, PartialEq)]
+pub struct UncertaintyFieldSource {
+    pub source: Source,
+    pub path: PathBuf,
+    pub variable: String,
+}
+
+/// One slab's standard uncertainties of one input read from a field, in the chemistry's units
+/// or, when `relative`, as fractions of each cell's value (NaN: the cell has none).
+#[derive(Clone, Debug, PartialEq)]
+pub struct FieldAmounts {
+    pub source: Source,
+    pub relative: bool,
+    pub values: Vec<f64>,
+}
+
+impl FieldAmounts {
+    /// The amount of cell `cell`.
+    fn at(&self, cell: usize) -> UncertaintyAmount {
+        let value = self.values[cell];
+        if self.relative {
+            UncertaintyAmount::Relative(value)
+        } else {
+            UncertaintyAmount::Absolute(value)
+        }
+    }
+}
+
+/// What a slab propagates: the job's request and the amounts its fields give the slab's cells.
+#[derive(Clone, Copy, Debug)]
+pub struct SlabUncertainty<'a> {
+    pub request: &'a UncertaintyRequest,
+    /// In the order of `request.fields`.
+    pub fields: &'a [FieldAmounts],
+}
+
 /// What a job propagates: the inputs' standard uncertainties (absolute in the chemistry's
-/// units, or relative to each cell's value) and the constants'.
+/// units, relative to each cell's value, or read per cell from fields) and the constants'.
 #[derive(Clone, Debug, PartialEq)]
 pub struct UncertaintyRequest {
     /// At most one per source, each one of [`GRID_INPUTS`].
     pub inputs: Vec<(Source, UncertaintyAmount)>,
+    /// Inputs whose uncertainty is a field; a source is given as a number or a field, not both.
+    pub fields: Vec<UncertaintyFieldSource>,
     pub constants: ConstantUncertainties,
     /// Also each source's signed contribution to each indicator's uncertainty.
     pub breakdown: bool,
@@ -92,16 +133,24 @@ impl UncertaintyRequest {
             option: "--uncertainty".into(),
             message,
         };
-        for (k, &(source, amount)) in self.inputs.iter().enumerate() {
+        let sources: Vec<Source> = (self.inputs.iter().map(|(s, _)| *s))
+            .chain(self.fields.iter().map(|f| f.source))
+            .collect();
+        for (k, &source) in sources.iter().enumerate() {
             if !GRID_INPUTS.iter().any(|(s, _)| *s == source) {
                 return Err(refuse(format!(
                     "{} is not an input of a grid (alkalinity and DIC are)",
                     source_key(source)
                 )));
             }
-            if self.inputs[..k].iter().any(|(s, _)| *s == source) {
-                return Err(refuse(format!("{} is given twice", source_key(source))));
+            if sources[..k].contains(&source) {
+                return Err(refuse(format!(
+                    "{} is given twice (as a number with --uncertainty or as a field with --uncertainty-field: give one)",
+                    source_key(source)
+                )));
             }
+        }
+        for &(source, amount) in &self.inputs {
             if source == Source::Temperature && matches!(amount, UncertaintyAmount::Relative(_)) {
                 return Err(refuse(
                     "a relative uncertainty of temperature has no meaning; give it in °C".into(),
@@ -111,14 +160,34 @@ impl UncertaintyRequest {
         Ok(())
     }
 
-    /// The standard uncertainty of every source for one cell, in the chemistry's units.
-    pub fn for_cell(&self, pair: &InputPair, conditions: &Conditions) -> Uncertainties {
+    /// Checks the request, then opens its fields and checks them against `run`.
+    pub fn open_fields(&self, run: &Run) -> Result<Vec<(Source, UncertaintyField)>, PipelineError> {
+        self.check()?;
+        (self.fields.iter())
+            .map(|f| {
+                let field =
+                    UncertaintyField::open(run, source_key(f.source), &f.path, &f.variable)?;
+                Ok((f.source, field))
+            })
+            .collect()
+    }
+
+    /// The standard uncertainty of every source for cell `cell`, in the chemistry's units:
+    /// the request's numbers and the amounts `fields` read for the cell's slab.
+    pub fn for_cell(
+        &self,
+        pair: &InputPair,
+        conditions: &Conditions,
+        fields: &[FieldAmounts],
+        cell: usize,
+    ) -> Uncertainties {
         let (alkalinity, dic) = match *pair {
             InputPair::AlkalinityDic { alkalinity, dic } => (alkalinity, dic),
             _ => (f64::NAN, f64::NAN),
         };
         let mut inputs = InputUncertainties::default();
-        for &(source, amount) in &self.inputs {
+        let from_fields = fields.iter().map(|f| (f.source, f.at(cell)));
+        for (source, amount) in self.inputs.iter().copied().chain(from_fields) {
             let (slot, value) = match source {
                 Source::Alkalinity => (&mut inputs.alkalinity, alkalinity),
                 Source::Dic => (&mut inputs.dic, dic),
@@ -139,7 +208,7 @@ impl UncertaintyRequest {
 
     /// The sources and values used, for the output's comments and the resume check.
     pub fn describe(&self) -> String {
-        let inputs = if self.inputs.is_empty() {
+        let inputs = if self.inputs.is_empty() && self.fields.is_empty() {
             "none".to_string()
         } else {
             (self.inputs.iter())
@@ -153,6 +222,14 @@ impl UncertaintyRequest {
                         UncertaintyAmount::Relative(_) => format!("{key} {}", amount.describe()),
                     })
                 })
+                .chain(self.fields.iter().map(|f| {
+                    format!(
+                        "{} per cell from variable '{}' of {}",
+                        source_key(f.source),
+                        f.variable,
+                        f.path.display()
+                    )
+                }))
                 .collect::<Vec<_>>()
                 .join(", ")
         };
@@ -196,7 +273,10 @@ impl UncertaintyRequest {
             inputs: InputUncertainties::default(),
             constants: self.constants,
         };
-        let given = |source: Source| self.inputs.iter().any(|(s, _)| *s == source);
+        let given = |source: Source| {
+            self.inputs.iter().any(|(s, _)| *s == source)
+                || self.fields.iter().any(|f| f.source == source)
+        };
         (Source::ALL.into_iter())
             .filter(|&s| given(s) || (s.is_constant() && u.of(s) > 0.0))
             .collect()
@@ -210,7 +290,7 @@ pub fn solve_cell_with_uncertainty(
     cell: usize,
     fields: &[OutputField],
     choice: &ConstantChoice,
-    request: &UncertaintyRequest,
+    uncertainty: SlabUncertainty<'_>,
     put: impl FnMut(usize, f32),
     put_omega: impl FnMut(f64, f64),
 ) -> Flag {
@@ -224,7 +304,8 @@ pub fn solve_cell_with_uncertainty(
             constants: &constants,
             solution: &solution,
         };
-        let u = request.for_cell(&pair, conditions);
+        let request = uncertainty.request;
+        let u = request.for_cell(&pair, conditions, uncertainty.fields, cell);
         let uncertainty = if request.breakdown {
             let budget = uncertainty_budget(&sample, &u);
             CellUncertainty {

@@ -164,10 +164,13 @@ pub struct FlagCounts {
     pub no_flag: u64,
     /// Cells with each bit, in [`FLAG_BITS`] order (a cell may count under several).
     pub by_bit: [u64; 8],
+    /// Wet cells with indicators but no standard uncertainty (an uncertainty field missing
+    /// there, or a propagation that gave no finite number); 0 without uncertainty fields.
+    pub without_uncertainty: u64,
 }
 
 /// Numbers in [`FlagCounts::as_vec`].
-pub const FLAG_COUNT_FIELDS: usize = 11;
+pub const FLAG_COUNT_FIELDS: usize = 12;
 
 impl FlagCounts {
     /// Counts one cell's flag.
@@ -204,21 +207,30 @@ impl FlagCounts {
         self.wet - without
     }
 
-    /// land, wet, no flag, then each bit: for the progress record.
+    /// land, wet, no flag, each bit, then the cells without uncertainty: for the progress
+    /// record.
     pub fn as_vec(&self) -> Vec<u64> {
         let mut all = vec![self.land, self.wet, self.no_flag];
         all.extend(self.by_bit);
+        all.push(self.without_uncertainty);
         all
     }
 
-    /// The inverse of [`FlagCounts::as_vec`]; `None` for a list of another length.
+    /// The inverse of [`FlagCounts::as_vec`] (a record written before the count of cells
+    /// without uncertainty, one number shorter, reads it as 0); `None` for another length.
     pub fn from_slice(values: &[u64]) -> Option<FlagCounts> {
-        let (&[land, wet, no_flag], by_bit) = values.split_first_chunk::<3>()?;
+        let (&[land, wet, no_flag], rest) = values.split_first_chunk::<3>()?;
+        let (by_bit, without_uncertainty) = match rest.len() {
+            8 => (rest, 0),
+            9 => (&rest[..8], rest[8]),
+            _ => return None,
+        };
         Some(FlagCounts {
             land,
             wet,
             no_flag,
             by_bit: by_bit.try_into().ok()?,
+            without_uncertainty,
         })
     }
 }
@@ -231,6 +243,7 @@ impl AddAssign for FlagCounts {
         for (a, b) in self.by_bit.iter_mut().zip(other.by_bit) {
             *a += b;
         }
+        self.without_uncertainty += other.without_uncertainty;
     }
 }
 
@@ -272,7 +285,11 @@ mod tests {
         let values = counts.as_vec();
         assert_eq!(values.len(), FLAG_COUNT_FIELDS);
         assert_eq!(FlagCounts::from_slice(&values), Some(counts));
-        assert_eq!(FlagCounts::from_slice(&values[1..]), None);
+        assert_eq!(
+            FlagCounts::from_slice(&values[..values.len() - 1]),
+            Some(counts)
+        );
+        assert_eq!(FlagCounts::from_slice(&values[2..]), None);
     }
 
     #[test]

@@ -15,14 +15,14 @@ use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
     FLAG_VARIABLE,
 };
-use crate::plan::{plan_slabs, ColumnLoad, SlabPlan};
+use crate::plan::{plan_slabs_reading, ColumnLoad, SlabPlan};
 use crate::repair::restore_cut_tail;
 use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
 use crate::stop::StopRequest;
-use crate::stream::{stream, sync_file, OwnRecord, Sink};
+use crate::stream::{read_slab, stream, sync_file, OwnRecord, Sink};
 use crate::PipelineError;
-use acidscape_chem::ConstantChoice;
-use acidscape_gridio::Run;
+use acidscape_chem::{ConstantChoice, Source};
+use acidscape_gridio::{Run, UncertaintyField};
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
@@ -95,6 +95,8 @@ pub struct JobSummary {
     pub serial_netcdf: Duration,
     /// The corrosive-extent table written beside the output, with its first and last steps.
     pub extent: Option<ExtentOverview>,
+    /// Whether the output has standard-uncertainty fields.
+    pub uncertainty: bool,
 }
 
 /// What a job plans to do: the slabs, the output fields and the horizons.
@@ -103,15 +105,19 @@ pub struct JobPlan {
     pub slabs: SlabPlan,
     pub fields: Vec<OutputField>,
     pub horizons: Option<HorizonPlan>,
+    /// The inputs' standard-uncertainty fields, opened and checked against the run, in the
+    /// order of the request's `fields`.
+    pub uncertainty_fields: Vec<(Source, UncertaintyField)>,
     /// The output file.
     pub output: PathBuf,
 }
 
 /// Plans a job without running it: checks options and output path, and splits the work.
 pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineError> {
-    if let Some(request) = &options.uncertainty {
-        request.check()?;
-    }
+    let uncertainty_fields = match &options.uncertainty {
+        Some(request) => request.open_fields(run)?,
+        None => Vec::new(),
+    };
     let fields =
         with_uncertainty_fields(options.indicators.fields()?, options.uncertainty.as_ref());
     let horizons = options.horizons.plan(&options.indicators)?;
@@ -130,6 +136,7 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
     let plan = plan_run_slabs(
         run,
         fields.len(),
+        uncertainty_fields.len(),
         columns,
         options.memory_budget_bytes,
         options.max_rows_per_slab,
@@ -140,24 +147,28 @@ pub fn plan_job(run: &Run, options: &JobOptions) -> Result<JobPlan, PipelineErro
         slabs: plan,
         fields,
         horizons,
+        uncertainty_fields,
         output: options.output.clone(),
     })
 }
 
-/// Splits `run` into slabs of at most `max_rows` rows that fit `budget_bytes`, fitted to the
+/// Splits `run` into slabs of at most `max_rows` rows that fit `budget_bytes` (with
+/// `uncertainty_fields` inputs' uncertainty fields read beside the inputs), fitted to the
 /// inputs' chunks (see [`SlabPlan::fit_input_chunks`]).
 pub fn plan_run_slabs(
     run: &Run,
     output_fields: usize,
+    uncertainty_fields: usize,
     columns: ColumnLoad,
     budget_bytes: u64,
     max_rows: Option<usize>,
 ) -> Result<SlabPlan, PipelineError> {
     let shape = run.shape();
-    let mut plan = plan_slabs(
+    let mut plan = plan_slabs_reading(
         [shape.levels, shape.rows, shape.cols],
         run.time_steps(),
         output_fields,
+        uncertainty_fields,
         columns,
         budget_bytes,
     )?;
@@ -242,12 +253,23 @@ fn job_description(
     job
 }
 
-/// Each input file's identity and the time steps that read it.
-fn input_records(run: &Run) -> Result<Vec<InputRecord>, PipelineError> {
-    run.input_files()
-        .iter()
+/// Each input file's identity and the time steps that read it, the uncertainty fields' files
+/// last (every step reads them).
+fn input_records(
+    run: &Run,
+    fields: &[(Source, UncertaintyField)],
+) -> Result<Vec<InputRecord>, PipelineError> {
+    let steps = run.time_steps();
+    let field_files = (fields.iter()).map(|(_, field)| {
+        (
+            field.path().to_path_buf(),
+            field.has_time().then_some(0..steps),
+        )
+    });
+    (run.input_files().into_iter())
         .zip(run.steps_of_files())
-        .map(|(path, steps)| InputRecord::of(path, steps))
+        .chain(field_files)
+        .map(|(path, steps)| InputRecord::of(&path, steps))
         .collect()
 }
 
@@ -261,8 +283,8 @@ pub(crate) fn starting_record(
     resuming: bool,
     progress: &mut dyn Progress,
 ) -> Result<ProgressRecord, PipelineError> {
+    let inputs = input_records(run, &job.uncertainty_fields)?;
     let job = job_description(run, &job.slabs, options, work);
-    let inputs = input_records(run)?;
     let output = &options.output;
     if !resuming {
         let mut record = ProgressRecord::new(job, inputs);
@@ -336,7 +358,7 @@ pub fn run_job(
     let read_started = Instant::now();
     let first = match slabs.next() {
         Some((step, rows)) => Some(
-            run.read_raw_slab(step, rows)
+            read_slab(run, &job.uncertainty_fields, step, rows)
                 .map_err(|e| ended.early(e.into(), first_step))?,
         ),
         None => None,
@@ -373,6 +395,7 @@ pub fn run_job(
         run,
         plan,
         &job.fields,
+        &job.uncertainty_fields,
         options,
         work.as_ref(),
         first,
@@ -402,6 +425,7 @@ pub fn run_job(
         write: times.write,
         serial_netcdf: first_read + times.netcdf + finish,
         extent,
+        uncertainty: options.uncertainty.is_some(),
     })
 }
 

@@ -30,7 +30,9 @@ pub mod stop;
 mod stream;
 
 pub use cells::VALUE_FILL;
-pub use cells_uncertainty::{source_key, UncertaintyAmount, UncertaintyRequest, GRID_INPUTS};
+pub use cells_uncertainty::{
+    source_key, UncertaintyAmount, UncertaintyFieldSource, UncertaintyRequest, GRID_INPUTS,
+};
 pub use error::PipelineError;
 pub use extent_table::{extent_table_path, ExtentOverview};
 pub use flags::{Flag, FlagBit, FlagCounts, FLAG_BITS, FLAG_FILL};
@@ -44,7 +46,7 @@ pub use job::{
 };
 pub use memory::{format_bytes, parse_memory_size};
 pub use output::{partial_path, progress_path, FLAG_VARIABLE};
-pub use plan::{plan_slabs, ColumnLoad, SlabPlan};
+pub use plan::{plan_slabs, plan_slabs_reading, ColumnLoad, SlabPlan};
 #[cfg(feature = "mpi")]
 pub use ranks::{run_job_on_ranks, Ranks};
 pub use stop::{signal_name, StopRequest};

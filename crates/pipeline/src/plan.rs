@@ -6,6 +6,9 @@
 //!   alkalinity, phosphate, silicate, density, depth) = 72 B per cell, plus an allowance
 //!   of 72 B per cell for the reader's own scratch while it converts units; up to
 //!   [`INPUT_SLABS_IN_FLIGHT`] slabs exist at once (one being read, one queued, one being solved);
+//! - standard-uncertainty fields of inputs (`--uncertainty-field`): per field, 8 B per cell of
+//!   converted values plus 8 B of the reader's scratch, in each of the
+//!   [`INPUT_SLABS_IN_FLIGHT`] input slabs;
 //! - outputs: 4 B per cell per indicator (f32) + 2 B quality flag (i16); up to
 //!   [`OUTPUT_SLABS_IN_FLIGHT`] at once (one being filled, one queued, one being written);
 //! - saturation horizons and corrosive extent (when computed, see [`ColumnLoad`]): Ω in f64
@@ -27,6 +30,8 @@ use std::ops::Range;
 pub const INPUT_BYTES_PER_CELL: u64 = 9 * 8;
 /// Allowance per cell for the reader's scratch while it reads and converts.
 pub const READ_SCRATCH_BYTES_PER_CELL: u64 = 9 * 8;
+/// Bytes per cell of one input's standard-uncertainty field in one slab (values and scratch).
+pub const UNCERTAINTY_FIELD_BYTES_PER_CELL: u64 = 2 * 8;
 /// Slabs of inputs alive at once: being read, queued, being solved.
 pub const INPUT_SLABS_IN_FLIGHT: u64 = 3;
 /// Slabs of outputs alive at once: being filled, queued, being written.
@@ -94,6 +99,8 @@ pub struct SlabPlan {
     pub chunk: [usize; 3],
     /// Output variables (indicators) per cell, not counting the quality flag.
     pub output_fields: usize,
+    /// Inputs' standard-uncertainty fields read beside the inputs.
+    pub uncertainty_fields: usize,
     /// What the column analysis adds.
     pub columns: ColumnLoad,
     /// The budget the plan was made for, in bytes.
@@ -124,7 +131,7 @@ impl SlabPlan {
 
     /// Bytes per cell of a slab across everything in flight (see the module notes).
     pub fn bytes_per_cell(&self) -> u64 {
-        bytes_per_cell(self.output_fields, self.columns)
+        bytes_per_cell(self.output_fields, self.uncertainty_fields, self.columns)
     }
 
     /// Bytes held whatever the slab size: the fixed allowance and the per-column geometry.
@@ -137,9 +144,17 @@ impl SlabPlan {
 
     /// Estimated peak memory of a compute job with this plan.
     pub fn estimated_peak_bytes(&self) -> u64 {
-        self.fixed_bytes()
-            + self.read_cache_bytes
-            + self.rows_per_slab as u64 * row_bytes(self.shape, self.output_fields, self.columns)
+        self.fixed_bytes() + self.read_cache_bytes + self.rows_per_slab as u64 * self.row_bytes()
+    }
+
+    /// Bytes of one grid row of slab across everything in flight.
+    fn row_bytes(&self) -> u64 {
+        row_bytes(
+            self.shape,
+            self.output_fields,
+            self.uncertainty_fields,
+            self.columns,
+        )
     }
 
     /// Fits the slabs to the inputs' chunks (`chunk_rows`: rows of one stored chunk, where
@@ -160,7 +175,7 @@ impl SlabPlan {
         self.read_cache_bytes = 0;
         self.read_cache_shortfall = 0;
         // Smaller slabs beside the cache, rather than chunks inflated again for every slab.
-        let row_bytes = row_bytes(self.shape, self.output_fields, self.columns);
+        let row_bytes = self.row_bytes();
         let fits = |rows: usize| {
             self.fixed_bytes() + rows as u64 * row_bytes + cache_for(rows) <= self.budget_bytes
         };
@@ -209,12 +224,16 @@ impl fmt::Display for SlabPlan {
         )?;
         writeln!(
             f,
-            "{} slab(s) per time step, {} in all; estimated peak memory {} ({} B per cell in flight for {} indicator(s), plus {} fixed).",
+            "{} slab(s) per time step, {} in all; estimated peak memory {} ({} B per cell in flight for {} output field(s){}, plus {} fixed).",
             self.slabs_per_step(),
             self.slabs_per_step() * self.steps,
             format_bytes(self.estimated_peak_bytes()),
             self.bytes_per_cell(),
             self.output_fields,
+            match self.uncertainty_fields {
+                0 => String::new(),
+                n => format!(" and {n} input uncertainty field(s) read"),
+            },
             format_bytes(self.fixed_bytes())
         )?;
         write!(
@@ -241,17 +260,25 @@ impl fmt::Display for SlabPlan {
     }
 }
 
-fn bytes_per_cell(output_fields: usize, columns: ColumnLoad) -> u64 {
-    INPUT_SLABS_IN_FLIGHT * (INPUT_BYTES_PER_CELL + READ_SCRATCH_BYTES_PER_CELL)
+fn bytes_per_cell(output_fields: usize, uncertainty_fields: usize, columns: ColumnLoad) -> u64 {
+    INPUT_SLABS_IN_FLIGHT
+        * (INPUT_BYTES_PER_CELL
+            + READ_SCRATCH_BYTES_PER_CELL
+            + UNCERTAINTY_FIELD_BYTES_PER_CELL * uncertainty_fields as u64)
         + OUTPUT_SLABS_IN_FLIGHT
             * (4 * output_fields as u64 + std::mem::size_of::<crate::flags::Flag>() as u64)
         + columns.bytes_per_cell()
 }
 
 /// Bytes of one grid row of slab (all levels × all columns) across everything in flight.
-fn row_bytes(shape: [usize; 3], output_fields: usize, columns: ColumnLoad) -> u64 {
+fn row_bytes(
+    shape: [usize; 3],
+    output_fields: usize,
+    uncertainty_fields: usize,
+    columns: ColumnLoad,
+) -> u64 {
     let [levels, _, cols] = shape;
-    (levels * cols) as u64 * bytes_per_cell(output_fields, columns)
+    (levels * cols) as u64 * bytes_per_cell(output_fields, uncertainty_fields, columns)
         + cols as u64 * columns.bytes_per_column()
 }
 
@@ -265,6 +292,19 @@ pub fn plan_slabs(
     columns: ColumnLoad,
     budget_bytes: u64,
 ) -> Result<SlabPlan, PipelineError> {
+    plan_slabs_reading(shape, steps, output_fields, 0, columns, budget_bytes)
+}
+
+/// As [`plan_slabs`], with `uncertainty_fields` inputs' standard-uncertainty fields read beside
+/// the inputs.
+pub fn plan_slabs_reading(
+    shape: [usize; 3],
+    steps: usize,
+    output_fields: usize,
+    uncertainty_fields: usize,
+    columns: ColumnLoad,
+    budget_bytes: u64,
+) -> Result<SlabPlan, PipelineError> {
     let [levels, rows, cols] = shape;
     if levels == 0 || rows == 0 || cols == 0 || steps == 0 {
         return Err(PipelineError::Option {
@@ -274,7 +314,7 @@ pub fn plan_slabs(
             ),
         });
     }
-    let row_bytes = row_bytes(shape, output_fields, columns);
+    let row_bytes = row_bytes(shape, output_fields, uncertainty_fields, columns);
     let fixed = FIXED_OVERHEAD_BYTES + columns.fixed_bytes((rows * cols) as u64);
     let minimum = fixed + row_bytes;
     if budget_bytes < minimum {
@@ -317,6 +357,7 @@ pub fn plan_slabs(
         rows_per_slab,
         chunk,
         output_fields,
+        uncertainty_fields,
         columns,
         budget_bytes,
         read_cache_bytes: 0,

@@ -152,8 +152,18 @@ pub fn run_job_on_ranks(
         ledger: &mut ledger,
     };
     let (fields, work_ref) = (&job.fields, work.as_ref());
+    let read_beside = &job.uncertainty_fields;
     let streamed = stream(
-        run, plan, fields, options, work_ref, None, slabs, sink, progress,
+        run,
+        plan,
+        fields,
+        read_beside,
+        options,
+        work_ref,
+        None,
+        slabs,
+        sink,
+        progress,
     );
     progress.finish();
     let times = streamed.map_err(|e| ended.kept(e, record.steps_done))?;
@@ -183,6 +193,7 @@ pub fn run_job_on_ranks(
         // This rank's own: reading its steps, its share of the collective writes, closing.
         serial_netcdf: times.netcdf + closing,
         extent,
+        uncertainty: options.uncertainty.is_some(),
     })
 }
 

@@ -4,8 +4,8 @@
 //! ```text
 //! acidscape-progress 2
 //! steps_done 3
-//! flag_counts 40 1160 300 820 0 0 0 0 2 2 2
-//! checkpoint 0 0 0 0 0 0 0 0 0 0 0 0
+//! flag_counts 40 1160 300 820 0 0 0 0 2 2 2 0
+//! checkpoint 0 0 0 0 0 0 0 0 0 0 0 0 0
 //! job acidscape 0.1.0
 //! job grid 50 180 360 steps 12
 //! input 123456 9f0c1d2e3a4b5c6d 0-6 /data/run/dissic_201501-201506.nc

@@ -2,6 +2,7 @@
 //! finished time step and a clean stop when asked.
 
 use crate::cells::{solve_slab, KeepOmega, SaturationStates, SlabResult, SlabSolver};
+use crate::cells_uncertainty::{FieldAmounts, SlabUncertainty};
 use crate::column_output::{write_columns, write_extent_step};
 use crate::columns::{ColumnResult, ColumnWork};
 use crate::error::nc;
@@ -12,7 +13,8 @@ use crate::output::{write_slab, OutputLayout};
 use crate::plan::SlabPlan;
 use crate::resume::ProgressRecord;
 use crate::PipelineError;
-use acidscape_gridio::{GridError, RawSlab, Run};
+use acidscape_chem::Source;
+use acidscape_gridio::{GridError, RawSlab, Run, UncertaintyField};
 use std::fs;
 use std::ops::Range;
 use std::path::Path;
@@ -123,6 +125,29 @@ impl SerialNetcdf {
     }
 }
 
+/// The inputs' standard-uncertainty fields of a job, each with the input it is for.
+pub(crate) type InputFields = [(Source, UncertaintyField)];
+
+/// One slab as read: the run's values and each uncertainty field's, not yet converted.
+pub(crate) struct SlabRead {
+    raw: RawSlab,
+    fields: Vec<Vec<f64>>,
+}
+
+/// Reads one slab of the run and of each of its uncertainty fields (libnetcdf work only).
+pub(crate) fn read_slab(
+    run: &Run,
+    fields: &InputFields,
+    step: usize,
+    rows: Range<usize>,
+) -> Result<SlabRead, GridError> {
+    let raw = run.read_raw_slab(step, rows.clone())?;
+    let fields = (fields.iter())
+        .map(|(_, field)| field.read(step, rows.clone()))
+        .collect::<Result<_, _>>()?;
+    Ok(SlabRead { raw, fields })
+}
+
 /// A solved slab with its column analysis, on its way to the writer.
 pub(crate) struct Solved {
     cells: SlabResult,
@@ -131,21 +156,36 @@ pub(crate) struct Solved {
 
 /// Solves one slab and analyses its columns; the f64 Ω the analysis needed are dropped
 /// before the slab goes on to the writer.
+#[allow(clippy::too_many_arguments)]
 fn solve(
     run: &Run,
-    raw: RawSlab,
+    read: SlabRead,
     fields: &[OutputField],
+    input_fields: &InputFields,
     options: &JobOptions,
     work: Option<&ColumnWork>,
     busy: &mut (Duration, Duration),
     spare: &mut SaturationStates,
 ) -> Result<Solved, PipelineError> {
     let t = Instant::now();
-    let inputs = run.convert_slab(raw);
+    let inputs = run.convert_slab(read.raw);
+    let amounts: Vec<FieldAmounts> = (input_fields.iter().zip(read.fields))
+        .map(|((source, field), mut values)| {
+            field.convert(&mut values, &inputs);
+            FieldAmounts {
+                source: *source,
+                relative: field.is_relative(),
+                values,
+            }
+        })
+        .collect();
     let keep = work.map_or(KeepOmega::default(), ColumnWork::keep);
     let buffers = std::mem::take(spare);
     let solver = SlabSolver::Kernel;
-    let uncertainty = options.uncertainty.as_ref();
+    let uncertainty = (options.uncertainty.as_ref()).map(|request| SlabUncertainty {
+        request,
+        fields: &amounts,
+    });
     let mut cells = solve_slab(
         solver,
         &inputs,
@@ -171,9 +211,10 @@ pub(crate) fn stream(
     run: &Run,
     plan: &SlabPlan,
     fields: &[OutputField],
+    input_fields: &InputFields,
     options: &JobOptions,
     work: Option<&ColumnWork>,
-    first: Option<RawSlab>,
+    first: Option<SlabRead>,
     slabs: impl Iterator<Item = (usize, Range<usize>)> + Send,
     sink: Sink<'_>,
     progress: &mut dyn Progress,
@@ -184,7 +225,7 @@ pub(crate) fn stream(
     std::thread::scope(|scope| -> Result<StageTimes, PipelineError> {
         // The reader only reads (libnetcdf is serialised); unit and TEOS-10 conversions run with
         // the solver on the rayon pool, so the reader never queues behind the solver's jobs.
-        let (input_tx, input_rx) = sync_channel::<Result<RawSlab, GridError>>(1);
+        let (input_tx, input_rx) = sync_channel::<Result<SlabRead, GridError>>(1);
         let (result_tx, result_rx) = sync_channel::<Result<Solved, PipelineError>>(1);
         let reader = scope.spawn(move || {
             let mut busy = Duration::ZERO;
@@ -198,7 +239,7 @@ pub(crate) fn stream(
                     break;
                 }
                 let t = Instant::now();
-                let slab = serial.run(|| run.read_raw_slab(step, rows));
+                let slab = serial.run(|| read_slab(run, input_fields, step, rows));
                 busy += t.elapsed();
                 let failed = slab.is_err();
                 if input_tx.send(slab).is_err() || failed {
@@ -211,9 +252,10 @@ pub(crate) fn stream(
             let mut busy = (Duration::ZERO, Duration::ZERO);
             let mut spare = SaturationStates::default();
             for item in input_rx {
-                let item = item
-                    .map_err(PipelineError::from)
-                    .and_then(|raw| solve(run, raw, fields, options, work, &mut busy, &mut spare));
+                let item = item.map_err(PipelineError::from).and_then(|read| {
+                    let (busy, spare) = (&mut busy, &mut spare);
+                    solve(run, read, fields, input_fields, options, work, busy, spare)
+                });
                 let failed = item.is_err();
                 if result_tx.send(item).is_err() || failed {
                     break;

@@ -43,6 +43,7 @@ fn request() -> UncertaintyRequest {
             (Source::Phosphate, UncertaintyAmount::Relative(0.1)),
             (Source::Silicate, UncertaintyAmount::Relative(0.05)),
         ],
+        fields: Vec::new(),
         constants: ConstantUncertainties::ORR_2018,
         breakdown: false,
     }

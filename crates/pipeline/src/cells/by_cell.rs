@@ -1,7 +1,7 @@
 //! The reference path: [`acidscape_chem::solve`] once per cell.
 
 use super::{assessed_ranges, ranges, unsolvable, write_solved, Block, BlockSolver, SlabJob};
-use crate::cells_uncertainty::{solve_cell_with_uncertainty, UncertaintyRequest};
+use crate::cells_uncertainty::{solve_cell_with_uncertainty, SlabUncertainty};
 use crate::flags::{error_flag, Flag};
 use crate::indicators::{CellUncertainty, OutputField};
 use acidscape_chem::{solve, ChemError, Conditions, ConstantChoice, InputPair, Output, Solution};
@@ -10,7 +10,7 @@ use acidscape_gridio::SlabInputs;
 /// The scalar solver, one cell after another; with an uncertainty request, each cell through
 /// [`solve_cell_with_uncertainty`] (the kernel has no derivatives).
 pub(super) struct ByCell<'a> {
-    pub(super) uncertainty: Option<&'a UncertaintyRequest>,
+    pub(super) uncertainty: Option<SlabUncertainty<'a>>,
 }
 
 impl BlockSolver for ByCell<'_> {
@@ -24,8 +24,14 @@ impl BlockSolver for ByCell<'_> {
             let put_omega = |aragonite, calcite| omega = Some([aragonite, calcite]);
             block.flags[offset] = match self.uncertainty {
                 None => solve_cell(inputs, cell, fields, choice, put, put_omega),
-                Some(request) => solve_cell_with_uncertainty(
-                    inputs, cell, fields, choice, request, put, put_omega,
+                Some(uncertainty) => solve_cell_with_uncertainty(
+                    inputs,
+                    cell,
+                    fields,
+                    choice,
+                    uncertainty,
+                    put,
+                    put_omega,
                 ),
             };
             if let Some(values) = omega {
