@@ -72,6 +72,38 @@ if "$bin" compute "$first_run"*.nc -o "$out" --overwrite --indicators ph,omega-a
 else
     echo "compute with --uncertainty-breakdown failed on $first_run:"; cat "$work/uncertainty-breakdown.log"; failed=1
 fi
+# An input's uncertainty read from a NetCDF field on the run's grid (a misfit map, written
+# here with xarray from the run's own DIC file: 3 umol kg-1 everywhere) gives the same fields
+# as the same number given as an option.
+misfit="$work/dic-misfit.nc"
+python3 - "$first_run" "$misfit" <<'PY' || failed=1
+import glob, sys
+import xarray as xr
+dic = xr.open_dataset(sorted(glob.glob(sys.argv[1] + "dissic_*.nc"))[0])
+field = (dic["dissic"].isel(time=0, drop=True) * 0 + 3.0).astype("float32").rename("dic_misfit")
+field.attrs = {"units": "umol kg-1", "long_name": "DIC model-minus-observation misfit (SYNTHETIC)"}
+field.to_dataset().to_netcdf(sys.argv[2])
+PY
+if "$bin" compute "$first_run"*.nc -o "$work/field-uncertainty.nc" --overwrite \
+        --uncertainty-field dic="$misfit":dic_misfit --no-constant-uncertainty >"$work/field-uncertainty.log" 2>&1 &&
+    "$bin" compute "$first_run"*.nc -o "$work/number-uncertainty.nc" --overwrite \
+        --uncertainty dic=3 --no-constant-uncertainty >"$work/number-uncertainty.log" 2>&1; then
+    echo "== uncertainty from a field: external readers, compliance-checker cf:1.10, same as the number"
+    python3 scripts/check_external_readers.py "$work/field-uncertainty.nc" --cf-suite cf:1.10 \
+        --expect-var ph_uncertainty --expect-units omega_aragonite_uncertainty=1 || failed=1
+    python3 - "$work/field-uncertainty.nc" "$work/number-uncertainty.nc" <<'PY' || failed=1
+import sys
+import numpy as np
+import xarray as xr
+a, b = xr.open_dataset(sys.argv[1]), xr.open_dataset(sys.argv[2])
+names = [v for v in a.data_vars if v.endswith("_uncertainty")]
+bad = [v for v in names if not np.array_equal(a[v].values, b[v].values, equal_nan=True)]
+print(f"differ from the number: {bad}" if bad else f"ok   {len(names)} uncertainty fields from the field equal those from the number")
+sys.exit(1 if bad or not names else 0)
+PY
+else
+    echo "compute with --uncertainty-field failed on $first_run:"; cat "$work/field-uncertainty.log" "$work/number-uncertainty.log"; failed=1
+fi
 if [[ -f "$work/with-uncertainty.nc" && -f "$work/uncertainty-breakdown.nc" ]]; then
     echo "== uncertainty fields: names, units and CF links"
     python3 - "$work/with-uncertainty.nc" "$work/uncertainty-breakdown.nc" <<'PY' || failed=1
