@@ -4,9 +4,12 @@
 #   chunking, compression and attributes (history aside) as the single-process output, read
 #   with netCDF4 (scripts/compare_nc_outputs.py), and the extent CSV is the same byte for byte;
 # - several slabs per time step (a small --memory-budget) on 2 and 3 ranks, the same;
-# - a job stopped on every rank after some steps, and a job with one rank killed (SIGKILL)
-#   mid-run: no complete-looking output is left, and `--resume` in one process finishes an
-#   output identical to the uninterrupted one;
+# - a job stopped on every rank of 2 after some steps: no complete-looking output is left, and
+#   `--resume` on 1, 2 and 3 ranks finishes an output identical to the uninterrupted one; a
+#   `--resume` that rank 0 refuses (other options; a partial output that lost its last
+#   finished step) gives one message and keeps the partial output;
+# - a job with one of 2 ranks killed (SIGKILL) mid-run, then `--resume` on 2 ranks: identical,
+#   or a clean failure that says to start over, and `--overwrite` identical;
 # - in every case the summary's flag counts (all steps) are those of the single process (after
 #   a resume, they come from the progress record the ranks kept);
 # - a 3-rank output passes the external readers and the CF checker (check_external_readers.py);
@@ -97,31 +100,77 @@ for ranks in 2 3; do
     fi
 done
 
-# Ends without a complete-looking output, keeps the partial one and its progress record, then
-# `--resume` in one process finishes the same output as the uninterrupted run.
-check_resumed() { # output, log, what
-    local out=$1 log=$2 what=$3
+# Ends without a complete-looking output, and keeps the partial one and its progress record.
+check_kept() { # output, what
+    local out=$1 what=$2
     if [[ -e "$out" || -e "${out%.nc}.extent.csv" ]]; then fail "$what: a complete-looking output is left"; fi
     local partial
     partial="$(dirname "$out")/.$(basename "$out").partial"
     [[ -e "$partial" && -e "$partial.progress" ]] || fail "$what: no partial output and progress record kept"
-    if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --resume >"$log.resume" 2>&1; then
-        grep -o 'resumed at time step [0-9]*' "$log.resume" || true
-        same "$work/slabs.nc" "$out" "$what, then --resume" "$work/slabs.log" "$log.resume"
+}
+# `--resume` on some ranks (1: one process, without mpirun) into `output`, with more options
+# if given; its log is output.log.resume. Returns the command's status.
+resume_on() { # ranks, output, options...
+    local ranks=$1 out=$2
+    shift 2
+    if [[ $ranks == 1 ]]; then
+        "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --resume "$@" >"$out.log.resume" 2>&1
     else
-        cat "$log.resume"; fail "$what: --resume"
+        mpi_run "$ranks" "${century[@]}" -o "$out" "${budget[@]}" --resume "$@" >"$out.log.resume" 2>&1
     fi
 }
+# `--resume` finishes the same output as the uninterrupted run.
+check_resumed() { # ranks, output, what
+    local ranks=$1 out=$2 what="$3, then --resume on $1 rank(s)"
+    if resume_on "$ranks" "$out"; then
+        grep -o 'resumed at time step [0-9]*' "$out.log.resume" || fail "$what: not resumed"
+        same "$work/slabs.nc" "$out" "$what" "$work/slabs.log" "$out.log.resume"
+    else
+        cat "$out.log.resume"; fail "$what: exit status"
+    fi
+}
+# `--resume` on 2 ranks refused by rank 0 alone: one message matching `pattern`, and the
+# partial output kept.
+check_refused() { # output, pattern, what, options...
+    local out=$1 pattern=$2 what=$3
+    shift 3
+    if resume_on 2 "$out" "$@"; then
+        fail "$what: exited 0"
+    elif [[ $(grep -c "$pattern" "$out.log.resume") == 1 ]] && ! grep -q 'error on rank' "$out.log.resume"; then
+        passed=$((passed + 1))
+    else
+        cat "$out.log.resume"; fail "$what: not one message from rank 0"
+    fi
+    check_kept "$out" "$what"
+}
+# A copy of the stopped job's partial output and record, for the output `name`.
+copy_stopped() { # name
+    cp "$work/.stopped.nc.partial" "$work/.$1.partial"
+    cp "$work/.stopped.nc.partial.progress" "$work/.$1.partial.progress"
+}
 
-echo "== every rank stopped after 6 of 86 steps (3 ranks), then --resume in one process"
+echo "== every rank of 2 stopped after 6 of 86 steps, then --resume on 1, 2 and 3 ranks"
 out="$work/stopped.nc"
-if ACIDSCAPE_STOP_AFTER_STEPS=6 mpi_run 3 "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1; then
+if ACIDSCAPE_STOP_AFTER_STEPS=6 mpi_run 2 "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1; then
     fail "a stopped MPI job exited 0"
 fi
 grep -m1 'error on rank' "$out.log" || fail "no message naming the failing rank"
-check_resumed "$out" "$out.log" "stopped after 6 steps"
+check_kept "$out" "stopped after 6 steps"
+grep '^steps_done' "$work/.stopped.nc.partial.progress" || true
+for ranks in 1 2 3; do
+    copy_stopped "stopped-$ranks.nc"
+    check_resumed "$ranks" "$work/stopped-$ranks.nc" "stopped after 6 steps"
+done
 
-echo "== one of 2 ranks killed (SIGKILL) mid-run, then --resume in one process"
+echo "== --resume on 2 ranks refused by rank 0: other options; a partial output that lost its last finished step"
+copy_stopped stopped-refused.nc
+check_refused "$work/stopped-refused.nc" 'the options or the run differ' "--resume with other options" --no-horizons
+# Cut to 60 %: rank 0 mends the tail (zeros), cannot read step 6 back: start over.
+copy_stopped stopped-cut.nc
+truncate -s $(($(stat -c %s "$work/.stopped.nc.partial") * 6 / 10)) "$work/.stopped-cut.nc.partial"
+check_refused "$work/stopped-cut.nc" 'cannot be read back.*start over with --overwrite' "--resume into a partial output cut short"
+
+echo "== one of 2 ranks killed (SIGKILL) mid-run, then --resume on 2 ranks"
 out="$work/killed.nc"
 partial="$work/.killed.nc.partial"
 mpi_run 2 "${century[@]}" -o "$out" "${budget[@]}" >"$out.log" 2>&1 &
@@ -144,17 +193,18 @@ if wait "$launcher"; then
 fi
 [[ -n "$victim" ]] || fail "no rank could be killed mid-run"
 tail -n 3 "$out.log"
+check_kept "$out" "one of 2 ranks killed"
 # A rank killed inside a collective write can leave the parallel HDF5 file's metadata
-# half-updated (it keeps no journal); then --resume must stop with a clear error and no
-# complete-looking output, and --overwrite must give the uninterrupted output. Seen about once
-# in five runs on this machine; either way no wrong number may come out.
-if [[ -e "$out" ]]; then fail "one of 2 ranks killed: a complete-looking output is left"; fi
-if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --resume >"$out.log.resume" 2>&1; then
-    grep -o 'resumed at time step [0-9]*' "$out.log.resume" || true
-    same "$work/slabs.nc" "$out" "one of 2 ranks killed, then --resume" "$work/slabs.log" "$out.log.resume"
-elif [[ ! -e "$out" ]] && grep -q "run the same command with --resume" "$out.log.resume"; then
-    echo "--resume stopped on the damaged partial output (as documented):"; tail -n 2 "$out.log.resume"
-    if "$parallel" compute "${century[@]}" -o "$out" "${budget[@]}" --overwrite >"$out.log.over" 2>&1; then
+# half-updated (it keeps no journal); then --resume must stop with a clear error that says to
+# start over (not to resume again) and no complete-looking output, and --overwrite must give
+# the uninterrupted output. Either way no wrong number may come out.
+if resume_on 2 "$out"; then
+    grep -o 'resumed at time step [0-9]*' "$out.log.resume" || fail "one of 2 ranks killed: not resumed"
+    same "$work/slabs.nc" "$out" "one of 2 ranks killed, then --resume on 2 ranks" "$work/slabs.log" "$out.log.resume"
+elif [[ ! -e "$out" ]] && grep -q "start over with --overwrite" "$out.log.resume" \
+    && ! grep -q "with --resume to continue" "$out.log.resume"; then
+    echo "--resume stopped on the damaged partial output (as documented):"; grep -m2 'acidscape: error' "$out.log.resume"
+    if mpi_run 2 "${century[@]}" -o "$out" "${budget[@]}" --overwrite >"$out.log.over" 2>&1; then
         same "$work/slabs.nc" "$out" "one of 2 ranks killed, then --overwrite" "$work/slabs.log" "$out.log.over"
     else
         cat "$out.log.over"; fail "one of 2 ranks killed: --overwrite"

@@ -85,7 +85,9 @@ pub struct ComputeArgs {
 
     /// Continue an interrupted run (killed, stopped by SIGTERM at the wall-time limit, or ended
     /// by a read or write error) from its last finished time step, with the same options; inputs
-    /// are recognised by content, so a copied or touched run still resumes
+    /// are recognised by content, so a copied or touched run still resumes. A build with the
+    /// `mpi` feature resumes under mpirun or srun on any number of ranks, whatever the number
+    /// that stopped
     #[arg(long)]
     pub resume: bool,
 }
@@ -169,7 +171,7 @@ fn on_ranks(
     progress: Box<dyn Progress>,
     constants: &ConstantChoice,
 ) -> Result<(), Box<dyn Error>> {
-    use acidscape_pipeline::{run_job_on_ranks, NoProgress, Ranks};
+    use acidscape_pipeline::{run_job_on_ranks, NoProgress, PipelineError, Ranks};
     let ranks = Ranks::init()?;
     let mut progress = if ranks.rank() == 0 {
         progress
@@ -184,20 +186,35 @@ fn on_ranks(
             Ok(())
         }
         Err(error) if ranks.size() == 1 => Err(error.into()),
+        // Every rank has it: rank 0 reports it as one process would, the others end quietly
+        // once it has (mpirun may end the job when the first rank exits).
+        Err(error @ PipelineError::AllRanks { .. }) => {
+            if ranks.rank() == 0 {
+                let _ = writeln!(std::io::stderr(), "acidscape: error: {error}");
+            }
+            ranks.wait_for_all();
+            drop(ranks);
+            signal_hook::low_level::exit(exit_status(&error))
+        }
         Err(error) => {
             let (rank, size) = (ranks.rank(), ranks.size());
             // One write, so that the ranks' messages do not interleave.
             let text = format!(
-                "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort); --resume continues a partial output in one process (without mpirun)\n"
+                "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort)\n"
             );
             let _ = std::io::stderr().write_all(text.as_bytes());
-            let code = error
-                .signal()
-                .and_then(|s| i32::try_from(128 + s).ok())
-                .unwrap_or(1);
-            ranks.abort(code)
+            ranks.abort(exit_status(&error))
         }
     }
+}
+
+/// A rank's exit status after `error`: 128 + the signal that stopped the job, else 1.
+#[cfg(feature = "mpi")]
+fn exit_status(error: &acidscape_pipeline::PipelineError) -> i32 {
+    error
+        .signal()
+        .and_then(|s| i32::try_from(128 + s).ok())
+        .unwrap_or(1)
 }
 
 /// SIGINT and SIGTERM (a scheduler's wall-time signal) ask the job to stop after the slab in

@@ -41,6 +41,13 @@ pub enum PipelineError {
         steps_total: usize,
         partial: PathBuf,
     },
+    /// A failure rank 0 of an MPI job found before any rank wrote, and told every rank: all
+    /// end with it, and only rank 0 reports it.
+    #[error("{message}")]
+    AllRanks {
+        message: String,
+        signal: Option<usize>,
+    },
     /// A worker thread ended without a result (a bug, reported rather than hidden).
     #[error("internal error: {0}")]
     Internal(String),
@@ -61,6 +68,7 @@ impl PipelineError {
         match self {
             PipelineError::Signal { signal } => Some(*signal),
             PipelineError::Interrupted { cause, .. } => cause.signal(),
+            PipelineError::AllRanks { signal, .. } => *signal,
             _ => None,
         }
     }

@@ -6,18 +6,17 @@ use crate::cells_uncertainty::UncertaintyRequest;
 use crate::columns::ColumnWork;
 use crate::error::nc;
 use crate::extent_table::{write_extent_table, ExtentOverview};
-use crate::flags::{Flag, FlagCounts};
+use crate::flags::FlagCounts;
 use crate::geometry::ColumnGeometry;
 use crate::horizon_choice::{HorizonChoice, HorizonPlan};
 use crate::indicators::{with_uncertainty_fields, IndicatorChoice, OutputField};
-use crate::leftovers::{check_leftovers, remove_leftovers, Leftovers};
+use crate::leftovers::{check_leftovers, remove_leftovers};
 use crate::output::{
     define_output, partial_path, progress_path, utc_timestamp, OutputLayout, OutputMetadata,
-    FLAG_VARIABLE,
 };
 use crate::plan::{plan_slabs_reading, ColumnLoad, SlabPlan};
-use crate::repair::restore_cut_tail;
-use crate::resume::{sync_parent, Fnv1a64, InputRecord, ProgressRecord};
+use crate::resume::{sync_parent, ProgressRecord};
+use crate::start::{continue_partial, damaged_partial, decide_start, Start};
 use crate::stop::StopRequest;
 use crate::stream::{read_slab, stream, sync_file, OwnRecord, Sink};
 use crate::PipelineError;
@@ -215,113 +214,6 @@ fn check_output_path(run: &Run, options: &JobOptions, steps: usize) -> Result<()
     check_leftovers(output, options.resume, options.overwrite, steps)
 }
 
-/// Lines describing everything but the inputs' content that decides the output's values
-/// (see [`ProgressRecord`]).
-fn job_description(
-    run: &Run,
-    plan: &SlabPlan,
-    options: &JobOptions,
-    work: Option<&ColumnWork>,
-) -> Vec<String> {
-    let mut job = vec![format!("acidscape {}", env!("CARGO_PKG_VERSION"))];
-    job.push(format!(
-        "grid {} {} {} steps {}",
-        plan.shape[0], plan.shape[1], plan.shape[2], plan.steps
-    ));
-    let mut time = Fnv1a64::default();
-    for value in run.time_values() {
-        time.update(&value.to_le_bytes());
-    }
-    job.push(format!("time axis {:016x}", time.finish()));
-    job.push(format!("constants {}", options.constants.describe()));
-    job.push(options.indicators.describe());
-    job.push(options.horizons.describe());
-    if let Some(request) = &options.uncertainty {
-        job.push(format!("uncertainty {}", request.describe()));
-    }
-    if let Some(work) = work {
-        let g = work.geometry();
-        job.push(format!("cell areas: {}", g.area_source));
-        job.push(format!("sea floor: {}", g.sea_floor_source));
-        job.push(format!("level bounds: {}", g.vertical.describe()));
-    }
-    job.extend(
-        run.provenance()
-            .into_iter()
-            .map(|(key, value)| format!("processing {key}: {}", value.replace('\n', " "))),
-    );
-    job
-}
-
-/// Each input file's identity and the time steps that read it, the uncertainty fields' files
-/// last (every step reads them).
-fn input_records(
-    run: &Run,
-    fields: &[(Source, UncertaintyField)],
-) -> Result<Vec<InputRecord>, PipelineError> {
-    let steps = run.time_steps();
-    let field_files = (fields.iter()).map(|(_, field)| {
-        (
-            field.path().to_path_buf(),
-            field.has_time().then_some(0..steps),
-        )
-    });
-    (run.input_files().into_iter())
-        .zip(run.steps_of_files())
-        .chain(field_files)
-        .map(|(path, steps)| InputRecord::of(&path, steps))
-        .collect()
-}
-
-/// The progress record a job continues or starts, with a note for the user when a resume
-/// does not start where the interrupted run stopped.
-pub(crate) fn starting_record(
-    run: &Run,
-    job: &JobPlan,
-    options: &JobOptions,
-    work: Option<&ColumnWork>,
-    resuming: bool,
-    progress: &mut dyn Progress,
-) -> Result<ProgressRecord, PipelineError> {
-    let inputs = input_records(run, &job.uncertainty_fields)?;
-    let job = job_description(run, &job.slabs, options, work);
-    let output = &options.output;
-    if !resuming {
-        let mut record = ProgressRecord::new(job, inputs);
-        record.finish_steps(0);
-        return Ok(record);
-    }
-    let refuse = |message: String| PipelineError::Resume {
-        path: output.clone(),
-        message,
-    };
-    let mut record = ProgressRecord::load(&progress_path(output))?;
-    if let Some(why) = record.job_difference(&job) {
-        return Err(refuse(format!(
-            "the options or the run differ from the interrupted run: {why}; rerun with the same options, or start over with --overwrite"
-        )));
-    }
-    let point = record.resume_point(&inputs).map_err(refuse)?;
-    for path in &point.replaced {
-        progress.note(&format!(
-            "{} differs from the file the interrupted run read; it had not been read in full, so it is used as it is now",
-            path.display()
-        ));
-    }
-    if point.step < record.steps_done {
-        progress.note(&format!(
-            "time steps {} to {} read a replaced file and are computed again",
-            point.step + 1,
-            record.steps_done
-        ));
-    }
-    record.steps_done = point.step;
-    record.counts = point.counts;
-    record.checkpoints.retain(|(step, _)| *step <= point.step);
-    record.inputs = inputs;
-    Ok(record)
-}
-
 /// Runs a compute job to completion (or to a clean stop), writing `options.output`.
 pub fn run_job(
     run: &Run,
@@ -335,25 +227,18 @@ pub fn run_job(
     let output = options.output.clone();
     let partial = partial_path(&output);
     let record_path = progress_path(&output);
-    let leftovers = Leftovers::of(&output);
-    let resuming = options.resume && leftovers == Leftovers::Interrupted;
-    if options.resume && leftovers == Leftovers::Unstarted {
-        progress.note(
-            "the interrupted run had not finished any time step: starting from the beginning",
-        );
-    }
-    let mut record = starting_record(run, &job, options, work.as_ref(), resuming, progress)?;
+    let Start {
+        mut record,
+        resuming,
+    } = decide_start(run, &job, options, work.as_ref(), progress)?;
     let ended = Ending {
         partial: &partial,
         steps_total: plan.steps,
         resuming,
+        first_step: record.steps_done.min(plan.steps),
     };
-    if let Some(signal) = options.stop.requested() {
-        return Err(ended.early(PipelineError::Signal { signal }, record.steps_done));
-    }
-    let first_step = record.steps_done.min(plan.steps);
+    let first_step = ended.first_step;
     let mut slabs = plan.slabs(first_step);
-    check_writable(&partial, resuming).map_err(|e| ended.early(e, first_step))?;
     // Read the first slab before any output exists: unreadable inputs fail cleanly.
     let read_started = Instant::now();
     let first = match slabs.next() {
@@ -366,9 +251,16 @@ pub fn run_job(
     let first_read = read_started.elapsed();
 
     let (mut file, layout) = if resuming {
-        let opened = open_partial(&partial, plan, first_step, &options.command_line, progress);
         // A partial output that cannot be opened says so itself, with the way out.
-        opened?
+        let file = netcdf::append(&partial)
+            .map_err(|e| damaged_partial(&partial, format!("cannot be opened ({e})")))?;
+        continue_partial(
+            file,
+            &partial,
+            plan,
+            &utc_timestamp(),
+            &options.command_line,
+        )?
     } else {
         create_partial(run, &job, options, work.as_ref(), &partial)?
     };
@@ -468,11 +360,26 @@ pub(crate) struct Ending<'a> {
     pub partial: &'a Path,
     pub steps_total: usize,
     pub resuming: bool,
+    /// The first step this job computes (after the finished ones, when resuming).
+    pub first_step: usize,
 }
 
 impl Ending<'_> {
-    /// An end that leaves a resumable partial output with `steps_done` finished steps.
+    /// An end that leaves a resumable partial output with `steps_done` finished steps; or,
+    /// when a resumed job could not add a single step to it, one to start over: a partial
+    /// output whose metadata a killed process left half-updated fails every resume the same
+    /// way.
     pub(crate) fn kept(&self, cause: PipelineError, steps_done: usize) -> PipelineError {
+        let not_continued =
+            self.resuming && steps_done <= self.first_step && steps_done < self.steps_total;
+        if not_continued && matches!(cause, PipelineError::Netcdf { .. }) {
+            return PipelineError::Resume {
+                path: self.partial.to_path_buf(),
+                message: format!(
+                    "{cause}\nNo time step could be added to it. Unless the disk was full or a quota or file-size limit was reached (then make room and resume), it was probably damaged when the interrupted run stopped (a process killed in the middle of a write can leave it half-updated) and resuming would fail the same way: start over with --overwrite."
+                ),
+            };
+        }
         PipelineError::Interrupted {
             cause: Box::new(cause),
             steps_done,
@@ -577,45 +484,6 @@ pub(crate) fn setup_failure(partial: &Path, e: PipelineError) -> PipelineError {
     }
 }
 
-/// Opens an interrupted run's partial output to continue it after `steps_done` steps,
-/// mending it first when a failed write cut it short (see [`restore_cut_tail`]).
-fn open_partial(
-    partial: &Path,
-    plan: &SlabPlan,
-    steps_done: usize,
-    command_line: &str,
-    progress: &mut dyn Progress,
-) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
-    let damaged = |why: String| PipelineError::Resume {
-        path: partial.to_path_buf(),
-        message: format!(
-            "{why}; it may have been damaged when the run stopped: start over with --overwrite"
-        ),
-    };
-    let mended = restore_cut_tail(partial)?;
-    if mended {
-        progress.note(&format!(
-            "{} was cut short by a failed write; its tail is filled in and the unfinished time steps are written again",
-            partial.display()
-        ));
-    }
-    let mut file =
-        netcdf::append(partial).map_err(|e| damaged(format!("cannot be opened ({e})")))?;
-    let layout = OutputLayout::from_file(&file, partial, plan.shape[0], plan.steps)?;
-    if mended && steps_done > 0 {
-        // The finished steps must read back before any work is built on them.
-        let last = steps_done - 1;
-        let extents = layout.extents(last, 0..plan.shape[1], plan.shape);
-        let flag = file
-            .variable(FLAG_VARIABLE)
-            .ok_or_else(|| damaged(format!("it has no variable '{FLAG_VARIABLE}'")))?;
-        flag.get_values::<Flag, _>(extents)
-            .map_err(|e| damaged(format!("time step {} cannot be read back ({e})", last + 1)))?;
-    }
-    append_history(&mut file, partial, command_line)?;
-    Ok((file, layout))
-}
-
 /// Closes the finished partial output, makes it durable and renames it into place.
 fn finish_output(
     file: netcdf::FileMut,
@@ -638,45 +506,41 @@ pub(crate) fn place_output(partial: &Path, output: &Path) -> Result<(), Pipeline
     })
 }
 
-/// Fails early, before any reading or solving, when the partial file cannot be written.
-pub(crate) fn check_writable(partial: &Path, resume: bool) -> Result<(), PipelineError> {
-    let refuse = |e: std::io::Error| PipelineError::Output {
-        path: partial.to_path_buf(),
-        message: format!("cannot write here: {e}"),
-    };
-    if resume {
-        fs::OpenOptions::new()
-            .append(true)
-            .open(partial)
-            .map_err(refuse)?;
-    } else {
-        let existed = partial.exists();
-        fs::OpenOptions::new()
-            .write(true)
-            .create(true)
-            .truncate(false)
-            .open(partial)
-            .map_err(refuse)?;
-        if !existed {
-            fs::remove_file(partial).map_err(refuse)?;
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn write_failure() -> PipelineError {
+        PipelineError::Netcdf {
+            path: PathBuf::from("/out/.x.nc.partial"),
+            what: "writing 'ph' at time step 5".into(),
+            source: netcdf::Error::Netcdf(-101),
         }
     }
-    Ok(())
-}
 
-/// Adds the resuming command line to the history attribute.
-fn append_history(
-    file: &mut netcdf::FileMut,
-    path: &Path,
-    command_line: &str,
-) -> Result<(), PipelineError> {
-    let previous = match file.attribute("history").map(|a| a.value()) {
-        Some(Ok(netcdf::AttributeValue::Str(text))) => text,
-        _ => String::new(),
-    };
-    let history = format!("{previous}\n{}: resumed: {command_line}", utc_timestamp());
-    nc(file.add_attribute("history", history), path, || {
-        "updating the history attribute".into()
-    })?;
-    Ok(())
+    #[test]
+    fn a_resume_that_adds_no_step_says_to_start_over() {
+        let partial = Path::new("/out/.x.nc.partial");
+        let ending = |resuming| Ending {
+            partial,
+            steps_total: 10,
+            resuming,
+            first_step: 4,
+        };
+        let offers_resume = |e: &PipelineError| e.to_string().contains("with --resume to continue");
+        // A resumed job that could not write one step: resuming again would fail the same way.
+        let failed = ending(true).kept(write_failure(), 4);
+        assert!(matches!(failed, PipelineError::Resume { .. }), "{failed}");
+        assert!(!offers_resume(&failed), "{failed}");
+        assert!(failed.to_string().contains("start over with --overwrite"));
+        // Once it added a step, or when it was not a resume, or not a netCDF failure: resumable.
+        for kept in [
+            ending(true).kept(write_failure(), 5),
+            ending(false).kept(write_failure(), 4),
+            ending(true).kept(PipelineError::Signal { signal: 15 }, 4),
+        ] {
+            assert!(matches!(kept, PipelineError::Interrupted { .. }), "{kept}");
+            assert!(offers_resume(&kept), "{kept}");
+        }
+    }
 }

@@ -26,6 +26,9 @@ pub mod plan;
 pub mod ranks;
 mod repair;
 pub mod resume;
+#[cfg(feature = "mpi")]
+mod shared_file;
+mod start;
 pub mod stop;
 mod stream;
 

@@ -56,7 +56,7 @@ impl OutputLayout {
 
     /// The layout of an existing output (for `--resume`), read from the flag variable.
     pub fn from_file(
-        file: &FileMut,
+        file: &netcdf::File,
         path: &Path,
         levels: usize,
         steps: usize,

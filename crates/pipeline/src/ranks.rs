@@ -7,16 +7,19 @@
 //! no step left in the last round computes and writes a step of that round again (the same
 //! values to the same place), and its flag counts are left out.
 
+use crate::columns::ColumnWork;
 use crate::deal::Deal;
 use crate::error::nc;
 use crate::flags::{FlagCounts, FLAG_COUNT_FIELDS};
 use crate::job::{
-    check_writable, column_work, place_output, run_job, setup_failure, starting_record, Ending,
-    JobOptions, JobSummary, OutputSetup, Progress,
+    column_work, place_output, plan_job, run_job, setup_failure, Ending, JobOptions, JobPlan,
+    JobSummary, OutputSetup, Progress,
 };
 use crate::leftovers::remove_leftovers;
 use crate::output::{partial_path, progress_path, utc_timestamp, OutputLayout};
 use crate::resume::{sync_parent, ProgressRecord};
+use crate::shared_file::{open_for_collective_writing, write_collectively};
+use crate::start::{continue_partial, decide_start, Start};
 use crate::stream::{stream, Ledger, Sink};
 use crate::{extent_table::write_extent_table, PipelineError};
 use acidscape_gridio::Run;
@@ -65,6 +68,11 @@ impl Ranks {
         self.world.abort(code)
     }
 
+    /// Returns once every rank has called it.
+    pub fn wait_for_all(&self) {
+        self.world.barrier();
+    }
+
     /// Every rank's `values`, in rank order, on every rank.
     fn gather(&self, values: &[u64]) -> Vec<u64> {
         let mut all = vec![0; values.len() * self.size()];
@@ -85,9 +93,11 @@ impl Ranks {
 }
 
 /// Runs a compute job on all ranks, writing `options.output`; with one rank, the
-/// single-process job. Rank 0 keeps the progress record and places the finished output.
-/// Any rank's error must end the whole job (see [`Ranks::abort`]): the others would wait for
-/// it in the next collective call.
+/// single-process job. Rank 0 decides where the job starts (from the beginning, or after the
+/// finished steps of an interrupted run with `--resume`) and every rank follows; it keeps the
+/// progress record and places the finished output. Any rank's error must end the whole job
+/// (see [`Ranks::abort`]), the others would wait for it in the next collective call; except
+/// [`PipelineError::AllRanks`], which every rank has.
 pub fn run_job_on_ranks(
     run: &Run,
     options: &JobOptions,
@@ -97,24 +107,28 @@ pub fn run_job_on_ranks(
     if ranks.size() == 1 {
         return run_job(run, options, progress);
     }
-    if options.resume {
-        return Err(PipelineError::Option {
-            option: "--resume".into(),
-            message: "continues an interrupted run in one process: run the same command with --resume without mpirun (or with one rank)".into(),
-        });
-    }
     let started = Instant::now();
-    let job = crate::job::plan_job(run, options)?;
-    let work = column_work(run, &job)?;
+    // Every rank plans (and checks what an earlier run left); rank 0's outcome decides.
+    let planned = plan_job(run, options).and_then(|job| {
+        let work = column_work(run, &job)?;
+        Ok((job, work))
+    });
+    let start = agree_on_start(run, &planned, options, progress, ranks)?;
+    let Start {
+        mut record,
+        resuming,
+    } = start;
+    let (job, work) = planned?;
     let plan = &job.slabs;
     let output = options.output.clone();
     let partial = partial_path(&output);
     let record_path = progress_path(&output);
-    let mut record = starting_record(run, &job, options, work.as_ref(), false, progress)?;
+    let first_step = record.steps_done.min(plan.steps);
     let ended = Ending {
         partial: &partial,
         steps_total: plan.steps,
-        resuming: false,
+        resuming,
+        first_step,
     };
     let setup = OutputSetup {
         run,
@@ -123,15 +137,17 @@ pub fn run_job_on_ranks(
         work: work.as_ref(),
         partial: &partial,
     };
-    let (mut file, layout) = create_shared(&setup, ranks)?;
+    let (mut file, layout) = open_shared(&setup, resuming, ranks)?;
     if ranks.rank() == 0 {
-        record.save(&record_path).map_err(|e| ended.kept(e, 0))?;
+        record
+            .save(&record_path)
+            .map_err(|e| ended.kept(e, first_step))?;
     }
     if options.stop_after_steps == Some(0) {
-        return Err(ended.kept(PipelineError::StopHook, 0));
+        return Err(ended.kept(PipelineError::StopHook, first_step));
     }
 
-    let deal = Deal::new(0, plan.steps, ranks.rank(), ranks.size());
+    let deal = Deal::new(first_step, plan.steps, ranks.rank(), ranks.size());
     // Rank 0 shows its own share: the ranks go round by round together.
     progress.begin(plan.cells_per_step() * deal.rounds() as u64, 0);
     let slabs = deal
@@ -171,19 +187,13 @@ pub fn run_job_on_ranks(
     nc(file.close(), &partial, || "closing the file".into())
         .map_err(|e| ended.kept(e, plan.steps))?;
     let closing = closing.elapsed();
-    ranks.world.barrier();
-    let extent = if ranks.rank() == 0 {
-        let placed = place_on_rank_zero(run, &job.output, work.as_ref(), &record, plan.steps);
-        placed.map_err(|e| ended.kept(e, plan.steps))?
-    } else {
-        None
-    };
-    ranks.world.barrier();
+    let extent =
+        place_on_rank_zero(&setup, &record, ranks).map_err(|e| ended.kept(e, plan.steps))?;
     Ok(JobSummary {
         output,
         plan: job.slabs.clone(),
-        first_step: 0,
-        cells_processed: plan.cells_per_step() * plan.steps as u64,
+        first_step,
+        cells_processed: plan.cells_per_step() * (plan.steps - first_step) as u64,
         counts: record.counts,
         wall: started.elapsed(),
         read: times.read,
@@ -197,6 +207,78 @@ pub fn run_job_on_ranks(
     })
 }
 
+/// Rank 0's plan and [`decide_start`], on every rank: where the job starts and the record it
+/// keeps, or rank 0's refusal as [`PipelineError::AllRanks`].
+fn agree_on_start(
+    run: &Run,
+    planned: &Result<(JobPlan, Option<ColumnWork>), PipelineError>,
+    options: &JobOptions,
+    progress: &mut dyn Progress,
+    ranks: &Ranks,
+) -> Result<Start, PipelineError> {
+    const RESUMING: &str = "resuming\n";
+    const STARTING: &str = "starting\n";
+    const FAILED: &str = "failed ";
+    let told = if ranks.rank() == 0 {
+        let decided = match planned {
+            Ok((job, work)) => decide_start(run, job, options, work.as_ref(), progress),
+            Err(error) => Err(PipelineError::AllRanks {
+                message: error.to_string(),
+                signal: error.signal(),
+            }),
+        };
+        match decided {
+            Ok(start) if start.resuming => format!("{RESUMING}{}", start.record.text()),
+            Ok(start) => format!("{STARTING}{}", start.record.text()),
+            Err(error) => {
+                let signal = error.signal().map_or(String::new(), |s| s.to_string());
+                format!("{FAILED}{signal}\n{error}")
+            }
+        }
+    } else {
+        String::new()
+    };
+    let told = ranks.same_text(told);
+    let record_path = progress_path(&options.output);
+    if let Some(record) = told.strip_prefix(RESUMING) {
+        return Ok(Start {
+            record: ProgressRecord::parse(record, &record_path)?,
+            resuming: true,
+        });
+    }
+    if let Some(record) = told.strip_prefix(STARTING) {
+        return Ok(Start {
+            record: ProgressRecord::parse(record, &record_path)?,
+            resuming: false,
+        });
+    }
+    let (signal, message) = told
+        .strip_prefix(FAILED)
+        .and_then(|rest| rest.split_once('\n'))
+        .ok_or_else(|| PipelineError::Internal("rank 0's decision was lost".into()))?;
+    Err(PipelineError::AllRanks {
+        message: message.to_string(),
+        signal: signal.parse().ok(),
+    })
+}
+
+/// The partial output opened on every rank for collective writing: the interrupted run's,
+/// continued, or a new one.
+fn open_shared(
+    setup: &OutputSetup,
+    resuming: bool,
+    ranks: &Ranks,
+) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
+    if !resuming {
+        return create_shared(setup, ranks);
+    }
+    // The history attribute must be the same on every rank.
+    let resumed_at = ranks.same_text(utc_timestamp());
+    let file = open_for_collective_writing(setup.partial, &ranks.world)?;
+    let (plan, command_line) = (&setup.job.slabs, &setup.options.command_line);
+    continue_partial(file, setup.partial, plan, &resumed_at, command_line)
+}
+
 /// Creates and defines the output on every rank (parallel netCDF-4), after rank 0 removed
 /// what an earlier run left; every variable is written collectively.
 fn create_shared(
@@ -205,12 +287,11 @@ fn create_shared(
 ) -> Result<(netcdf::FileMut, OutputLayout), PipelineError> {
     let (output, partial) = (&setup.options.output, setup.partial);
     // Every rank has looked at the leftovers (in `plan_job`) before rank 0 removes them.
-    ranks.world.barrier();
+    ranks.wait_for_all();
     if ranks.rank() == 0 {
-        check_writable(partial, false)?;
         remove_leftovers(output)?;
     }
-    ranks.world.barrier();
+    ranks.wait_for_all();
     // The history attribute must be the same on every rank.
     let created = ranks.same_text(utc_timestamp());
     let defined = setup.define(created, || {
@@ -223,20 +304,37 @@ fn create_shared(
         )
     });
     let (file, layout) = defined.map_err(|e| setup_failure(partial, e))?;
-    for variable in file.variables() {
-        nc(variable.access_collective(), partial, || {
-            format!("setting collective access to '{}'", variable.name())
-        })?;
-    }
+    write_collectively(&file, partial)?;
     Ok((file, layout))
 }
 
-/// Rank 0, once every rank has closed the output: the extent table read back from it, then
-/// the output made durable and renamed into place, and the progress record removed.
+/// Once every rank has closed the output, rank 0 reads the extent table back from it, makes
+/// the output durable, renames it into place and removes the progress record; every rank
+/// returns when that is done.
 fn place_on_rank_zero(
+    setup: &OutputSetup,
+    record: &ProgressRecord,
+    ranks: &Ranks,
+) -> Result<Option<crate::ExtentOverview>, PipelineError> {
+    ranks.wait_for_all();
+    let placed = if ranks.rank() == 0 {
+        let (run, work) = (setup.run, setup.work);
+        place_output_and_table(run, &setup.job.output, work, record, setup.job.slabs.steps)
+    } else {
+        Ok(None)
+    };
+    // Rank 0 ends every rank when it fails (see `run_job_on_ranks`).
+    if placed.is_ok() {
+        ranks.wait_for_all();
+    }
+    placed
+}
+
+/// The extent table read back from the closed output, then the output placed.
+fn place_output_and_table(
     run: &Run,
     output: &Path,
-    work: Option<&crate::columns::ColumnWork>,
+    work: Option<&ColumnWork>,
     record: &ProgressRecord,
     steps: usize,
 ) -> Result<Option<crate::ExtentOverview>, PipelineError> {
@@ -303,6 +401,7 @@ impl Ledger for RankLedger<'_> {
     }
 
     fn peers_on_step_zero(&self) -> bool {
-        self.round == 0 && self.deal.rounds() > 0
+        // A resumed job (first round past step 0) has the step-0 geometry in the output.
+        self.round == 0 && self.deal.rounds() > 0 && self.deal.round_steps(0).start == 0
     }
 }

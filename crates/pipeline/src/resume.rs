@@ -207,12 +207,8 @@ impl ProgressRecord {
         }
     }
 
-    /// Writes the record durably: to a temporary file, fsync, then rename over `path`.
-    pub fn save(&self, path: &Path) -> Result<(), PipelineError> {
-        let io_error = |e: std::io::Error| PipelineError::Output {
-            path: path.to_path_buf(),
-            message: format!("cannot write the progress record: {e}"),
-        };
+    /// The record as [`ProgressRecord::save`] writes it (see the module notes).
+    pub fn text(&self) -> String {
         let counts = |c: &FlagCounts| {
             c.as_vec()
                 .iter()
@@ -236,9 +232,18 @@ impl ProgressRecord {
             text.push('\n');
         }
         text.push_str("end\n");
+        text
+    }
+
+    /// Writes the record durably: to a temporary file, fsync, then rename over `path`.
+    pub fn save(&self, path: &Path) -> Result<(), PipelineError> {
+        let io_error = |e: std::io::Error| PipelineError::Output {
+            path: path.to_path_buf(),
+            message: format!("cannot write the progress record: {e}"),
+        };
         let temporary = temporary_path(path);
         let mut file = fs::File::create(&temporary).map_err(io_error)?;
-        file.write_all(text.as_bytes()).map_err(io_error)?;
+        file.write_all(self.text().as_bytes()).map_err(io_error)?;
         file.sync_all().map_err(io_error)?;
         fs::rename(&temporary, path).map_err(io_error)?;
         sync_parent(path);
@@ -247,6 +252,15 @@ impl ProgressRecord {
 
     /// Reads a record written by [`ProgressRecord::save`].
     pub fn load(path: &Path) -> Result<ProgressRecord, PipelineError> {
+        let text = fs::read_to_string(path).map_err(|e| PipelineError::Resume {
+            path: path.to_path_buf(),
+            message: format!("cannot read the progress record: {e}"),
+        })?;
+        ProgressRecord::parse(&text, path)
+    }
+
+    /// Reads a record's [`ProgressRecord::text`]; errors name `path`, where it was kept.
+    pub fn parse(text: &str, path: &Path) -> Result<ProgressRecord, PipelineError> {
         let bad = |message: String| PipelineError::Resume {
             path: path.to_path_buf(),
             message,
@@ -257,8 +271,6 @@ impl ProgressRecord {
                 path.display()
             ))
         };
-        let text = fs::read_to_string(path)
-            .map_err(|e| bad(format!("cannot read the progress record: {e}")))?;
         let mut lines = text.lines();
         match lines.next().and_then(|l| l.strip_prefix(FORMAT)) {
             Some(version) if version.trim() == VERSION.to_string() => {}

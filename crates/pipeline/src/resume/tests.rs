@@ -121,6 +121,11 @@ fn saves_and_loads_with_checkpoints_at_file_starts() {
     record.save(&path).unwrap();
     assert!(!temporary_path(&path).exists());
     assert_eq!(ProgressRecord::load(&path).unwrap(), record);
+    // The text ranks of an MPI job are given by rank 0 reads back the same.
+    assert_eq!(
+        ProgressRecord::parse(&record.text(), &path).unwrap(),
+        record
+    );
 }
 
 #[test]
