@@ -4,9 +4,9 @@
 #   chunking, compression and attributes (history aside) as the single-process output, read
 #   with netCDF4 (scripts/compare_nc_outputs.py), and the extent CSV is the same byte for byte;
 # - several slabs per time step (a small --memory-budget) on 2 and 3 ranks, the same;
-# - fewer time steps than ranks (the first 2 steps of a sample run on 3 ranks, each step split
-#   into blocks of rows): one output chunk per step (the ranks' blocks repeat rank 0's) and
-#   several (a block per chunk), the same; stopped after 1 step and resumed on 2 ranks, the same;
+# - fewer time steps than ranks (the first 2 steps of a sample run on 3 ranks): with one output
+#   chunk per step (dealt whole, rank 2 repeats step 1) and with 6 (each step split into blocks
+#   of rows), the same; stopped after 1 step and resumed on 2 ranks, the same;
 # - a job stopped on every rank of 2 after some steps: no complete-looking output is left, and
 #   `--resume` on 1, 2 and 3 ranks finishes an output identical to the uninterrupted one; a
 #   `--resume` that rank 0 refuses (other options; a partial output that lost its last
@@ -103,10 +103,11 @@ for ranks in 2 3; do
     fi
 done
 
-echo "== fewer steps than ranks: the first 2 steps of a sample run on 3 ranks, split in blocks of rows"
+echo "== fewer steps than ranks: the first 2 steps of a sample run on 3 ranks, whole and split in blocks of rows"
 ncks -O -d time,0,1 sample-grids/curvilinear/pathway-moderate/*.nc "$work/two-steps-input.nc"
 two=("$work/two-steps-input.nc")
-# One output chunk per step by default; 6-row chunks and slabs under this budget.
+# One output chunk per step by default (steps dealt whole); 6-row chunks and slabs under this
+# budget (each step split into blocks of rows).
 for budget_two in "" 131M; do
     name="two-steps${budget_two:+-$budget_two}"
     more=(${budget_two:+--memory-budget "$budget_two"})

@@ -2,8 +2,11 @@
 //! While at least as many steps are left as there are ranks, steps are dealt whole in rounds:
 //! round `r` gives rank `k` step `first + r × ranks + k`. Each step left after those (fewer
 //! than the ranks) is split into blocks of whole output chunks, at most a slab each, dealt out
-//! in turn so that every rank has work. Collective writes need every rank in every write, so
-//! a rank with no block left in a step's last turn computes that turn's first block again.
+//! in turn so that every rank has work; unless the blocks would take rank 0 longer than one
+//! more round of whole steps (too few chunks per step), when the steps left are dealt whole in
+//! one last round. Collective writes need every rank in every write, so a rank with nothing
+//! left in a round (or a step's turn) computes the round's first step (the turn's first
+//! block) again.
 
 use crate::plan::SlabPlan;
 use std::ops::Range;
@@ -65,14 +68,29 @@ impl Deal {
         }
     }
 
-    /// Rounds of whole steps, one step per rank each.
+    /// Rounds of whole steps, one step per rank each (the last one not full when the steps
+    /// left are not split).
     fn whole_rounds(&self) -> usize {
-        (self.steps - self.first) / self.ranks
+        let left = self.steps - self.first;
+        let split_left = left % self.ranks;
+        // Rank 0 holds the largest blocks: split only when its rows over the split steps
+        // are fewer than one step's.
+        let own: usize = self
+            .blocks()
+            .iter()
+            .step_by(self.ranks)
+            .map(|b| b.len())
+            .sum();
+        if split_left * own < self.rows.rows {
+            left / self.ranks
+        } else {
+            left.div_ceil(self.ranks)
+        }
     }
 
     /// The first step split into blocks of rows.
     fn first_split(&self) -> usize {
-        self.first + self.whole_rounds() * self.ranks
+        (self.first + self.whole_rounds() * self.ranks).min(self.steps)
     }
 
     /// Rounds of the job (whole steps, then one per split step); all ranks flush together
@@ -109,7 +127,11 @@ impl Deal {
             chunk,
             per_slab,
         } = self.rows;
+        let chunk = chunk.max(1);
         let chunks = rows.div_ceil(chunk);
+        if chunks == 0 {
+            return Vec::new();
+        }
         let per_block = if per_slab >= rows {
             chunks
         } else {
@@ -130,11 +152,17 @@ impl Deal {
         let StepRows { rows, per_slab, .. } = self.rows;
         let per_slab = per_slab.max(1);
         for round in 0..self.whole_rounds() {
-            let step = self.first + round * self.ranks + self.rank;
+            let own = self.first + round * self.ranks + self.rank;
+            let repeat = own >= self.steps;
+            let step = if repeat {
+                self.first + round * self.ranks
+            } else {
+                own
+            };
             units.extend((0..rows).step_by(per_slab).map(|start| Unit {
                 step,
                 rows: start..(start + per_slab).min(rows),
-                repeat: false,
+                repeat,
                 closes_round: start + per_slab >= rows,
             }));
         }
@@ -237,8 +265,18 @@ mod tests {
         if rounds > 0 {
             assert_eq!(deals[0].round_steps(rounds - 1).end, steps, "{what}");
         }
-        // Split steps: every rank has work, and the ranks' rows differ by at most a block.
+        // Split steps: every rank has work, and the ranks' rows differ by at most a block;
+        // rank 0 computes fewer rows than one more round of whole steps would take.
         let split: Vec<usize> = (0..rounds).filter(|&r| deals[0].is_split(r)).collect();
+        let in_split = |u: &&Unit| u.step >= deals[0].first_split();
+        let rank_0: usize = shares[0]
+            .iter()
+            .filter(in_split)
+            .map(|u| u.rows.len())
+            .sum();
+        if !split.is_empty() {
+            assert!(rank_0 < rows.rows, "{what}");
+        }
         for round in split {
             let step = deals[0].round_steps(round).start;
             let own_rows = |units: &Vec<Unit>| -> usize {
@@ -287,5 +325,18 @@ mod tests {
         let one_chunk = StepRows { chunk: 5, ..rows };
         let rank_1 = Deal::new(0, 1, 1, 2, one_chunk).units();
         assert_eq!((rank_1[0].rows.clone(), rank_1[0].repeat), (0..5, true));
+        // One chunk per step: blocks would gain nothing, the steps left go whole in one round
+        // (5 steps on 3 ranks: 2 rounds, rank 2 computes step 3 again).
+        let whole = StepRows {
+            rows: 12,
+            chunk: 12,
+            per_slab: 12,
+        };
+        let rank_2 = Deal::new(0, 5, 2, 3, whole);
+        assert_eq!(rank_2.rounds(), 2);
+        let units: Vec<(usize, bool)> = rank_2.units().iter().map(|u| (u.step, u.repeat)).collect();
+        assert_eq!(units, [(2, false), (3, true)]);
+        assert_eq!(rank_2.round_steps(1), 3..5);
+        assert!(!rank_2.is_split(1));
     }
 }

@@ -3,10 +3,10 @@
 //! reads and solves its own, and all ranks write the one output collectively through parallel
 //! netCDF-4/HDF5, with the chunking and compression of a single-process output.
 //!
-//! Every collective write needs every rank, so a rank with no block left in a step's last
-//! turn computes and writes a block of that turn again (the same values to the same place);
-//! its flag counts and extent are left out. A step split among the ranks has its extent
-//! summed over them (exactly) before it is written.
+//! Every collective write needs every rank, so a rank with nothing left in a round (or in a
+//! split step's turn) computes and writes the round's first step (the turn's first block)
+//! again, the same values to the same place; its flag counts are left out. A step split
+//! among the ranks has its extent summed over them (exactly) before it is written.
 
 use crate::columns::ColumnWork;
 use crate::deal::{Deal, StepRows, Unit};
@@ -400,7 +400,9 @@ impl Ledger for RankLedger<'_> {
         if !repeat {
             self.pending += counts;
         }
-        !repeat
+        // A repeated whole step carries that step's whole extent (written again, the same);
+        // a repeated block of a split step must not add to the step's sum over the ranks.
+        !(repeat && self.deal.is_split(self.round))
     }
 
     fn closes_round(&self, _rows: &std::ops::Range<usize>, _grid_rows: usize) -> bool {

@@ -34,7 +34,7 @@ pub(crate) struct Sink<'a> {
 /// Keeps a job's progress: the flag counts of what was written, and the steps made durable.
 pub(crate) trait Ledger {
     /// Adds the flag counts of the slab `rows` of `step` just written; returns whether the
-    /// slab is this process's own work (its counts and extent count), not a repeat of another's.
+    /// slab's extent goes into this process's extent of the step.
     fn count(&mut self, step: usize, rows: &Range<usize>, counts: FlagCounts) -> bool;
     /// Whether the slab just counted ends a round of steps (then they are flushed): the
     /// last slab of its step, in one process.
@@ -350,11 +350,11 @@ fn write_results(
             }
             Ok(())
         })?;
-        let own = ledger.count(result.step, &result.rows, result.counts);
+        let adds_extent = ledger.count(result.step, &result.rows, result.counts);
         if let Some(columns) = columns {
             let sum = extent
                 .get_or_insert_with(|| CorrosiveExtent::new(columns.extent.thresholds().clone()));
-            if own {
+            if adds_extent {
                 sum.merge(&columns.extent)
                     .map_err(|e| PipelineError::Internal(e.to_string()))?;
             }
