@@ -4,6 +4,9 @@
 #   chunking, compression and attributes (history aside) as the single-process output, read
 #   with netCDF4 (scripts/compare_nc_outputs.py), and the extent CSV is the same byte for byte;
 # - several slabs per time step (a small --memory-budget) on 2 and 3 ranks, the same;
+# - fewer time steps than ranks (the first 2 steps of a sample run on 3 ranks): with one output
+#   chunk per step (dealt whole, rank 2 repeats step 1) and with 6 (each step split into blocks
+#   of rows), the same; stopped after 1 step and resumed on 2 ranks, the same;
 # - a job stopped on every rank of 2 after some steps: no complete-looking output is left, and
 #   `--resume` on 1, 2 and 3 ranks finishes an output identical to the uninterrupted one; a
 #   `--resume` that rank 0 refuses (other options; a partial output that lost its last
@@ -15,7 +18,7 @@
 # - a 3-rank output passes the external readers and the CF checker (check_external_readers.py);
 # - the comparison itself fails on outputs that differ (a different deflate level).
 # Needs OpenMPI and the MPI builds of netCDF-C and HDF5 (Debian: openmpi-bin libopenmpi-dev
-# libnetcdf-mpi-dev libhdf5-openmpi-dev libclang-dev) and Python's netCDF4.
+# libnetcdf-mpi-dev libhdf5-openmpi-dev libclang-dev), Python's netCDF4 and NCO (ncks).
 # Usage: scripts/check_mpi.sh [--keep]   (--keep leaves the temporary directory)
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -99,6 +102,38 @@ for ranks in 2 3; do
         cat "$out.log"; fail "several slabs per step on $ranks ranks: exit status"
     fi
 done
+
+echo "== fewer steps than ranks: the first 2 steps of a sample run on 3 ranks, whole and split in blocks of rows"
+ncks -O -d time,0,1 sample-grids/curvilinear/pathway-moderate/*.nc "$work/two-steps-input.nc"
+two=("$work/two-steps-input.nc")
+# One output chunk per step by default (steps dealt whole); 6-row chunks and slabs under this
+# budget (each step split into blocks of rows).
+for budget_two in "" 131M; do
+    name="two-steps${budget_two:+-$budget_two}"
+    more=(${budget_two:+--memory-budget "$budget_two"})
+    "$serial" compute "${two[@]}" -o "$work/$name.nc" "${more[@]}" >"$work/$name.log" 2>&1 \
+        || { cat "$work/$name.log"; fail "$name: single process"; continue; }
+    grep -o '[0-9]* slab(s) per step' "$work/$name.log"
+    out="$work/$name-3.nc"
+    if mpi_run 3 "${two[@]}" -o "$out" "${more[@]}" >"$out.log" 2>&1; then
+        same "$work/$name.nc" "$out" "2 steps on 3 ranks${budget_two:+ ($budget_two)}" "$work/$name.log" "$out.log"
+    else
+        cat "$out.log"; fail "2 steps on 3 ranks${budget_two:+ ($budget_two)}: exit status"
+    fi
+done
+grep -q ' 1 slab(s) per step' "$work/two-steps-131M.log" && fail "131M gives one slab per step"
+out="$work/two-steps-stopped.nc"
+more=(--memory-budget 131M)
+if ACIDSCAPE_STOP_AFTER_STEPS=1 mpi_run 3 "${two[@]}" -o "$out" "${more[@]}" >"$out.log" 2>&1; then
+    fail "2 steps on 3 ranks stopped after 1: exited 0"
+fi
+if mpi_run 2 "${two[@]}" -o "$out" "${more[@]}" --resume >"$out.log.resume" 2>&1; then
+    grep -o 'resumed at time step [0-9]*' "$out.log.resume" || fail "2 steps on 3 ranks stopped after 1: not resumed"
+    same "$work/two-steps-131M.nc" "$out" "2 steps on 3 ranks stopped after 1, then --resume on 2 ranks" \
+        "$work/two-steps-131M.log" "$out.log.resume"
+else
+    cat "$out.log.resume"; fail "2 steps on 3 ranks stopped after 1, then --resume on 2 ranks: exit status"
+fi
 
 # Ends without a complete-looking output, and keeps the partial one and its progress record.
 check_kept() { # output, what

@@ -1,14 +1,15 @@
-//! One compute job shared by the ranks of an MPI job (feature `mpi`): the time steps are
-//! dealt out in rounds, each rank reads and solves its own steps, and all ranks write the one
-//! output collectively through parallel netCDF-4/HDF5, with the chunking and compression of a
-//! single-process output.
+//! One compute job shared by the ranks of an MPI job (feature `mpi`): the time steps, or
+//! blocks of rows of the last steps, are dealt out in rounds (see [`crate::deal`]), each rank
+//! reads and solves its own, and all ranks write the one output collectively through parallel
+//! netCDF-4/HDF5, with the chunking and compression of a single-process output.
 //!
-//! Every collective write needs every rank, so every rank writes in every round: a rank with
-//! no step left in the last round computes and writes a step of that round again (the same
-//! values to the same place), and its flag counts are left out.
+//! Every collective write needs every rank, so a rank with nothing left in a round (or in a
+//! split step's turn) computes and writes the round's first step (the turn's first block)
+//! again, the same values to the same place; its flag counts are left out. A step split
+//! among the ranks has its extent summed over them (exactly) before it is written.
 
 use crate::columns::ColumnWork;
-use crate::deal::Deal;
+use crate::deal::{Deal, StepRows, Unit};
 use crate::error::nc;
 use crate::flags::{FlagCounts, FLAG_COUNT_FIELDS};
 use crate::job::{
@@ -22,6 +23,7 @@ use crate::shared_file::{open_for_collective_writing, write_collectively};
 use crate::start::{continue_partial, decide_start, Start};
 use crate::stream::{stream, Ledger, Sink};
 use crate::{extent_table::write_extent_table, PipelineError};
+use acidscape_analysis::extent::CorrosiveExtent;
 use acidscape_gridio::Run;
 use mpi::environment::Universe;
 use mpi::topology::SimpleCommunicator;
@@ -73,9 +75,9 @@ impl Ranks {
         self.world.barrier();
     }
 
-    /// Every rank's `values`, in rank order, on every rank.
-    fn gather(&self, values: &[u64]) -> Vec<u64> {
-        let mut all = vec![0; values.len() * self.size()];
+    /// Every rank's `values` (as many on every rank), in rank order, on every rank.
+    fn gather<T: Equivalence + Copy + Default>(&self, values: &[T]) -> Vec<T> {
+        let mut all = vec![T::default(); values.len() * self.size()];
         self.world.all_gather_into(values, &mut all[..]);
         all
     }
@@ -147,17 +149,23 @@ pub fn run_job_on_ranks(
         return Err(ended.kept(PipelineError::StopHook, first_step));
     }
 
-    let deal = Deal::new(first_step, plan.steps, ranks.rank(), ranks.size());
+    let rows = StepRows::of(plan);
+    let deal = Deal::new(first_step, plan.steps, ranks.rank(), ranks.size(), rows);
+    let units = deal.units();
     // Rank 0 shows its own share: the ranks go round by round together.
-    progress.begin(plan.cells_per_step() * deal.rounds() as u64, 0);
-    let slabs = deal
-        .steps()
-        .flat_map(|step| plan.slabs(step).take_while(move |(s, _)| *s == step));
+    let own_rows: usize = units.iter().map(|unit| unit.rows.len()).sum();
+    progress.begin(plan.cells_per_row() * own_rows as u64, 0);
+    let slabs: Vec<(usize, std::ops::Range<usize>)> = units
+        .iter()
+        .map(|unit| (unit.step, unit.rows.clone()))
+        .collect();
     let mut ledger = RankLedger {
         ranks,
         record: &mut record,
         path: &record_path,
         deal,
+        units,
+        counted: 0,
         round: 0,
         pending: FlagCounts::default(),
     };
@@ -177,7 +185,7 @@ pub fn run_job_on_ranks(
         options,
         work_ref,
         None,
-        slabs,
+        slabs.into_iter(),
         sink,
         progress,
     );
@@ -362,36 +370,90 @@ fn place_output_and_table(
 }
 
 /// The progress of a job on ranks: each round's flag counts summed over the ranks, and the
-/// record saved by rank 0 once every rank has made its step of the round durable.
+/// record saved by rank 0 once every rank has made its share of the round durable.
 struct RankLedger<'a> {
     ranks: &'a Ranks,
     record: &'a mut ProgressRecord,
     path: &'a Path,
     deal: Deal,
+    /// This rank's slabs, in order.
+    units: Vec<Unit>,
+    /// Slabs counted so far.
+    counted: usize,
     round: usize,
     pending: FlagCounts,
 }
 
+impl RankLedger<'_> {
+    /// The slab counted last.
+    fn last_unit(&self) -> Option<&Unit> {
+        self.counted.checked_sub(1).and_then(|i| self.units.get(i))
+    }
+}
+
 impl Ledger for RankLedger<'_> {
-    fn count(&mut self, step: usize, counts: FlagCounts) {
-        if !self.deal.is_repeat(step) {
+    fn count(&mut self, step: usize, rows: &std::ops::Range<usize>, counts: FlagCounts) -> bool {
+        self.counted += 1;
+        let unit = self.last_unit();
+        // Slabs come back in the order dealt (the stream keeps it).
+        let repeat = unit.is_some_and(|u| u.step == step && u.rows == *rows && u.repeat);
+        if !repeat {
             self.pending += counts;
         }
+        // A repeated whole step carries that step's whole extent (written again, the same);
+        // a repeated block of a split step must not add to the step's sum over the ranks.
+        !(repeat && self.deal.is_split(self.round))
+    }
+
+    fn closes_round(&self, _rows: &std::ops::Range<usize>, _grid_rows: usize) -> bool {
+        self.last_unit().is_some_and(|unit| unit.closes_round)
+    }
+
+    fn whole_extent(
+        &mut self,
+        own: Option<CorrosiveExtent>,
+    ) -> Result<Option<CorrosiveExtent>, PipelineError> {
+        let own = match own {
+            Some(own) if self.deal.is_split(self.round) => own,
+            whole_or_none => return Ok(whole_or_none),
+        };
+        // Exact sums: the same bits whatever the ranks and the order of merging.
+        let flat = own.to_flat();
+        let lengths = self.ranks.gather(&[flat.len() as u64]);
+        let longest = lengths.iter().copied().max().unwrap_or(0) as usize;
+        let mut padded = flat;
+        padded.resize(longest, 0.0);
+        let all = self.ranks.gather(&padded[..]);
+        let mut whole = CorrosiveExtent::new(own.thresholds().clone());
+        for (flat, &length) in all.chunks(longest.max(1)).zip(&lengths) {
+            whole
+                .merge_flat(&flat[..length as usize])
+                .map_err(|e| PipelineError::Internal(format!("a split step's extent: {e}")))?;
+        }
+        Ok(Some(whole))
     }
 
     fn step_durable(&mut self, _step: usize) -> Result<usize, PipelineError> {
-        // Also the point where every rank has flushed the round (a collective call). Rank k
-        // wrote step k of the round: recorded step by step, as one process would.
+        // Also the point where every rank has flushed the round (a collective call). In a
+        // round of whole steps rank k wrote step k of the round: recorded step by step, as
+        // one process would; a split step is finished by all ranks together.
         let round = self
             .ranks
             .gather(&std::mem::take(&mut self.pending).as_vec());
         let steps = self.deal.round_steps(self.round);
         let done = steps.end;
-        for (step, counts) in steps.zip(round.chunks(FLAG_COUNT_FIELDS)) {
-            self.record.counts += FlagCounts::from_slice(counts).ok_or_else(|| {
-                PipelineError::Internal("the flag counts of a round were lost".into())
-            })?;
-            self.record.finish_steps(step + 1);
+        let shares = round.chunks(FLAG_COUNT_FIELDS);
+        let lost = || PipelineError::Internal("the flag counts of a round were lost".into());
+        if self.deal.is_split(self.round) {
+            for counts in shares {
+                self.record.counts += FlagCounts::from_slice(counts).ok_or_else(lost)?;
+            }
+            self.record.finish_steps(done);
+        } else {
+            for (step, counts) in steps.zip(shares) {
+                self.record.counts += FlagCounts::from_slice(counts).ok_or_else(lost)?;
+                self.record.finish_steps(step + 1);
+            }
         }
         self.round += 1;
         if self.ranks.rank() == 0 {

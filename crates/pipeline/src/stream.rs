@@ -13,6 +13,7 @@ use crate::output::{write_slab, OutputLayout};
 use crate::plan::SlabPlan;
 use crate::resume::ProgressRecord;
 use crate::PipelineError;
+use acidscape_analysis::extent::CorrosiveExtent;
 use acidscape_chem::Source;
 use acidscape_gridio::{GridError, RawSlab, Run, UncertaintyField};
 use std::fs;
@@ -32,8 +33,21 @@ pub(crate) struct Sink<'a> {
 
 /// Keeps a job's progress: the flag counts of what was written, and the steps made durable.
 pub(crate) trait Ledger {
-    /// Adds the flag counts of a slab of `step` just written.
-    fn count(&mut self, step: usize, counts: FlagCounts);
+    /// Adds the flag counts of the slab `rows` of `step` just written; returns whether the
+    /// slab's extent goes into this process's extent of the step.
+    fn count(&mut self, step: usize, rows: &Range<usize>, counts: FlagCounts) -> bool;
+    /// Whether the slab just counted ends a round of steps (then they are flushed): the
+    /// last slab of its step, in one process.
+    fn closes_round(&self, rows: &Range<usize>, grid_rows: usize) -> bool {
+        rows.end == grid_rows
+    }
+    /// The corrosive extent of the step being finished, from this process's share of it.
+    fn whole_extent(
+        &mut self,
+        own: Option<CorrosiveExtent>,
+    ) -> Result<Option<CorrosiveExtent>, PipelineError> {
+        Ok(own)
+    }
     /// Records that `step` is durable in the output; returns the time steps the whole job has
     /// finished.
     fn step_durable(&mut self, step: usize) -> Result<usize, PipelineError>;
@@ -50,8 +64,9 @@ pub(crate) struct OwnRecord<'a> {
 }
 
 impl Ledger for OwnRecord<'_> {
-    fn count(&mut self, _step: usize, counts: FlagCounts) {
+    fn count(&mut self, _step: usize, _rows: &Range<usize>, counts: FlagCounts) -> bool {
         self.record.counts += counts;
+        true
     }
 
     fn step_durable(&mut self, step: usize) -> Result<usize, PipelineError> {
@@ -335,24 +350,25 @@ fn write_results(
             }
             Ok(())
         })?;
+        let adds_extent = ledger.count(result.step, &result.rows, result.counts);
         if let Some(columns) = columns {
-            match &mut extent {
-                None => extent = Some(columns.extent),
-                Some(sum) => sum
-                    .merge(&columns.extent)
-                    .map_err(|e| PipelineError::Internal(e.to_string()))?,
+            let sum = extent
+                .get_or_insert_with(|| CorrosiveExtent::new(columns.extent.thresholds().clone()));
+            if adds_extent {
+                sum.merge(&columns.extent)
+                    .map_err(|e| PipelineError::Internal(e.to_string()))?;
             }
         }
         times.write += t.elapsed();
         let cells = result.flags.len() as u64;
         times.cells += cells;
-        ledger.count(result.step, result.counts);
         progress.advance(cells);
-        if result.rows.end == plan.shape[1] {
-            // A finished time step: its extent, then make it durable and record it.
+        if ledger.closes_round(&result.rows, plan.shape[1]) {
+            // A finished round: its extent, then make it durable and record it.
             let t = Instant::now();
+            let extent = ledger.whole_extent(extent.take())?;
             serial.run(|| -> Result<(), PipelineError> {
-                if let (Some(work), Some(sum)) = (work, extent.take()) {
+                if let (Some(work), Some(sum)) = (work, extent) {
                     write_extent_step(file, partial, layout, work.plan(), result.step, &sum)?;
                 }
                 nc(file.sync(), partial, || {

@@ -68,6 +68,9 @@ pub enum ExtentError {
     /// Two accumulators with different thresholds cannot be merged.
     #[error("cannot merge extents accumulated with different thresholds")]
     DifferentThresholds,
+    /// A flat list of sums (see [`CorrosiveExtent::to_flat`]) that does not fit these thresholds.
+    #[error("a flat list of extent sums does not fit these thresholds")]
+    FlatList,
 }
 
 /// The Ω thresholds \[1\] below which water counts as corrosive, per mineral (e.g. 1, plus 1.5
@@ -157,6 +160,19 @@ impl MineralSums {
             horizon_area: zeros(),
             horizon_area_depth: zeros(),
         }
+    }
+
+    /// Every sum, in a fixed order.
+    fn sums_mut(&mut self) -> impl Iterator<Item = &mut ExactSum> {
+        [
+            &mut self.volume_with_omega,
+            &mut self.surface_area_with_omega,
+        ]
+        .into_iter()
+        .chain(&mut self.volume_below)
+        .chain(&mut self.surface_area_below)
+        .chain(&mut self.horizon_area)
+        .chain(&mut self.horizon_area_depth)
     }
 
     fn merge(&mut self, other: &MineralSums) {
@@ -260,6 +276,49 @@ impl CorrosiveExtent {
             mine.merge(theirs);
         }
         Ok(())
+    }
+
+    /// Every sum, in a fixed order.
+    fn sums_mut(&mut self) -> impl Iterator<Item = &mut ExactSum> {
+        let [aragonite, calcite] = &mut self.minerals;
+        [&mut self.wet_volume, &mut self.sea_surface_area]
+            .into_iter()
+            .chain(aragonite.sums_mut())
+            .chain(calcite.sums_mut())
+    }
+
+    /// Every sum as one flat list of numbers (each sum's count of partials, then its
+    /// partials), e.g. to send to another process; [`CorrosiveExtent::merge_flat`] adds it
+    /// back exactly.
+    pub fn to_flat(&self) -> Vec<f64> {
+        let mut copy = self.clone();
+        let mut flat = Vec::new();
+        for sum in copy.sums_mut() {
+            let partials = sum.partials();
+            flat.push(partials.len() as f64);
+            flat.extend(partials);
+        }
+        flat
+    }
+
+    /// Adds the sums of [`CorrosiveExtent::to_flat`] from an accumulator with the same
+    /// thresholds.
+    pub fn merge_flat(&mut self, flat: &[f64]) -> Result<(), ExtentError> {
+        let mut rest = flat;
+        for sum in self.sums_mut() {
+            let (&count, tail) = rest.split_first().ok_or(ExtentError::FlatList)?;
+            if !(0.0..=tail.len() as f64).contains(&count) || count.fract() != 0.0 {
+                return Err(ExtentError::FlatList);
+            }
+            let count = count as usize;
+            sum.merge(&ExactSum::from_partials(&tail[..count]));
+            rest = &tail[count..];
+        }
+        if rest.is_empty() {
+            Ok(())
+        } else {
+            Err(ExtentError::FlatList)
+        }
     }
 
     /// The totals so far.

@@ -258,3 +258,26 @@ fn state_survives_a_round_trip_through_text() {
     let back: CorrosiveExtent = toml::from_str(&text).unwrap();
     assert_eq!(bits(&back.summary()), bits(&e.summary()));
 }
+
+#[test]
+fn state_survives_a_round_trip_through_a_flat_list() {
+    let columns = global_surface(|lat| if lat > 30.0 { 0.8 } else { 1.2 }, |_| Some(42.0));
+    let (first, second) = (accumulate(&columns[..700]), accumulate(&columns[700..1000]));
+    let mut merged = CorrosiveExtent::new(thresholds());
+    merged.merge_flat(&second.to_flat()).unwrap();
+    merged.merge_flat(&first.to_flat()).unwrap();
+    assert_eq!(
+        bits(&merged.summary()),
+        bits(&accumulate(&columns[..1000]).summary())
+    );
+    let flat = first.to_flat();
+    let mut other = CorrosiveExtent::new(thresholds());
+    assert_eq!(other.merge_flat(&flat[1..]), Err(ExtentError::FlatList));
+    assert_eq!(
+        other.merge_flat(&flat[..flat.len() - 1]),
+        Err(ExtentError::FlatList)
+    );
+    let mut longer = flat.clone();
+    longer.push(0.0);
+    assert_eq!(other.merge_flat(&longer), Err(ExtentError::FlatList));
+}
