@@ -10,7 +10,7 @@ mod gathered;
 #[cfg(test)]
 mod tests;
 
-pub use by_cell::solve_cell;
+pub use by_cell::{cell_sample, solve_cell};
 pub(crate) use by_cell::{solve_cell_by, CellSolved};
 
 use crate::cells_uncertainty::SlabUncertainty;

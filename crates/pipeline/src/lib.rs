@@ -32,7 +32,7 @@ mod start;
 pub mod stop;
 mod stream;
 
-pub use cells::VALUE_FILL;
+pub use cells::{cell_sample, VALUE_FILL};
 pub use cells_uncertainty::{
     source_key, UncertaintyAmount, UncertaintyFieldSource, UncertaintyRequest, GRID_INPUTS,
 };

@@ -4,11 +4,11 @@
 
 mod common;
 
-use acidscape_chem::{solve, Conditions, ConstantChoice, InputPair, OutOfRange};
+use acidscape_chem::{solve, ConstantChoice, OutOfRange};
 use acidscape_gridio::Run;
 use acidscape_pipeline::{
-    partial_path, progress_path, run_job, IndicatorChoice, JobOptions, NoProgress, PipelineError,
-    FLAG_BITS, FLAG_FILL, VALUE_FILL,
+    cell_sample, partial_path, progress_path, run_job, IndicatorChoice, JobOptions, NoProgress,
+    PipelineError, FLAG_BITS, FLAG_FILL, VALUE_FILL,
 };
 use common::*;
 use std::collections::{BTreeMap, BTreeSet};
@@ -123,17 +123,7 @@ fn output_equals_the_solver_and_flags_say_why() {
                 assert!(stored.iter().all(|v| v[at] == VALUE_FILL));
                 continue;
             }
-            let conditions = Conditions {
-                temperature_c: t,
-                salinity: s,
-                pressure_dbar: p,
-                phosphate: slab.phosphate[cell],
-                silicate: slab.silicate[cell],
-            };
-            let pair = InputPair::AlkalinityDic {
-                alkalinity: slab.alkalinity[cell],
-                dic: slab.dic[cell],
-            };
+            let (pair, conditions) = cell_sample(&slab, cell);
             let solution = solve(pair, &conditions, &ConstantChoice::default()).unwrap();
             // Flags never change a value: flagged cells hold the solver's numbers too.
             for (field, values) in fields.iter().zip(&stored) {

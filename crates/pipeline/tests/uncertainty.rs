@@ -8,10 +8,10 @@ mod common;
 use acidscape_analysis::horizons::HorizonStatus;
 use acidscape_chem::uncertainty_budget;
 use acidscape_chem::{equilibrium_constants, solve_with_constants, standard_uncertainties};
-use acidscape_chem::{Conditions, ConstantChoice, ConstantUncertainties, InputPair};
+use acidscape_chem::{ConstantChoice, ConstantUncertainties};
 use acidscape_chem::{InputUncertainties, Output, SolvedSample, Source, Uncertainties};
 use acidscape_pipeline::{
-    partial_path, run_job, JobOptions, NoProgress, PipelineError, UncertaintyAmount,
+    cell_sample, partial_path, run_job, JobOptions, NoProgress, PipelineError, UncertaintyAmount,
     UncertaintyRequest, FLAG_FILL, VALUE_FILL,
 };
 use common::*;
@@ -166,17 +166,7 @@ fn uncertainty_fields_equal_the_chemistry_per_cell() {
                 assert!(stored.iter().all(|v| v[at] == VALUE_FILL), "cell {cell}");
                 continue;
             }
-            let conditions = Conditions {
-                temperature_c: slab.temperature_c[cell],
-                salinity: slab.salinity[cell],
-                pressure_dbar: slab.pressure_dbar[cell],
-                phosphate: slab.phosphate[cell],
-                silicate: slab.silicate[cell],
-            };
-            let pair = InputPair::AlkalinityDic {
-                alkalinity: slab.alkalinity[cell],
-                dic: slab.dic[cell],
-            };
+            let (pair, conditions) = cell_sample(&slab, cell);
             let constants = equilibrium_constants(&conditions, &choice).unwrap();
             let solution = solve_with_constants(pair, &conditions, &constants).unwrap();
             let sample = SolvedSample {

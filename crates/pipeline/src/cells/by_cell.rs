@@ -74,17 +74,7 @@ pub(crate) fn solve_cell_by(
     if let Some(flag) = unsolvable(inputs, cell, needs_density, choice) {
         return flag;
     }
-    let conditions = Conditions {
-        temperature_c: inputs.temperature_c[cell],
-        salinity: inputs.salinity[cell],
-        pressure_dbar: inputs.pressure_dbar[cell],
-        phosphate: inputs.phosphate[cell],
-        silicate: inputs.silicate[cell],
-    };
-    let pair = InputPair::AlkalinityDic {
-        alkalinity: inputs.alkalinity[cell],
-        dic: inputs.dic[cell],
-    };
+    let (pair, conditions) = cell_sample(inputs, cell);
     let (solution, uncertainty) = match solve(pair, &conditions) {
         Ok(solved) => solved,
         Err(error) => return error_flag(&error) | assessed_ranges(inputs, cell, choice),
@@ -102,4 +92,21 @@ pub(crate) fn solve_cell_by(
             )
         },
     )
+}
+
+/// Cell `cell` of a slab as the chemistry takes it: the alkalinity–DIC pair and its
+/// in-situ conditions.
+pub fn cell_sample(inputs: &SlabInputs, cell: usize) -> (InputPair, Conditions) {
+    let conditions = Conditions {
+        temperature_c: inputs.temperature_c[cell],
+        salinity: inputs.salinity[cell],
+        pressure_dbar: inputs.pressure_dbar[cell],
+        phosphate: inputs.phosphate[cell],
+        silicate: inputs.silicate[cell],
+    };
+    let pair = InputPair::AlkalinityDic {
+        alkalinity: inputs.alkalinity[cell],
+        dic: inputs.dic[cell],
+    };
+    (pair, conditions)
 }

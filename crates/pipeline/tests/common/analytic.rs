@@ -146,16 +146,9 @@ impl AnalyticRun {
             for cell in 0..cells {
                 let at = step * cells + cell;
                 dic[at] = match targets[at] {
-                    Target::Omega(omega) => dic_for_omega(
-                        omega,
-                        &Conditions {
-                            temperature_c: slab.temperature_c[cell],
-                            salinity: slab.salinity[cell],
-                            pressure_dbar: slab.pressure_dbar[cell],
-                            phosphate: slab.phosphate[cell],
-                            silicate: slab.silicate[cell],
-                        },
-                    ),
+                    Target::Omega(omega) => {
+                        dic_for_omega(omega, &acidscape_pipeline::cell_sample(&slab, cell).1)
+                    }
                     Target::MissingDic | Target::Land => FILL,
                 };
             }
