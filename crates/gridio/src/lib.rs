@@ -9,6 +9,7 @@
 pub mod calendar;
 pub mod sampling;
 pub mod seawater;
+pub mod specific_volume;
 pub mod units;
 
 mod axes;
@@ -22,6 +23,7 @@ mod error;
 mod grid;
 mod indicator_file;
 mod integrity;
+mod lanes;
 mod mapping;
 mod native;
 mod output;

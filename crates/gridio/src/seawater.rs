@@ -4,7 +4,9 @@
 //! EOS-80 algorithms of Fofonoff & Millard 1983 (UNESCO Tech. Pap. Mar. Sci. 44)
 //! for the adiabatic lapse rate and potential temperature where it does not.
 //!
-//! Scalar functions, f64 in and f64 out, no allocation: cheap enough per cell.
+//! Scalar functions, f64 in and f64 out, no allocation; the two costliest per cell also
+//! for many cells side by side ([`in_situ_from_potential_lanes`] here, and the density in
+//! [`crate::specific_volume`]), which is what `compute` runs.
 //!
 //! Approximations (also in [`PROVENANCE_NOTES`]):
 //! - Absolute salinity is taken as Reference Salinity SR = SP × 35.16504/35
@@ -25,12 +27,13 @@
 //!   with t68 = 1.00024 t90 (Saunders 1990, as quoted in the TEOS-10 manual
 //!   IOC et al. 2010, appendix A.1; from memory).
 
+use crate::lanes::widest_lanes;
 use std::fmt;
 
 /// IPTS-68 from ITS-90 temperature factor (Saunders 1990): t68 = 1.00024 t90.
 const T68_PER_T90: f64 = 1.00024;
 
-/// Convergence threshold of the temperature inversions, °C.
+/// Convergence threshold of the Conservative Temperature inversion, °C.
 const NEWTON_TOLERANCE: f64 = 1e-10;
 
 /// Statements of what this module approximates, for output provenance.
@@ -44,13 +47,13 @@ pub const PROVENANCE_NOTES: [(&str, &str); 3] = [
     (
         "temperature_conversion",
         "potential <-> in-situ temperature by Fofonoff & Millard 1983 (UNESCO Tech. Pap. Mar. Sci. 44, \
-         EOS-80 adiabatic lapse rate, Runge-Kutta), ITS-90 via t68 = 1.00024 t90; Conservative \
+         EOS-80 adiabatic lapse rate, one Runge-Kutta step up or down), ITS-90 via t68 = 1.00024 t90; Conservative \
          Temperature first converted to potential temperature by inverting TEOS-10 CT_from_pt (gsw crate)",
     ),
     (
         "density",
         "in-situ density from the TEOS-10 75-term specific-volume polynomial (Roquet et al. 2015, \
-         gsw crate rho) with SA = SR and CT from potential temperature",
+         the gsw crate's coefficients) with SA = SR and CT from potential temperature",
     ),
 ];
 
@@ -164,120 +167,40 @@ pub fn potential_from_in_situ(practical: f64, t90: f64, p: f64) -> f64 {
     potential_temperature_ipts68(practical, t90 * T68_PER_T90, p, 0.0) / T68_PER_T90
 }
 
-/// d(ATG)/dt \[1/dbar\]: the temperature derivative of [`adiabatic_lapse_rate_ipts68`]
-/// (Fofonoff & Millard 1983 ATG, differentiated term by term); S practical, t IPTS-68 °C, p dbar.
-fn lapse_rate_temperature_derivative(s: f64, t68: f64, p: f64) -> f64 {
-    let ds = s - 35.0;
-    let t = t68;
-    ((-4.3374e-16 * t + 1.8676e-14) * p
-        + (2.7759e-12 * ds + (-1.634_43e-13 * t + 1.7466e-11) * t - 6.7795e-10))
-        * p
-        - 4.2393e-8 * ds
-        + (1.986_84e-9 * t - 1.3672e-7) * t
-        + 8.5258e-6
-}
-
-/// Bound on the relative error of [`potential_temperature_slope`] over the oceanic range
-/// (S 0–42, t −2–40 °C, p 0–11000 dbar), with a safety factor of 10 over the largest
-/// error measured (1.44e-4, fresh water at −2 °C and 11000 dbar; test below).
-const SLOPE_RELATIVE_ERROR_BOUND: f64 = 2e-3;
-
-/// d theta / d t at fixed S and p (both ITS-90 or both IPTS-68: the scale factor cancels).
+/// In-situ temperature \[ITS-90 °C\] from potential temperature (0 dbar reference): Fofonoff & Millard 1983 THETA from 0 dbar down to `p`.
 ///
-/// Along the adiabat from p up to 0 dbar a perturbation of t grows as
-/// exp(-∫ dATG/dt dp'); the integral is taken by Simpson's rule, temperature linear in p.
-fn potential_temperature_slope(s: f64, t68: f64, theta68: f64, p: f64) -> f64 {
-    let at = |t, p| lapse_rate_temperature_derivative(s, t, p);
-    let integral =
-        p / 6.0 * (at(theta68, 0.0) + 4.0 * at(0.5 * (t68 + theta68), 0.5 * p) + at(t68, p));
-    (-integral).exp()
+/// Their THETA with the two pressures swapped; NaN where an input is not finite. Within
+/// 7.1e-5 °C of their lapse rate integrated finely, over S 0–42, t −2–40 °C, p to 11000 dbar
+/// (tests/conversions.rs); not an exact inverse of the one-step [`potential_from_in_situ`]
+/// (off the same adiabat by up to 1.32e-4 °C): the round trip closes to 1e-9 °C above
+/// 1000 dbar, 1.9e-4 °C at 11000 dbar.
+#[inline(always)]
+pub fn in_situ_from_potential(practical: f64, theta90: f64, p: f64) -> f64 {
+    potential_temperature_ipts68(practical, theta90 * T68_PER_T90, 0.0, p) / T68_PER_T90
 }
 
-/// In-situ temperature \[ITS-90 °C\] from potential temperature (0 dbar reference) by inverting
-/// [`potential_from_in_situ`] to within 1e-10 °C.
-pub fn in_situ_from_potential(practical: f64, theta90: f64, p: f64) -> Result<f64, SeawaterError> {
-    if !(theta90.is_finite() && practical.is_finite() && p.is_finite()) {
-        return Ok(f64::NAN);
-    }
-    // Integrating the lapse rate downwards gives a first guess within ~2e-5 °C at
-    // 10000 dbar (within 1e-10 °C above ~1000 dbar). Newton steps with a near-exact slope
-    // shrink the error by SLOPE_RELATIVE_ERROR_BOUND or better each, so after a step of
-    // size below NEWTON_TOLERANCE / SLOPE_RELATIVE_ERROR_BOUND no check is needed.
-    let tolerance = NEWTON_TOLERANCE * T68_PER_T90;
-    let theta68 = theta90 * T68_PER_T90;
-    let mut t68 = potential_temperature_ipts68(practical, theta68, 0.0, p);
-    for _ in 0..8 {
-        let f = potential_temperature_ipts68(practical, t68, p, 0.0) - theta68;
-        if f.abs() < tolerance {
-            return Ok(t68 / T68_PER_T90);
-        }
-        let step = f / potential_temperature_slope(practical, t68, theta68, p);
-        t68 -= step;
-        if !t68.is_finite() {
-            break;
-        }
-        if step.abs() * SLOPE_RELATIVE_ERROR_BOUND < tolerance {
-            return Ok(t68 / T68_PER_T90);
-        }
-    }
-    Err(SeawaterError::NoConvergence {
-        quantity: "potential temperature",
-        value: theta90,
-    })
-}
-
-/// [`in_situ_from_potential`] for N cells side by side: the same steps on each, so each cell's
-/// result is bit for bit the scalar one, but the cells' evaluations are independent chains the
-/// CPU overlaps (one cell's Runge–Kutta steps wait on each other; eight cells' do not). `None`
-/// where the scalar function returns an error (no convergence); NaN for non-finite inputs.
+/// [`in_situ_from_potential`] for N cells side by side: the same arithmetic on each, so each
+/// cell's result is bit for bit the scalar one, compiled for the widest SIMD registers the CPU
+/// offers ([`crate::lanes`]).
 pub fn in_situ_from_potential_lanes<const N: usize>(
     practical: &[f64; N],
     theta90: &[f64; N],
     p: &[f64; N],
-) -> [Option<f64>; N] {
-    let tolerance = NEWTON_TOLERANCE * T68_PER_T90;
-    let mut theta68 = [0.0; N];
-    let mut t68 = [0.0; N];
+) -> [f64; N] {
+    widest_lanes!(in_situ_each, practical, theta90, p)
+}
+
+#[inline(always)]
+fn in_situ_each<const N: usize>(
+    practical: &[f64; N],
+    theta90: &[f64; N],
+    p: &[f64; N],
+) -> [f64; N] {
+    let mut in_situ = [0.0; N];
     for i in 0..N {
-        theta68[i] = theta90[i] * T68_PER_T90;
-        t68[i] = potential_temperature_ipts68(practical[i], theta68[i], 0.0, p[i]);
+        in_situ[i] = in_situ_from_potential(practical[i], theta90[i], p[i]);
     }
-    let mut result = [None; N];
-    let mut active = [true; N];
-    for (i, active) in active.iter_mut().enumerate() {
-        if !(theta90[i].is_finite() && practical[i].is_finite() && p[i].is_finite()) {
-            (result[i], *active) = (Some(f64::NAN), false);
-        }
-    }
-    for _ in 0..8 {
-        let mut f = [0.0; N];
-        for i in 0..N {
-            f[i] = potential_temperature_ipts68(practical[i], t68[i], p[i], 0.0) - theta68[i];
-        }
-        let mut any_active = false;
-        for i in 0..N {
-            if !active[i] {
-                continue;
-            }
-            if f[i].abs() < tolerance {
-                (result[i], active[i]) = (Some(t68[i] / T68_PER_T90), false);
-                continue;
-            }
-            let step = f[i] / potential_temperature_slope(practical[i], t68[i], theta68[i], p[i]);
-            t68[i] -= step;
-            if !t68[i].is_finite() {
-                active[i] = false;
-            } else if step.abs() * SLOPE_RELATIVE_ERROR_BOUND < tolerance {
-                (result[i], active[i]) = (Some(t68[i] / T68_PER_T90), false);
-            } else {
-                any_active = true;
-            }
-        }
-        if !any_active {
-            break;
-        }
-    }
-    result
+    in_situ
 }
 
 /// TEOS-10 potential temperature \[°C\] from Conservative Temperature by inverting gsw ct_from_pt.
@@ -326,7 +249,11 @@ pub fn in_situ_from_conservative(
     p: f64,
 ) -> Result<f64, SeawaterError> {
     let theta = potential_from_conservative(absolute_g_kg, ct)?;
-    in_situ_from_potential(practical_from_absolute(absolute_g_kg), theta, p)
+    Ok(in_situ_from_potential(
+        practical_from_absolute(absolute_g_kg),
+        theta,
+        p,
+    ))
 }
 
 /// In-situ density \[kg m-3\] from absolute salinity and Conservative Temperature (TEOS-10 75-term gsw rho).
@@ -369,7 +296,7 @@ pub fn in_situ_temperature(
 ) -> Result<f64, SeawaterError> {
     match kind {
         TemperatureKind::InSitu => Ok(temperature),
-        TemperatureKind::Potential => in_situ_from_potential(practical, temperature, p),
+        TemperatureKind::Potential => Ok(in_situ_from_potential(practical, temperature, p)),
         TemperatureKind::Conservative => {
             in_situ_from_conservative(absolute_from_practical(practical), temperature, p)
         }
@@ -407,32 +334,41 @@ pub fn in_situ_state_knowing(
     p: f64,
     in_situ: Option<f64>,
 ) -> Result<InSituState, SeawaterError> {
+    let (temperature_c, ct) = in_situ_and_conservative(kind, temperature, practical, p, in_situ)?;
+    Ok(InSituState {
+        temperature_c,
+        density_kg_m3: density_from_conservative(absolute_from_practical(practical), ct, p)?,
+    })
+}
+
+/// In-situ and Conservative Temperature \[°C\] of one cell (what its density needs), from a
+/// temperature of any kind; `in_situ` as for [`in_situ_state_knowing`].
+pub fn in_situ_and_conservative(
+    kind: TemperatureKind,
+    temperature: f64,
+    practical: f64,
+    p: f64,
+    in_situ: Option<f64>,
+) -> Result<(f64, f64), SeawaterError> {
     if practical < 0.0 {
         return Err(SeawaterError::NegativeSalinity {
             salinity: practical,
         });
     }
     let sa = absolute_from_practical(practical);
-    let (temperature_c, ct) = match kind {
+    Ok(match kind {
         TemperatureKind::InSitu => {
             let theta = potential_from_in_situ(practical, temperature, p);
             (temperature, conservative_from_potential(sa, theta)?)
         }
         TemperatureKind::Potential => (
-            match in_situ {
-                Some(t) => t,
-                None => in_situ_from_potential(practical, temperature, p)?,
-            },
+            in_situ.unwrap_or_else(|| in_situ_from_potential(practical, temperature, p)),
             conservative_from_potential(sa, temperature)?,
         ),
         TemperatureKind::Conservative => {
             let theta = potential_from_conservative(sa, temperature)?;
-            (in_situ_from_potential(practical, theta, p)?, temperature)
+            (in_situ_from_potential(practical, theta, p), temperature)
         }
-    };
-    Ok(InSituState {
-        temperature_c,
-        density_kg_m3: density_from_conservative(sa, ct, p)?,
     })
 }
 
@@ -444,28 +380,6 @@ mod tests {
     fn lapse_rate_is_positive_in_warm_water_and_small_near_freezing() {
         assert!(adiabatic_lapse_rate_ipts68(35.0, 20.0, 0.0) > 1e-4);
         assert!(adiabatic_lapse_rate_ipts68(35.0, -1.5, 0.0).abs() < 3e-5);
-    }
-
-    #[test]
-    fn slope_of_theta_matches_finite_differences_within_a_tenth_of_its_bound() {
-        // Central differences of Fofonoff & Millard 1983 THETA over the oceanic range; the
-        // bound used by the inversion carries a safety factor of 10 over what is seen here.
-        let mut worst: f64 = 0.0;
-        for s in [0.0, 20.0, 35.0, 42.0] {
-            for t in [-2.0, 0.0, 5.0, 15.0, 30.0, 40.0] {
-                for p in [10.0, 500.0, 2000.0, 5000.0, 8000.0, 11000.0] {
-                    let h = 1e-3;
-                    let fd = (potential_temperature_ipts68(s, t + h, p, 0.0)
-                        - potential_temperature_ipts68(s, t - h, p, 0.0))
-                        / (2.0 * h);
-                    let theta = potential_temperature_ipts68(s, t, p, 0.0);
-                    let slope = potential_temperature_slope(s, t, theta, p);
-                    worst = worst.max((slope / fd - 1.0).abs());
-                }
-            }
-        }
-        eprintln!("largest relative error of d theta/d t: {worst:.2e}");
-        assert!(worst < 0.1 * SLOPE_RELATIVE_ERROR_BOUND, "{worst:e}");
     }
 
     #[test]
@@ -481,10 +395,10 @@ mod tests {
             p[5] = f64::NAN;
             let lanes = in_situ_from_potential_lanes(&s, &theta, &p);
             for i in 0..8 {
-                let scalar = in_situ_from_potential(s[i], theta[i], p[i]).ok();
+                let scalar = in_situ_from_potential(s[i], theta[i], p[i]);
                 assert_eq!(
-                    lanes[i].map(f64::to_bits),
-                    scalar.map(f64::to_bits),
+                    lanes[i].to_bits(),
+                    scalar.to_bits(),
                     "cell {i} at {p0} dbar"
                 );
             }

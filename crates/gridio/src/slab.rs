@@ -9,6 +9,7 @@ use crate::mapping::{SalinityKind, TemperatureKind};
 use crate::roles::Role;
 use crate::run::Run;
 use crate::seawater;
+use crate::specific_volume::density_lanes;
 use crate::units::{Concentration, SalinityUnits, TemperatureUnits};
 use crate::vertical::Vertical;
 use crate::{DensityChoice, SlabInputs};
@@ -16,7 +17,7 @@ use rayon::prelude::*;
 use std::ops::Range;
 
 /// Cells converted side by side (see [`seawater::in_situ_from_potential_lanes`]).
-const LANES: usize = 8;
+const LANES: usize = 16;
 
 impl Run {
     /// Reads and converts one slab: time step `step`, all levels, rows `rows`, all columns.
@@ -137,26 +138,7 @@ impl Run {
 
         // Temperature, salinity, density, concentrations: converted in place, each by the
         // meaning of the file the step was read from.
-        let (t_scale, t_kind) = match self.required(Role::Temperature).meaning_at(step).conversion {
-            Conversion::Temperature(scale, kind) => (scale, kind),
-            _ => (TemperatureUnits::Celsius, TemperatureKind::InSitu),
-        };
-        let salinity_meaning = self.required(Role::Salinity).meaning_at(step);
-        let salinity_scale = salinity_meaning.salinity_scale;
-        let salinity_conversion = match &salinity_meaning.conversion {
-            Conversion::Salinity(kind, units) => (*kind, *units),
-            _ => (SalinityKind::Practical, SalinityUnits::Practical),
-        };
-        let concentration =
-            |role: Role| match self.input(role).map(|i| &i.meaning_at(step).conversion) {
-                Some(Conversion::Concentration(c)) => Some(*c),
-                _ => None,
-            };
-        let (dic_units, alk_units) = (concentration(Role::Dic), concentration(Role::Alkalinity));
-        let (po4_units, si_units) = (
-            concentration(Role::Phosphate),
-            concentration(Role::Silicate),
-        );
+        let conversions = self.cell_conversions(step);
         let mut temperature_c = raw.temperature_raw;
         let mut salinity = raw.salinity_raw;
         let mut dic = raw.dic_raw;
@@ -182,62 +164,10 @@ impl Run {
             .into_par_iter()
             .with_min_len(32)
             .for_each(|((t, s, rho, p), (dic, alk, po4, si))| {
-                let cells = t.len();
-                let (mut sp, mut t_file, mut pressure) = ([0.0; LANES], [0.0; LANES], [0.0; LANES]);
-                for i in 0..cells {
-                    sp[i] = match salinity_conversion {
-                        (SalinityKind::Practical, _) => s[i] * salinity_scale,
-                        (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
-                            seawater::practical_from_absolute(s[i] * to_g_per_kg)
-                        }
-                        (SalinityKind::Absolute, SalinityUnits::Practical) => {
-                            seawater::practical_from_absolute(s[i])
-                        }
-                    };
-                    t_file[i] = t_scale.to_celsius(t[i]);
-                    pressure[i] = p[i];
-                }
-                // The costliest step, potential to in-situ temperature, for the cells side by side.
-                let known = match t_kind {
-                    TemperatureKind::Potential => {
-                        seawater::in_situ_from_potential_lanes(&sp, &t_file, &pressure)
-                    }
-                    _ => [None; LANES],
-                };
-                for i in 0..cells {
-                    let (sp, t_file, p) = (sp[i], t_file[i], pressure[i]);
-                    let (t_situ, density) = if t_file.is_finite() && sp.is_finite() && p.is_finite()
-                    {
-                        in_situ_temperature_and_density(
-                            self.density,
-                            t_kind,
-                            t_file,
-                            sp,
-                            p,
-                            known[i],
-                        )
-                    } else {
-                        let reference = match self.density {
-                            DensityChoice::Reference(rho) => rho,
-                            DensityChoice::InSitu => f64::NAN,
-                        };
-                        (f64::NAN, reference)
-                    };
-                    s[i] = sp;
-                    t[i] = t_situ;
-                    rho[i] = density;
-                    let convert = |units: Option<Concentration>, v: f64| {
-                        units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
-                    };
-                    dic[i] = convert(dic_units, dic[i]);
-                    alk[i] = convert(alk_units, alk[i]);
-                    if po4_units.is_some() {
-                        po4[i] = convert(po4_units, po4[i]);
-                    }
-                    if si_units.is_some() {
-                        si[i] = convert(si_units, si[i]);
-                    }
-                }
+                conversions.convert_group(
+                    LaneGroup { t, s, rho, p },
+                    Concentrations { dic, alk, po4, si },
+                );
             });
         SlabInputs {
             step: raw.step,
@@ -368,27 +298,141 @@ impl RawSlab {
     }
 }
 
-/// In-situ temperature [°C] and the density for per-volume concentrations [kg m-3] of one
-/// wet cell; NaN for what cannot be computed.
-fn in_situ_temperature_and_density(
+/// How every cell of one step converts: each role by the meaning of the file it was read from.
+struct CellConversions {
+    temperature: (TemperatureUnits, TemperatureKind),
+    salinity: (SalinityKind, SalinityUnits),
+    salinity_scale: f64,
     density: DensityChoice,
-    kind: TemperatureKind,
-    temperature: f64,
-    practical: f64,
-    p: f64,
-    known: Option<f64>,
-) -> (f64, f64) {
-    let in_situ_only = || match known {
-        Some(t) => Ok(t),
-        None => seawater::in_situ_temperature(kind, temperature, practical, p),
-    };
-    match density {
-        DensityChoice::Reference(rho) => (in_situ_only().unwrap_or(f64::NAN), rho),
-        // One pass gives both (saves a potential-temperature evaluation per cell).
-        DensityChoice::InSitu => {
-            match seawater::in_situ_state_knowing(kind, temperature, practical, p, known) {
-                Ok(state) => (state.temperature_c, state.density_kg_m3),
-                Err(_) => (in_situ_only().unwrap_or(f64::NAN), f64::NAN),
+    dic: Option<Concentration>,
+    alkalinity: Option<Concentration>,
+    phosphate: Option<Concentration>,
+    silicate: Option<Concentration>,
+}
+
+/// Up to [`LANES`] consecutive cells: temperature, salinity and density (converted in place)
+/// and sea pressure.
+struct LaneGroup<'a> {
+    t: &'a mut [f64],
+    s: &'a mut [f64],
+    rho: &'a mut [f64],
+    p: &'a [f64],
+}
+
+/// The same cells' concentrations, converted in place to µmol kg-1.
+struct Concentrations<'a> {
+    dic: &'a mut [f64],
+    alk: &'a mut [f64],
+    po4: &'a mut [f64],
+    si: &'a mut [f64],
+}
+
+impl Run {
+    /// The conversions of step `step`.
+    fn cell_conversions(&self, step: usize) -> CellConversions {
+        let temperature = match self.required(Role::Temperature).meaning_at(step).conversion {
+            Conversion::Temperature(scale, kind) => (scale, kind),
+            _ => (TemperatureUnits::Celsius, TemperatureKind::InSitu),
+        };
+        let salinity_meaning = self.required(Role::Salinity).meaning_at(step);
+        let salinity = match &salinity_meaning.conversion {
+            Conversion::Salinity(kind, units) => (*kind, *units),
+            _ => (SalinityKind::Practical, SalinityUnits::Practical),
+        };
+        let concentration =
+            |role: Role| match self.input(role).map(|i| &i.meaning_at(step).conversion) {
+                Some(Conversion::Concentration(c)) => Some(*c),
+                _ => None,
+            };
+        CellConversions {
+            temperature,
+            salinity,
+            salinity_scale: salinity_meaning.salinity_scale,
+            density: self.density,
+            dic: concentration(Role::Dic),
+            alkalinity: concentration(Role::Alkalinity),
+            phosphate: concentration(Role::Phosphate),
+            silicate: concentration(Role::Silicate),
+        }
+    }
+}
+
+impl CellConversions {
+    /// Practical salinity of a value as read.
+    fn practical(&self, value: f64) -> f64 {
+        match self.salinity {
+            (SalinityKind::Practical, _) => value * self.salinity_scale,
+            (SalinityKind::Absolute, SalinityUnits::Absolute { to_g_per_kg }) => {
+                seawater::practical_from_absolute(value * to_g_per_kg)
+            }
+            (SalinityKind::Absolute, SalinityUnits::Practical) => {
+                seawater::practical_from_absolute(value)
+            }
+        }
+    }
+
+    /// Converts one group of cells. The costly steps (potential to in-situ temperature, the
+    /// density polynomial) run on the cells side by side; land (all missing) skips them.
+    fn convert_group(&self, cells: LaneGroup<'_>, amounts: Concentrations<'_>) {
+        let count = cells.t.len();
+        let (t_scale, t_kind) = self.temperature;
+        let (mut sp, mut t_file, mut pressure) = ([0.0; LANES], [0.0; LANES], [0.0; LANES]);
+        for i in 0..count {
+            sp[i] = self.practical(cells.s[i]);
+            t_file[i] = t_scale.to_celsius(cells.t[i]);
+            pressure[i] = cells.p[i];
+        }
+        let any_sea = t_file[..count].iter().any(|t| t.is_finite());
+        let known = match t_kind {
+            TemperatureKind::Potential if any_sea => {
+                seawater::in_situ_from_potential_lanes(&sp, &t_file, &pressure).map(Some)
+            }
+            _ => [None; LANES],
+        };
+        let in_situ_density = self.density == DensityChoice::InSitu;
+        let (mut t_situ, mut sa, mut ct) =
+            ([f64::NAN; LANES], [f64::NAN; LANES], [f64::NAN; LANES]);
+        for i in 0..count {
+            let (sp, t_file, p) = (sp[i], t_file[i], pressure[i]);
+            if !(t_file.is_finite() && sp.is_finite() && p.is_finite()) {
+                continue;
+            }
+            let in_situ_only = || match known[i] {
+                Some(t) => Ok(t),
+                None => seawater::in_situ_temperature(t_kind, t_file, sp, p),
+            };
+            if !in_situ_density {
+                t_situ[i] = in_situ_only().unwrap_or(f64::NAN);
+                continue;
+            }
+            // One pass gives both (saves a potential-temperature evaluation per cell).
+            match seawater::in_situ_and_conservative(t_kind, t_file, sp, p, known[i]) {
+                Ok((t, conservative)) => {
+                    (t_situ[i], ct[i]) = (t, conservative);
+                    sa[i] = seawater::absolute_from_practical(sp);
+                }
+                Err(_) => t_situ[i] = in_situ_only().unwrap_or(f64::NAN),
+            }
+        }
+        let density = match self.density {
+            DensityChoice::InSitu if any_sea => density_lanes(&sa, &ct, &pressure),
+            DensityChoice::InSitu => [f64::NAN; LANES],
+            DensityChoice::Reference(rho) => [rho; LANES],
+        };
+        let convert = |units: Option<Concentration>, v: f64, density: f64| {
+            units.map_or(f64::NAN, |u| u.to_umol_per_kg(v, density))
+        };
+        for i in 0..count {
+            cells.s[i] = sp[i];
+            cells.t[i] = t_situ[i];
+            cells.rho[i] = density[i];
+            amounts.dic[i] = convert(self.dic, amounts.dic[i], density[i]);
+            amounts.alk[i] = convert(self.alkalinity, amounts.alk[i], density[i]);
+            if self.phosphate.is_some() {
+                amounts.po4[i] = convert(self.phosphate, amounts.po4[i], density[i]);
+            }
+            if self.silicate.is_some() {
+                amounts.si[i] = convert(self.silicate, amounts.si[i], density[i]);
             }
         }
     }

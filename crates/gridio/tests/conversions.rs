@@ -12,6 +12,7 @@ use acidscape_gridio::seawater::{
     potential_temperature_ipts68, practical_from_absolute, sea_pressure_from_depth,
     TemperatureKind,
 };
+use acidscape_gridio::specific_volume::density_lanes;
 use acidscape_gridio::units::{
     parse_area, parse_concentration, parse_length, parse_pressure, parse_salinity,
     parse_temperature, practical_salinity_scale, ConcentrationBasis, SalinityUnits,
@@ -669,8 +670,8 @@ fn potential_and_in_situ_temperature_round_trip() {
         for t in [-2.0, 0.0, 4.0, 15.0, 30.0, 40.0] {
             for p in [0.0, 100.0, 1000.0, 5000.0, 10000.0] {
                 let theta = potential_from_in_situ(s, t, p);
-                let back = in_situ_from_potential(s, theta, p).unwrap();
-                close(back, t, 1e-6, &format!("S={s} t={t} p={p}"));
+                let back = in_situ_from_potential(s, theta, p);
+                close(back, t, 2.5e-4, &format!("S={s} t={t} p={p}"));
                 if p > 0.0 && t > 4.0 {
                     assert!(theta < t, "compression warms warm water: S={s} t={t} p={p}");
                 }
@@ -683,30 +684,58 @@ fn potential_and_in_situ_temperature_round_trip() {
         1e-12,
         "theta at the surface",
     );
-    assert!(in_situ_from_potential(35.0, f64::NAN, 100.0)
-        .unwrap()
-        .is_nan());
+    assert!(in_situ_from_potential(35.0, f64::NAN, 100.0).is_nan());
+}
+
+/// The adiabat through (S, t68 at p0) at p1, by Fofonoff & Millard 1983's lapse rate
+/// integrated in 400 Runge–Kutta steps: a reference for their one-step THETA.
+fn adiabat_in_many_steps(s: f64, t68: f64, p0: f64, p1: f64) -> f64 {
+    let steps = 400;
+    let h = (p1 - p0) / steps as f64;
+    (0..steps).fold(t68, |t, k| {
+        let p = p0 + h * k as f64;
+        potential_temperature_ipts68(s, t, p, p + h)
+    })
 }
 
 #[test]
-fn in_situ_from_potential_meets_its_1e_10_tolerance_over_the_oceanic_range() {
-    // The inversion stops without a final check once its Newton step is small enough; the
-    // round trip through Fofonoff & Millard 1983 THETA must still close to 1e-10 °C
-    // (plus round-off) everywhere in the ocean, including the deepest trenches.
-    let mut worst: f64 = 0.0;
+fn in_situ_from_potential_over_the_oceanic_range() {
+    // Fofonoff & Millard 1983 THETA in one Runge–Kutta step, integrated down (potential to
+    // in-situ) as up (in-situ to potential), against their lapse rate integrated in 400 steps,
+    // over S 0–42, t −2–40 °C, p to 11000 dbar. Measured here: down within 7.1e-5 °C of the
+    // adiabat, up within 1.32e-4 °C (so an exact inverse of the up step, the method before,
+    // was off by as much); the round trip closes to 1.2e-10 °C down to 1000 dbar.
+    let (mut round_trip_shallow, mut round_trip_deep) = (0.0f64, 0.0f64);
+    let (mut down_error, mut up_error) = (0.0f64, 0.0f64);
     for s in [0.0, 10.0, 30.0, 34.5, 35.0, 36.0, 42.0] {
         for t in [-2.0, -1.0, 0.5, 2.0, 4.0, 8.0, 12.0, 20.0, 28.0, 35.0, 40.0] {
             for p in [
                 1.0, 50.0, 300.0, 1000.0, 2500.0, 4000.0, 6000.0, 8000.0, 11000.0,
             ] {
                 let theta = potential_from_in_situ(s, t, p);
-                let back = in_situ_from_potential(s, theta, p).unwrap();
-                worst = worst.max((back - t).abs());
+                let error = (in_situ_from_potential(s, theta, p) - t).abs();
+                if p <= 1000.0 {
+                    round_trip_shallow = round_trip_shallow.max(error);
+                } else {
+                    round_trip_deep = round_trip_deep.max(error);
+                }
+                let t68 = t * 1.00024;
+                let adiabat_theta68 = adiabat_in_many_steps(s, t68, p, 0.0);
+                up_error = up_error.max((theta * 1.00024 - adiabat_theta68).abs());
+                let down = in_situ_from_potential(s, adiabat_theta68 / 1.00024, p) * 1.00024;
+                down_error = down_error.max((down - t68).abs());
             }
         }
     }
-    eprintln!("largest round-trip error of in_situ_from_potential: {worst:.1e} °C");
-    assert!(worst < 2e-10, "{worst:e}");
+    eprintln!(
+        "in_situ_from_potential: {down_error:.2e} °C from the adiabat (THETA up: \
+         {up_error:.2e} °C); round trip {round_trip_shallow:.1e} °C to 1000 dbar, \
+         {round_trip_deep:.1e} °C deeper"
+    );
+    assert!(down_error < 7.5e-5, "{down_error:e}");
+    assert!(down_error < up_error, "{down_error:e} {up_error:e}");
+    assert!(round_trip_shallow < 1e-9, "{round_trip_shallow:e}");
+    assert!(round_trip_deep < 2.5e-4, "{round_trip_deep:e}");
 }
 
 #[test]
@@ -813,6 +842,16 @@ fn teos10_density_check_values() {
         let rho = density_from_conservative(CAST_SA[i], CAST_CT[i], CAST_P[i]).unwrap();
         close(rho, expected[i], 1e-9, "rho(SA, CT, p)");
     }
+    // The same six cells side by side, as compute converts them.
+    let lanes = density_lanes(&CAST_SA, &CAST_CT, &CAST_P);
+    for i in 0..6 {
+        close(
+            lanes[i],
+            expected[i],
+            1e-9,
+            "rho(SA, CT, p), cells side by side",
+        );
+    }
     // TEOS-10 help page gsw_rho(SA, t, p) of version 2.0 (exact Gibbs function, in-situ t):
     // from SP = SA*35/35.16504, in-situ t and p our chain (SR, FM83 theta, CT, 75-term rho)
     // must agree to within the 75-term fit error plus the theta approximation.
@@ -866,7 +905,8 @@ fn missing_values_stay_missing() {
 #[test]
 fn combined_state_matches_the_separate_functions() {
     // in_situ_state must agree with in_situ_temperature followed by in_situ_density; the only
-    // difference allowed is the inversion tolerance (1e-10 °C) propagated into density.
+    // difference allowed is the round trip of the one-step THETA (in_situ_density goes back
+    // up to potential temperature), a few 1e-5 °C at 4000 dbar, times about 0.2 kg m-3 per °C.
     for kind in [
         TemperatureKind::InSitu,
         TemperatureKind::Potential,
@@ -877,7 +917,7 @@ fn combined_state_matches_the_separate_functions() {
             let t = in_situ_temperature(kind, temp, s, p).unwrap();
             close(state.temperature_c, t, 1e-9, "temperature");
             let rho = in_situ_density(s, t, p).unwrap();
-            close(state.density_kg_m3, rho, 1e-8, "density");
+            close(state.density_kg_m3, rho, 1e-6, "density");
         }
     }
     // TEOS-10 cast, Conservative Temperature input: density equals gsw_rho(SA, CT, p)
