@@ -25,23 +25,27 @@ const QUALITY_FLAG: &str = "quality_flag";
 /// The regional statistics of every time step of a run, as rows.
 pub type StepRows = Vec<Vec<RegionRow>>;
 
-/// Wet cells (levels × rows × cols): where the quality flag is not its fill value, or, in
-/// outputs without one, where any compared 3-D field has a value at the first step.
-fn wet_cells(file: &IndicatorFile, fields: &[FieldPlan]) -> Result<Vec<bool>> {
+/// Wet cells of a block of rows (levels × block rows × cols): where the quality flag is not
+/// its fill value, or, in outputs without one, where any compared 3-D field has a value at the
+/// first step.
+fn wet_cells(file: &IndicatorFile, fields: &[FieldPlan], rows: Range<usize>) -> Result<Vec<bool>> {
     let flag_per_cell = file
         .variable(QUALITY_FLAG)
         .is_ok_and(|q| q.has_levels || file.levels() == 1);
     if flag_per_cell {
         return Ok(file
-            .read_step(QUALITY_FLAG, 0)?
+            .read_rows(QUALITY_FLAG, 0, rows)?
             .iter()
             .map(|f| !f.is_nan())
             .collect());
     }
-    let cells = file.levels() * file.grid().columns();
+    let cells = file.levels() * rows.len() * file.grid().cols;
     let mut wet = vec![false; cells];
     for field in fields.iter().filter(|f| f.has_levels || file.levels() == 1) {
-        for (w, v) in wet.iter_mut().zip(file.read_step(&field.name, 0)?) {
+        for (w, v) in wet
+            .iter_mut()
+            .zip(file.read_rows(&field.name, 0, rows.clone())?)
+        {
             *w |= !v.is_nan();
         }
     }
@@ -119,7 +123,6 @@ impl Pass<'_> {
     ) -> Result<StepRows> {
         let (plan, run) = (self.plan, self.run);
         let file = &run.file;
-        let wet = wet_cells(file, &plan.fields)?;
         let (cell_specs, column_specs) = field_specs(&plan.fields);
         let mut regional: Vec<RegionStatistics> = (0..file.steps())
             .map(|_| {
@@ -144,7 +147,7 @@ impl Pass<'_> {
             }
             let mut block = new_block(plan, run, self.index, output, rows.clone())?;
             if !rows.is_empty() {
-                self.stream_block(&wet, &mut block, &mut regional, progress)?;
+                self.stream_block(&mut block, &mut regional, progress)?;
             }
             write_block(plan, run, output, &block)?;
         }
@@ -298,19 +301,11 @@ fn finish_block(plan: &ComparisonPlan, run: &PlannedRun, block: &mut Block) -> R
     Ok(())
 }
 
-/// The wet cells of a block (levels × block columns), from the whole grid's.
-fn block_wet(wet: &[bool], shape: SlabShape, all_columns: usize, first: usize) -> Vec<bool> {
-    (0..shape.levels)
-        .flat_map(|k| (0..shape.columns()).map(move |c| wet[k * all_columns + first + c]))
-        .collect()
-}
-
 impl Pass<'_> {
     /// Streams every step of a block: reads each field once, feeds the accumulators and the
     /// step's regional statistics.
     fn stream_block(
         &self,
-        wet: &[bool],
         block: &mut Block,
         regional: &mut [RegionStatistics],
         progress: &mut dyn FnMut(&str),
@@ -323,7 +318,7 @@ impl Pass<'_> {
             cols: file.grid().cols,
         };
         let first = rows.start * shape.cols;
-        let wet = block_wet(wet, shape, file.grid().columns(), first);
+        let wet = wet_cells(file, &plan.fields, rows.clone())?;
         let varies = self.geometry.varies_in_time(file);
         let mut thickness = self.geometry.thickness(file, 0, rows.clone())?;
         let mut depths = file.centre_depths(0, rows.clone())?;
