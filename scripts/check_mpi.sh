@@ -261,15 +261,13 @@ summary() { # output: its summary on stdout, the output's name replaced
     grep -v '^acidscape:' "$1.log" | sed "s#${1%.nc}#OUTPUT#g"
 }
 same_comparison() { # reference output, output, what
-    if python3 scripts/compare_nc_outputs.py "$1" "$2" >"$work/compare.log" 2>&1 \
-        && cmp -s "${1%.nc}.csv" "${2%.nc}.csv" \
-        && [[ -n "$(summary "$1")" && "$(summary "$1")" == "$(summary "$2")" ]]; then
-        passed=$((passed + 1))
-    else
-        cat "$work/compare.log"; cmp "${1%.nc}.csv" "${2%.nc}.csv" || true
-        diff <(summary "$1") <(summary "$2") || true
-        fail "$3"
-    fi
+    local problems=""
+    python3 scripts/compare_nc_outputs.py "$1" "$2" >"$work/compare.log" 2>&1 \
+        || problems+="$(cat "$work/compare.log")"$'\n'
+    cmp -s "${1%.nc}.csv" "${2%.nc}.csv" || problems+="the regional CSVs differ"$'\n'
+    [[ -n "$(summary "$1")" && "$(summary "$1")" == "$(summary "$2")" ]] \
+        || problems+="the summaries differ: $(diff <(summary "$1") <(summary "$2"))"
+    if [[ -z "$problems" ]]; then passed=$((passed + 1)); else echo "$problems"; fail "$3"; fi
 }
 # The sample grid is one output chunk (rank 0 takes it all, the others take part in every
 # write with nothing); ACIDSCAPE_COMPARE_CHUNK_BYTES=600 cuts it into chunks of 5 rows (2-D)
