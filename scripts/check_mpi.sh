@@ -42,9 +42,13 @@ parallel="$mpi_target/debug/acidscape"
 if [[ $(id -u) == 0 ]]; then
     export OMPI_ALLOW_RUN_AS_ROOT=1 OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1
 fi
+mpi_exec() { # ranks, then acidscape's arguments
+    local ranks=$1; shift
+    timeout 600 mpirun --oversubscribe --bind-to none --mca mpi_yield_when_idle 1 -np "$ranks" "$parallel" "$@"
+}
 mpi_run() { # ranks, then the compute arguments
     local ranks=$1; shift
-    timeout 600 mpirun --oversubscribe --bind-to none --mca mpi_yield_when_idle 1 -np "$ranks" "$parallel" compute --threads 1 "$@"
+    mpi_exec "$ranks" compute --threads 1 "$@"
 }
 
 failed=0
@@ -247,6 +251,61 @@ elif [[ ! -e "$out" ]] && grep -q "start over with --overwrite" "$out.log.resume
     fi
 else
     cat "$out.log.resume"; fail "one of 2 ranks killed: --resume neither continued nor stopped cleanly"
+fi
+
+echo "== compare of the century pathways on 2 and 3 ranks against one process (NetCDF and CSV)"
+pathways=(moderate="$work/century-pathway-moderate.nc" steep="$work/century-pathway-steep.nc"
+    --window reference=2015-2034 --window late=2081-2100
+    --regions sample-grids/varnholm-regions.toml --emergence 'omega_aragonite:2sd:below')
+summary() { # output: its summary on stdout, the output's name replaced
+    grep -v '^acidscape:' "$1.log" | sed "s#${1%.nc}#OUTPUT#g"
+}
+same_comparison() { # reference output, output, what
+    local problems=""
+    python3 scripts/compare_nc_outputs.py "$1" "$2" >"$work/compare.log" 2>&1 \
+        || problems+="$(cat "$work/compare.log")"$'\n'
+    cmp -s "${1%.nc}.csv" "${2%.nc}.csv" || problems+="the regional CSVs differ"$'\n'
+    [[ -n "$(summary "$1")" && "$(summary "$1")" == "$(summary "$2")" ]] \
+        || problems+="the summaries differ: $(diff <(summary "$1") <(summary "$2"))"
+    if [[ -z "$problems" ]]; then passed=$((passed + 1)); else echo "$problems"; fail "$3"; fi
+}
+# The sample grid is one output chunk (rank 0 takes it all, the others take part in every
+# write with nothing); ACIDSCAPE_COMPARE_CHUNK_BYTES=600 cuts it into chunks of 5 rows (2-D)
+# and 1 row (3-D) so that every rank has rows, and a small budget gives each rank several
+# blocks of rows (as many turns on every rank: some write nothing in their last ones).
+for case in whole:: chunked:600: chunked-blocks:600:300K; do
+    IFS=: read -r name chunk_bytes budget_compare <<<"$case"
+    more=(${budget_compare:+--memory-budget "$budget_compare"})
+    export ACIDSCAPE_COMPARE_CHUNK_BYTES=${chunk_bytes:-4194304}
+    ref="$work/pathways-$name.nc"
+    if ! "$serial" compare "${pathways[@]}" "${more[@]}" -o "$ref" >"$ref.log" 2>&1; then
+        cat "$ref.log"; fail "compare ($name): single process"; continue
+    fi
+    for ranks in 2 3; do
+        out="$work/pathways-$name-$ranks.nc"
+        if mpi_exec "$ranks" compare "${pathways[@]}" "${more[@]}" -o "$out" >"$out.log" 2>&1; then
+            same_comparison "$ref" "$out" "compare ($name) on $ranks ranks"
+        else
+            cat "$out.log"; fail "compare ($name) on $ranks ranks: exit status"
+        fi
+    done
+done
+unset ACIDSCAPE_COMPARE_CHUNK_BYTES
+grep -q 'rows 0\.\.' "$work/pathways-chunked-blocks-3.nc.log" || fail "compare: no blocks of rows on 3 ranks"
+if python3 scripts/check_external_readers.py "$work/pathways-chunked-3.nc" --cf-suite cf:1.10; then
+    passed=$((passed + 1))
+else
+    fail "compare on 3 ranks: external readers or CF checker"
+fi
+echo "== compare on 3 ranks into a folder that cannot be written: one message from rank 0"
+out=/proc/acidscape-compare.nc
+if mpi_exec 3 compare "${pathways[@]}" -o "$out" >"$work/unwritable.log" 2>&1; then
+    fail "compare into /proc: exited 0"
+elif [[ $(grep -c 'acidscape: error' "$work/unwritable.log") == 1 ]] \
+    && grep -q 'cannot create.*(on rank 0 of 3)' "$work/unwritable.log"; then
+    passed=$((passed + 1))
+else
+    cat "$work/unwritable.log"; fail "compare into /proc: not one message from rank 0"
 fi
 
 echo "== the comparison fails on outputs that differ"

@@ -130,6 +130,32 @@ impl ExactSum {
     }
 }
 
+/// Appends sums to one flat list of numbers (each sum's count of partials, then its
+/// partials), e.g. to send to another process; [`merge_flat`] adds such a list back exactly.
+pub fn append_flat<'a>(sums: impl Iterator<Item = &'a ExactSum>, flat: &mut Vec<f64>) {
+    for sum in sums {
+        let partials = sum.partials();
+        flat.push(partials.len() as f64);
+        flat.extend(partials);
+    }
+}
+
+/// Adds a flat list of [`append_flat`] to the same sums in the same order; `None` when the
+/// list does not fit them (a count out of place, too short or too long).
+pub fn merge_flat<'a>(sums: impl Iterator<Item = &'a mut ExactSum>, flat: &[f64]) -> Option<()> {
+    let mut rest = flat;
+    for sum in sums {
+        let (&count, tail) = rest.split_first()?;
+        if !(0.0..=tail.len() as f64).contains(&count) || count.fract() != 0.0 {
+            return None;
+        }
+        let count = count as usize;
+        sum.merge(&ExactSum::from_partials(&tail[..count]));
+        rest = &tail[count..];
+    }
+    rest.is_empty().then_some(())
+}
+
 impl From<Vec<f64>> for ExactSum {
     fn from(partials: Vec<f64>) -> Self {
         ExactSum::from_partials(&partials)

@@ -1,12 +1,16 @@
 //! `compare`: runs side by side over windows of years, by region, with time of emergence.
 
 use crate::compute::command_line;
-use acidscape_comparison::{run_comparison, ComparisonPlan, ComparisonRequest};
+#[cfg(not(feature = "mpi"))]
+use acidscape_comparison::run_comparison;
+use acidscape_comparison::{ComparisonPlan, ComparisonRequest, ComparisonSummary};
 use acidscape_pipeline::output::utc_timestamp;
 use acidscape_pipeline::parse_memory_size;
 use clap::Args;
 use std::error::Error;
 use std::io::Write;
+#[cfg(feature = "mpi")]
+use std::path::Path;
 use std::path::PathBuf;
 
 /// Cautions particular to comparisons, printed with `compare --help`.
@@ -19,6 +23,10 @@ the end of the run, not never. Regions hold the cells whose centres they contain
 hold the cells whose centres lie in them. Weights are the runs' own cell_area and \
 cell_thickness when the outputs have them, otherwise computed from the coordinate bounds \
 (the output's weights attribute says which).";
+
+/// Environment variable setting the target size of the output's chunks in bytes (used by the
+/// tests of the MPI build, to have a sample grid in several chunks shared by the ranks).
+pub const CHUNK_BYTES_ENV: &str = "ACIDSCAPE_COMPARE_CHUNK_BYTES";
 
 #[derive(Args, Debug)]
 pub struct CompareArgs {
@@ -108,11 +116,36 @@ pub fn run(args: &CompareArgs) -> Result<(), Box<dyn Error>> {
         overwrite: args.overwrite,
         memory_budget_bytes: usize::try_from(parse_memory_size(&args.memory_budget)?)
             .unwrap_or(usize::MAX),
+        chunk_bytes: chunk_bytes()?,
         history: format!("{}: {}", utc_timestamp(), command_line()),
     };
-    let plan = ComparisonPlan::new(&request)?;
-    let mut progress = |line: &str| eprintln!("acidscape: {line}");
-    let summary = run_comparison(&plan, &mut progress)?;
+    #[cfg(feature = "mpi")]
+    return on_ranks(request);
+    #[cfg(not(feature = "mpi"))]
+    {
+        let plan = ComparisonPlan::new(&request)?;
+        let mut progress = |line: &str| eprintln!("acidscape: {line}");
+        let summary = run_comparison(&plan, &mut progress)?;
+        report(&summary);
+        Ok(())
+    }
+}
+
+/// The output's chunk size: [`CHUNK_BYTES_ENV`] when set, else the usual.
+fn chunk_bytes() -> Result<usize, Box<dyn Error>> {
+    match std::env::var(CHUNK_BYTES_ENV) {
+        Err(_) => Ok(acidscape_comparison::CHUNK_BYTES),
+        Ok(text) => match text.trim().parse::<usize>() {
+            Ok(bytes) if bytes > 0 => Ok(bytes),
+            _ => Err(
+                format!("{CHUNK_BYTES_ENV}={text}: expected a whole number of bytes above 0")
+                    .into(),
+            ),
+        },
+    }
+}
+
+fn report(summary: &ComparisonSummary) {
     let mut out = std::io::stdout();
     let _ = writeln!(
         out,
@@ -121,5 +154,73 @@ pub fn run(args: &CompareArgs) -> Result<(), Box<dyn Error>> {
         summary.table.display()
     );
     let _ = write!(out, "{}", summary.text);
-    Ok(())
+}
+
+/// The comparison shared by the ranks of an MPI job (see `acidscape_comparison::share`):
+/// rank 0 reports progress and the summary; an error every rank has is reported once by rank
+/// 0, any other ends every rank.
+#[cfg(feature = "mpi")]
+fn on_ranks(mut request: ComparisonRequest) -> Result<(), Box<dyn Error>> {
+    use acidscape_comparison::{run_comparison_shared, share::agree, ComparisonError};
+    use acidscape_pipeline::Ranks;
+    let ranks = Ranks::init()?;
+    let team = RankTeam(&ranks);
+    // The history attribute must be the same on every rank: rank 0's.
+    let told = ranks.exchange(request.history.as_bytes());
+    request.history = String::from_utf8_lossy(&told[0]).into_owned();
+    let mut report_line = |line: &str| eprintln!("acidscape: {line}");
+    let mut quiet = |_: &str| {};
+    let progress: &mut dyn FnMut(&str) = if ranks.rank() == 0 {
+        &mut report_line
+    } else {
+        &mut quiet
+    };
+    let outcome = agree(&team, ComparisonPlan::new(&request))
+        .and_then(|plan| run_comparison_shared(&plan, progress, &team));
+    match outcome {
+        Ok(summary) => {
+            if ranks.rank() == 0 {
+                report(&summary);
+            }
+            Ok(())
+        }
+        Err(error) if ranks.size() == 1 => Err(error.into()),
+        Err(error) => {
+            let every_rank = matches!(error, ComparisonError::Together { .. });
+            crate::compute::end_ranks(ranks, &error, every_rank, 1)
+        }
+    }
+}
+
+/// The ranks of an MPI job as the comparison's team.
+#[cfg(feature = "mpi")]
+struct RankTeam<'a>(&'a acidscape_pipeline::Ranks);
+
+#[cfg(feature = "mpi")]
+impl acidscape_comparison::Team for RankTeam<'_> {
+    fn rank(&self) -> usize {
+        self.0.rank()
+    }
+
+    fn size(&self) -> usize {
+        self.0.size()
+    }
+
+    fn create(&self, path: &Path) -> Result<acidscape_comparison::share::FileMut, String> {
+        self.0.create_shared_file(path).map_err(|e| e.to_string())
+    }
+
+    fn write_together(
+        &self,
+        file: &acidscape_comparison::share::FileMut,
+        path: &Path,
+    ) -> Result<(), String> {
+        self.0
+            .write_collectively(file, path)
+            .map_err(|e| e.to_string())
+    }
+
+    fn exchange(&self, bytes: &[u8]) -> Vec<Vec<u8>> {
+        self.0.exchange(bytes)
+    }
 }

@@ -186,26 +186,39 @@ fn on_ranks(
             Ok(())
         }
         Err(error) if ranks.size() == 1 => Err(error.into()),
-        // Every rank has it: rank 0 reports it as one process would, the others end quietly
-        // once it has (mpirun may end the job when the first rank exits).
-        Err(error @ PipelineError::AllRanks { .. }) => {
-            if ranks.rank() == 0 {
-                let _ = writeln!(std::io::stderr(), "acidscape: error: {error}");
-            }
-            ranks.wait_for_all();
-            drop(ranks);
-            signal_hook::low_level::exit(exit_status(&error))
-        }
         Err(error) => {
-            let (rank, size) = (ranks.rank(), ranks.size());
-            // One write, so that the ranks' messages do not interleave.
-            let text = format!(
-                "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort)\n"
-            );
-            let _ = std::io::stderr().write_all(text.as_bytes());
-            ranks.abort(exit_status(&error))
+            let every_rank = matches!(error, PipelineError::AllRanks { .. });
+            end_ranks(ranks, &error, every_rank, exit_status(&error))
         }
     }
+}
+
+/// Ends this rank after `error`. An error `every_rank` has: rank 0 reports it as one process
+/// would, the others end quietly once it has (mpirun may end the job when the first rank
+/// exits). Any other: this rank reports it and ends every rank, as the others would wait for
+/// it forever.
+#[cfg(feature = "mpi")]
+pub(crate) fn end_ranks(
+    ranks: acidscape_pipeline::Ranks,
+    error: &dyn std::fmt::Display,
+    every_rank: bool,
+    status: i32,
+) -> ! {
+    if every_rank {
+        if ranks.rank() == 0 {
+            let _ = writeln!(std::io::stderr(), "acidscape: error: {error}");
+        }
+        ranks.wait_for_all();
+        drop(ranks);
+        signal_hook::low_level::exit(status)
+    }
+    let (rank, size) = (ranks.rank(), ranks.size());
+    // One write, so that the ranks' messages do not interleave.
+    let text = format!(
+        "acidscape: error on rank {rank} of {size}: {error}\nacidscape: rank {rank} ends all {size} ranks of the job (MPI_Abort)\n"
+    );
+    let _ = std::io::stderr().write_all(text.as_bytes());
+    ranks.abort(status)
 }
 
 /// A rank's exit status after `error`: 128 + the signal that stopped the job, else 1.

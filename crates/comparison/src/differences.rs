@@ -7,8 +7,8 @@ use crate::names;
 use crate::options::Statistic;
 use crate::output::Output;
 use crate::plan::ComparisonPlan;
-use crate::stream::blocks;
 use acidscape_analysis::windows::{difference, shoaling_m};
+use std::ops::Range;
 
 fn subtract(horizon: bool, earlier_or_baseline: &[f64], other: &[f64]) -> Result<Vec<f64>> {
     let result = if horizon {
@@ -20,18 +20,18 @@ fn subtract(horizon: bool, earlier_or_baseline: &[f64], other: &[f64]) -> Result
     result.map_err(|e| ComparisonError::option("differences", e.to_string()))
 }
 
-/// Writes every change and difference variable, a block of rows at a time.
+/// Writes every change and difference variable, a block of rows at a time (this process's
+/// blocks, see [`crate::share::turns`]).
 pub fn write_changes_and_differences(
     plan: &ComparisonPlan,
     output: &mut Output,
-    rows_per_block: usize,
+    turns: &[Range<usize>],
 ) -> Result<()> {
     let baseline = &plan.baseline().label;
-    let rows = plan.baseline().file.grid().rows;
     for field in &plan.fields {
         let horizon = field.is_horizon();
         let levels = field.has_levels;
-        for block in blocks(rows, rows_per_block) {
+        for block in turns {
             for run in &plan.runs {
                 let mean = names::statistic(field, &run.label, Statistic::Mean);
                 if plan.windows.len() > 1 {

@@ -42,6 +42,13 @@ pub enum ComparisonError {
         /// What failed.
         message: String,
     },
+    /// A step that every process of a shared comparison took failed on one of them (see
+    /// [`crate::share::agree`]): every process has this error, with the same message.
+    #[error("{message}")]
+    Together {
+        /// The failing process's message, and which process it was.
+        message: String,
+    },
 }
 
 impl ComparisonError {

@@ -13,6 +13,7 @@ use crate::error::{ComparisonError, Result};
 use crate::names;
 use crate::options::Statistic;
 use crate::plan::ComparisonPlan;
+use crate::share::Team;
 use acidscape_analysis::emergence::Emergence;
 use acidscape_gridio::calendar::{DateTime, TimeAxis};
 use netcdf::{Extent, FileMut};
@@ -27,8 +28,8 @@ pub const YEAR_FILL: i32 = -2_147_483_647;
 const TIME: &str = "time";
 const BOUNDS_DIM: &str = "bnds";
 const CLIMATOLOGY: &str = "climatology_bounds";
-/// Target size of one chunk of one variable \[bytes\].
-const CHUNK_BYTES: usize = 4 << 20;
+/// Target size of one chunk of one variable \[bytes\] (see [`crate::ComparisonRequest`]).
+pub const CHUNK_BYTES: usize = 4 << 20;
 
 /// Dimensions of the output's grid.
 #[derive(Clone, Debug)]
@@ -39,6 +40,7 @@ struct Layout {
     levels: usize,
     rows: usize,
     cols: usize,
+    chunk_bytes: usize,
     coordinates: Option<String>,
     grid_mapping: Option<String>,
     free_surface: Option<String>,
@@ -51,6 +53,9 @@ pub struct Output {
     nc: Option<FileMut>,
     layout: Layout,
     finished: bool,
+    /// Whether this process removes the partial file on failure and places the finished one
+    /// (process 0 of a team).
+    places: bool,
 }
 
 /// `.NAME.partial` beside `path`.
@@ -66,7 +71,9 @@ impl Drop for Output {
     fn drop(&mut self) {
         if !self.finished {
             drop(self.nc.take());
-            let _ = std::fs::remove_file(&self.partial);
+            if self.places {
+                let _ = std::fs::remove_file(&self.partial);
+            }
         }
     }
 }
@@ -83,16 +90,17 @@ struct Definition {
 }
 
 impl Output {
-    /// Creates the partial output and defines every variable.
+    /// Creates the partial output on every process of `team` and defines every variable.
     pub fn create(
         plan: &ComparisonPlan,
         geometry: &str,
         emergence: Option<&str>,
+        team: &dyn Team,
     ) -> Result<Output> {
         acidscape_gridio::silence_hdf5_diagnostics();
         let path = plan.output.clone();
         let partial = partial_path(&path);
-        let nc = netcdf::create(&partial).map_err(|e| ComparisonError::Output {
+        let nc = team.create(&partial).map_err(|e| ComparisonError::Output {
             path: path.clone(),
             message: format!("cannot create {}: {e}", partial.display()),
         })?;
@@ -105,6 +113,7 @@ impl Output {
                 levels: first.levels(),
                 rows: first.grid().rows,
                 cols: first.grid().cols,
+                chunk_bytes: plan.chunk_bytes,
                 coordinates: None,
                 grid_mapping: None,
                 free_surface: None,
@@ -113,6 +122,7 @@ impl Output {
             partial,
             nc: Some(nc),
             finished: false,
+            places: team.rank() == 0,
         };
         let copied = first.copy_coordinates(output.file()?)?;
         output.layout.z_dim = copied.z_dim;
@@ -140,6 +150,12 @@ impl Output {
                     message: format!("global attribute {name}: {e}"),
                 })?;
         }
+        let partial = output.partial.clone();
+        team.write_together(output.file()?, &partial)
+            .map_err(|message| ComparisonError::Output {
+                path: plan.output.clone(),
+                message,
+            })?;
         Ok(output)
     }
 
@@ -276,10 +292,29 @@ impl Output {
         dims
     }
 
-    fn chunk(&self, has_levels: bool, window_axis: bool) -> Vec<usize> {
+    /// Rows in one chunk of a variable with or without levels.
+    fn chunk_rows(&self, has_levels: bool) -> usize {
         let levels = if has_levels { self.layout.levels } else { 1 };
         let row_bytes = levels * self.layout.cols * 4;
-        let rows = (CHUNK_BYTES / row_bytes.max(1)).clamp(1, self.layout.rows);
+        (self.layout.chunk_bytes / row_bytes.max(1)).clamp(1, self.layout.rows)
+    }
+
+    /// Rows of a band that starts a chunk of every chunked variable (a common multiple of
+    /// their chunks' rows, at most the grid's rows).
+    pub fn rows_per_chunk(&self) -> usize {
+        let (a, b) = (self.chunk_rows(true), self.chunk_rows(false));
+        let gcd = |mut x: usize, mut y: usize| {
+            while y != 0 {
+                (x, y) = (y, x % y);
+            }
+            x
+        };
+        (a / gcd(a, b)).saturating_mul(b).min(self.layout.rows)
+    }
+
+    fn chunk(&self, has_levels: bool, window_axis: bool) -> Vec<usize> {
+        let levels = if has_levels { self.layout.levels } else { 1 };
+        let rows = self.chunk_rows(has_levels);
         let mut chunk = Vec::with_capacity(4);
         if window_axis {
             chunk.push(1);
@@ -461,13 +496,18 @@ impl Output {
         self.layout.free_surface.as_deref()
     }
 
-    /// Closes the output and gives it its final name.
+    /// Closes the output (on every process of the team) and gives it its final name (process
+    /// 0, once every process has closed it).
     pub fn finish(mut self) -> Result<()> {
         if let Some(nc) = self.nc.take() {
             nc.close().map_err(|e| ComparisonError::Output {
                 path: self.path.clone(),
                 message: format!("closing failed: {e}"),
             })?;
+        }
+        if !self.places {
+            self.finished = true;
+            return Ok(());
         }
         std::fs::rename(&self.partial, &self.path).map_err(|e| ComparisonError::Output {
             path: self.path.clone(),

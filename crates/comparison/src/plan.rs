@@ -44,6 +44,9 @@ pub struct ComparisonRequest {
     pub overwrite: bool,
     /// Memory the per-cell accumulators may use \[bytes\].
     pub memory_budget_bytes: usize,
+    /// Target size of one chunk of one output variable \[bytes\] (usually
+    /// [`crate::CHUNK_BYTES`]; smaller in tests, to have a small grid in several chunks).
+    pub chunk_bytes: usize,
     /// The `history` attribute: when and with what command line (e.g.
     /// "2026-12-02T10:00:00Z: acidscape compare ...").
     pub history: String,
@@ -96,6 +99,8 @@ pub struct ComparisonPlan {
     pub overwrite: bool,
     /// Memory the per-cell accumulators may use \[bytes\].
     pub memory_budget_bytes: usize,
+    /// Target size of one chunk of one output variable \[bytes\].
+    pub chunk_bytes: usize,
     /// The `history` attribute.
     pub history: String,
 }
@@ -164,6 +169,7 @@ impl ComparisonPlan {
             table,
             overwrite: request.overwrite,
             memory_budget_bytes: request.memory_budget_bytes,
+            chunk_bytes: request.chunk_bytes.max(1),
             history: request.history.clone(),
         })
     }

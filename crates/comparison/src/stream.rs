@@ -9,6 +9,7 @@ use crate::geometry::Geometry;
 use crate::names;
 use crate::output::Output;
 use crate::plan::{ComparisonPlan, PlannedRun};
+use crate::share::{merge_regional, Team};
 use acidscape_analysis::column::{ColumnCells, SlabShape};
 use acidscape_analysis::geometry::cell_volumes;
 use acidscape_analysis::regions::{
@@ -24,23 +25,27 @@ const QUALITY_FLAG: &str = "quality_flag";
 /// The regional statistics of every time step of a run, as rows.
 pub type StepRows = Vec<Vec<RegionRow>>;
 
-/// Wet cells (levels × rows × cols): where the quality flag is not its fill value, or, in
-/// outputs without one, where any compared 3-D field has a value at the first step.
-fn wet_cells(file: &IndicatorFile, fields: &[FieldPlan]) -> Result<Vec<bool>> {
+/// Wet cells of a block of rows (levels × block rows × cols): where the quality flag is not
+/// its fill value, or, in outputs without one, where any compared 3-D field has a value at the
+/// first step.
+fn wet_cells(file: &IndicatorFile, fields: &[FieldPlan], rows: Range<usize>) -> Result<Vec<bool>> {
     let flag_per_cell = file
         .variable(QUALITY_FLAG)
         .is_ok_and(|q| q.has_levels || file.levels() == 1);
     if flag_per_cell {
         return Ok(file
-            .read_step(QUALITY_FLAG, 0)?
+            .read_rows(QUALITY_FLAG, 0, rows)?
             .iter()
             .map(|f| !f.is_nan())
             .collect());
     }
-    let cells = file.levels() * file.grid().columns();
+    let cells = file.levels() * rows.len() * file.grid().cols;
     let mut wet = vec![false; cells];
     for field in fields.iter().filter(|f| f.has_levels || file.levels() == 1) {
-        for (w, v) in wet.iter_mut().zip(file.read_step(&field.name, 0)?) {
+        for (w, v) in wet
+            .iter_mut()
+            .zip(file.read_rows(&field.name, 0, rows.clone())?)
+        {
             *w |= !v.is_nan();
         }
     }
@@ -86,6 +91,16 @@ fn field_specs(fields: &[FieldPlan]) -> (Vec<FieldSpec>, Vec<FieldSpec>) {
     (cells, columns)
 }
 
+/// What a pass over a run works with.
+pub struct Pass<'a> {
+    pub plan: &'a ComparisonPlan,
+    pub run: &'a PlannedRun,
+    /// The run's place in the plan (0: the baseline).
+    pub index: usize,
+    pub geometry: &'a Geometry,
+    pub membership: &'a Membership,
+}
+
 /// Everything one block of one run accumulates.
 struct Block {
     rows: Range<usize>,
@@ -94,54 +109,51 @@ struct Block {
     free_surface: Option<FieldWindows>,
 }
 
-/// The pass over run `index`: writes its window statistics and time of emergence into the
-/// output and returns the regional statistics of each step.
-pub fn run_pass(
-    plan: &ComparisonPlan,
-    index: usize,
-    geometry: &Geometry,
-    membership: &Membership,
-    output: &mut Output,
-    progress: &mut dyn FnMut(&str),
-) -> Result<StepRows> {
-    let run = &plan.runs[index];
-    let file = &run.file;
-    let steps = file.steps();
-    let wet = wet_cells(file, &plan.fields)?;
-    let (cell_specs, column_specs) = field_specs(&plan.fields);
-    let mut regional: Vec<RegionStatistics> = (0..steps)
-        .map(|_| {
-            RegionStatistics::new(
-                &plan.regions.set,
-                &plan.layers,
-                cell_specs.clone(),
-                column_specs.clone(),
-            )
-        })
-        .collect();
-    let pass = Pass {
-        plan,
-        run,
-        geometry,
-        membership,
-    };
-    let size = rows_per_block(plan, file);
-    let count = file.grid().rows.div_ceil(size);
-    for (b, rows) in blocks(file.grid().rows, size).enumerate() {
-        if count > 1 {
-            progress(&format!(
-                "run {}: rows {}..{} ({} of {count} blocks)",
-                run.label,
-                rows.start,
-                rows.end,
-                b + 1
-            ));
+impl Pass<'_> {
+    /// The pass over the run: writes its window statistics and time of emergence for this
+    /// process's blocks of rows (`turns`, see [`crate::share::turns`]) into the output and
+    /// returns the regional statistics of each step over the whole grid (every process's
+    /// exact sums merged).
+    pub fn run(
+        &self,
+        output: &mut Output,
+        turns: &[Range<usize>],
+        team: &dyn Team,
+        progress: &mut dyn FnMut(&str),
+    ) -> Result<StepRows> {
+        let (plan, run) = (self.plan, self.run);
+        let file = &run.file;
+        let (cell_specs, column_specs) = field_specs(&plan.fields);
+        let mut regional: Vec<RegionStatistics> = (0..file.steps())
+            .map(|_| {
+                RegionStatistics::new(
+                    &plan.regions.set,
+                    &plan.layers,
+                    cell_specs.clone(),
+                    column_specs.clone(),
+                )
+            })
+            .collect();
+        let count = turns.iter().filter(|rows| !rows.is_empty()).count();
+        for (b, rows) in turns.iter().enumerate() {
+            if count > 1 && !rows.is_empty() {
+                progress(&format!(
+                    "run {}: rows {}..{} ({} of {count} blocks)",
+                    run.label,
+                    rows.start,
+                    rows.end,
+                    b + 1
+                ));
+            }
+            let mut block = new_block(plan, run, self.index, output, rows.clone())?;
+            if !rows.is_empty() {
+                self.stream_block(&mut block, &mut regional, progress)?;
+            }
+            write_block(plan, run, output, &block)?;
         }
-        let mut block = new_block(plan, run, index, output, rows)?;
-        pass.stream_block(&wet, &mut block, &mut regional, progress)?;
-        write_block(plan, run, output, &block)?;
+        merge_regional(team, &mut regional)?;
+        Ok(regional.iter().map(RegionStatistics::rows).collect())
     }
-    Ok(regional.iter().map(RegionStatistics::rows).collect())
 }
 
 fn new_block(
@@ -207,7 +219,7 @@ fn reference_means(
         plan.emergence.as_ref().map(|e| &e.rule),
         Some(acidscape_analysis::emergence::EmergenceRule::Reference { .. })
     );
-    if !needs {
+    if !needs || rows.is_empty() {
         return Ok(Vec::new());
     }
     let time = time_of(run)?;
@@ -289,27 +301,11 @@ fn finish_block(plan: &ComparisonPlan, run: &PlannedRun, block: &mut Block) -> R
     Ok(())
 }
 
-/// The wet cells of a block (levels × block columns), from the whole grid's.
-fn block_wet(wet: &[bool], shape: SlabShape, all_columns: usize, first: usize) -> Vec<bool> {
-    (0..shape.levels)
-        .flat_map(|k| (0..shape.columns()).map(move |c| wet[k * all_columns + first + c]))
-        .collect()
-}
-
-/// What a pass over a run works with.
-struct Pass<'a> {
-    plan: &'a ComparisonPlan,
-    run: &'a PlannedRun,
-    geometry: &'a Geometry,
-    membership: &'a Membership,
-}
-
 impl Pass<'_> {
     /// Streams every step of a block: reads each field once, feeds the accumulators and the
     /// step's regional statistics.
     fn stream_block(
         &self,
-        wet: &[bool],
         block: &mut Block,
         regional: &mut [RegionStatistics],
         progress: &mut dyn FnMut(&str),
@@ -322,7 +318,7 @@ impl Pass<'_> {
             cols: file.grid().cols,
         };
         let first = rows.start * shape.cols;
-        let wet = block_wet(wet, shape, file.grid().columns(), first);
+        let wet = wet_cells(file, &plan.fields, rows.clone())?;
         let varies = self.geometry.varies_in_time(file);
         let mut thickness = self.geometry.thickness(file, 0, rows.clone())?;
         let mut depths = file.centre_depths(0, rows.clone())?;

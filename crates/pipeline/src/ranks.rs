@@ -82,6 +82,39 @@ impl Ranks {
         all
     }
 
+    /// Every rank's `values` (any number on each), in rank order, on every rank.
+    pub fn exchange<T: Equivalence + Copy + Default>(&self, values: &[T]) -> Vec<Vec<T>> {
+        let lengths = self.gather(&[values.len() as u64]);
+        let longest = lengths.iter().copied().max().unwrap_or(0) as usize;
+        if longest == 0 {
+            // Nothing to send (MPI refuses a gather of empty buffers).
+            return vec![Vec::new(); self.size()];
+        }
+        let mut padded = values.to_vec();
+        padded.resize(longest, T::default());
+        let all = self.gather(&padded[..]);
+        (lengths.iter().enumerate())
+            .map(|(rank, &length)| all[rank * longest..][..length as usize].to_vec())
+            .collect()
+    }
+
+    /// Creates (replacing) a netCDF-4 file at `path` that every rank writes: a collective
+    /// call, as is every definition in it; once defined, see [`Ranks::write_collectively`].
+    pub fn create_shared_file(&self, path: &Path) -> Result<netcdf::FileMut, netcdf::Error> {
+        let info = unsafe { mpi::ffi::RSMPI_INFO_NULL };
+        netcdf::create_par_with(path, self.world.as_raw(), info, netcdf::Options::NETCDF4)
+    }
+
+    /// Sets every variable of a shared file (see [`Ranks::create_shared_file`]) to collective
+    /// access, as writes of compressed variables by several ranks need.
+    pub fn write_collectively(
+        &self,
+        file: &netcdf::FileMut,
+        path: &Path,
+    ) -> Result<(), PipelineError> {
+        write_collectively(file, path)
+    }
+
     /// Rank 0's text, on every rank.
     fn same_text(&self, text: String) -> String {
         let root = self.world.process_at_rank(0);
@@ -302,15 +335,7 @@ fn create_shared(
     ranks.wait_for_all();
     // The history attribute must be the same on every rank.
     let created = ranks.same_text(utc_timestamp());
-    let defined = setup.define(created, || {
-        let info = unsafe { mpi::ffi::RSMPI_INFO_NULL };
-        netcdf::create_par_with(
-            partial,
-            ranks.world.as_raw(),
-            info,
-            netcdf::Options::NETCDF4,
-        )
-    });
+    let defined = setup.define(created, || ranks.create_shared_file(partial));
     let (file, layout) = defined.map_err(|e| setup_failure(partial, e))?;
     write_collectively(&file, partial)?;
     Ok((file, layout))
@@ -418,16 +443,10 @@ impl Ledger for RankLedger<'_> {
             whole_or_none => return Ok(whole_or_none),
         };
         // Exact sums: the same bits whatever the ranks and the order of merging.
-        let flat = own.to_flat();
-        let lengths = self.ranks.gather(&[flat.len() as u64]);
-        let longest = lengths.iter().copied().max().unwrap_or(0) as usize;
-        let mut padded = flat;
-        padded.resize(longest, 0.0);
-        let all = self.ranks.gather(&padded[..]);
         let mut whole = CorrosiveExtent::new(own.thresholds().clone());
-        for (flat, &length) in all.chunks(longest.max(1)).zip(&lengths) {
+        for flat in self.ranks.exchange(&own.to_flat()) {
             whole
-                .merge_flat(&flat[..length as usize])
+                .merge_flat(&flat)
                 .map_err(|e| PipelineError::Internal(format!("a split step's extent: {e}")))?;
         }
         Ok(Some(whole))

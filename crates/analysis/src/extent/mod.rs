@@ -17,6 +17,7 @@ mod tests;
 
 pub use rows::ExtentRow;
 
+use crate::sum::{append_flat, merge_flat};
 use crate::{check_length, ExactSum};
 use serde::{Deserialize, Serialize};
 use thiserror::Error;
@@ -293,32 +294,14 @@ impl CorrosiveExtent {
     pub fn to_flat(&self) -> Vec<f64> {
         let mut copy = self.clone();
         let mut flat = Vec::new();
-        for sum in copy.sums_mut() {
-            let partials = sum.partials();
-            flat.push(partials.len() as f64);
-            flat.extend(partials);
-        }
+        append_flat(copy.sums_mut().map(|sum| &*sum), &mut flat);
         flat
     }
 
     /// Adds the sums of [`CorrosiveExtent::to_flat`] from an accumulator with the same
     /// thresholds.
     pub fn merge_flat(&mut self, flat: &[f64]) -> Result<(), ExtentError> {
-        let mut rest = flat;
-        for sum in self.sums_mut() {
-            let (&count, tail) = rest.split_first().ok_or(ExtentError::FlatList)?;
-            if !(0.0..=tail.len() as f64).contains(&count) || count.fract() != 0.0 {
-                return Err(ExtentError::FlatList);
-            }
-            let count = count as usize;
-            sum.merge(&ExactSum::from_partials(&tail[..count]));
-            rest = &tail[count..];
-        }
-        if rest.is_empty() {
-            Ok(())
-        } else {
-            Err(ExtentError::FlatList)
-        }
+        merge_flat(self.sums_mut(), flat).ok_or(ExtentError::FlatList)
     }
 
     /// The totals so far.

@@ -10,6 +10,7 @@
 //! and any merge order.
 
 use super::{Layer, Membership, RegionError, RegionSet};
+use crate::sum::{append_flat, merge_flat};
 use crate::{check_length, ExactSum};
 use serde::{Deserialize, Serialize};
 
@@ -60,6 +61,24 @@ struct WeightedSums {
 }
 
 impl WeightedSums {
+    /// Every sum, in a fixed order.
+    fn sums(&self) -> impl Iterator<Item = &ExactSum> {
+        [&self.weight, &self.weighted_value, &self.missing_weight]
+            .into_iter()
+            .chain(&self.below)
+    }
+
+    /// Every sum, in the order of [`WeightedSums::sums`].
+    fn sums_mut(&mut self) -> impl Iterator<Item = &mut ExactSum> {
+        [
+            &mut self.weight,
+            &mut self.weighted_value,
+            &mut self.missing_weight,
+        ]
+        .into_iter()
+        .chain(&mut self.below)
+    }
+
     fn new(thresholds: usize) -> Self {
         WeightedSums {
             weight: ExactSum::new(),
@@ -266,6 +285,22 @@ impl RegionStatistics {
             a.merge(b);
         }
         Ok(())
+    }
+
+    /// Every sum as one flat list of numbers, e.g. to send to another process;
+    /// [`RegionStatistics::merge_flat`] adds it back exactly.
+    pub fn to_flat(&self) -> Vec<f64> {
+        let mut flat = Vec::new();
+        let all = self.cell_sums.iter().chain(&self.column_sums);
+        append_flat(all.flat_map(WeightedSums::sums), &mut flat);
+        flat
+    }
+
+    /// Adds the sums of [`RegionStatistics::to_flat`] from an accumulator with the same
+    /// regions, layers and fields.
+    pub fn merge_flat(&mut self, flat: &[f64]) -> Result<(), RegionError> {
+        let all = self.cell_sums.iter_mut().chain(&mut self.column_sums);
+        merge_flat(all.flat_map(WeightedSums::sums_mut), flat).ok_or(RegionError::Mismatch)
     }
 
     /// The statistics as rows: per region, each layer's 3-D fields, then the 2-D fields.

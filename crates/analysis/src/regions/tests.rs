@@ -492,9 +492,35 @@ proptest! {
         let (mut a, mut b) = (fresh(), fresh());
         add(&mut a, 0..cut);
         add(&mut b, cut..columns);
+        // As ranks send them: flat lists, merged in any order, give the whole grid's bits.
+        let (flat_a, flat_b) = (a.to_flat(), b.to_flat());
+        let mut by_flat = fresh();
+        by_flat.merge_flat(&flat_b).unwrap();
+        by_flat.merge_flat(&flat_a).unwrap();
+        prop_assert_eq!(stats_bits(&by_flat), stats_bits(&whole));
         b.merge(&a).unwrap();
         prop_assert_eq!(stats_bits(&b), stats_bits(&whole));
     }
+}
+
+#[test]
+fn a_flat_list_that_does_not_fit_is_refused() {
+    let set = RegionSet::whole_domain("all").unwrap();
+    let layers = [Layer::new("surface", LayerKind::SurfaceCell).unwrap()];
+    let one = RegionStatistics::new(&set, &layers, vec![field("x", vec![1.0])], vec![]);
+    let two = RegionStatistics::new(&set, &layers, vec![field("x", vec![1.0, 2.0])], vec![]);
+    let flat = one.to_flat();
+    let mut other = one.clone();
+    assert_eq!(other.merge_flat(&flat[1..]), Err(RegionError::Mismatch));
+    assert_eq!(
+        other.merge_flat(&flat[..flat.len() - 1]),
+        Err(RegionError::Mismatch)
+    );
+    let mut other = two.clone();
+    assert_eq!(other.merge_flat(&flat), Err(RegionError::Mismatch));
+    let mut same = one.clone();
+    assert_eq!(same.merge_flat(&flat), Ok(()));
+    assert_eq!(stats_bits(&same), stats_bits(&one));
 }
 
 #[test]

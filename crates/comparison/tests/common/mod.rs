@@ -464,6 +464,7 @@ pub fn request(dir: &Path, runs: &[(&str, &Path)], windows: &[&str]) -> Comparis
         windows: windows.iter().map(|w| w.to_string()).collect(),
         output: dir.join("compare.nc"),
         memory_budget_bytes: 1 << 30,
+        chunk_bytes: acidscape_comparison::CHUNK_BYTES,
         history: "test".into(),
         ..Default::default()
     }
