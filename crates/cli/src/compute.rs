@@ -71,11 +71,12 @@ pub struct ComputeArgs {
     #[arg(long, value_name = "SIZE", default_value = "2GiB")]
     pub memory_budget: String,
 
-    /// Deflate level of the output variables, 0 (none) to 9
+    /// Deflate level of the output variables, 0 (none) to 9: 1 is the fastest, 2 about 11 %
+    /// smaller for more time (chunks are deflated on the threads below)
     #[arg(long, value_name = "LEVEL", default_value_t = 1)]
     pub deflate_level: i32,
 
-    /// Solver threads (default: all cores)
+    /// Threads that solve, and that deflate output chunks (default: all cores)
     #[arg(long, value_name = "N")]
     pub threads: Option<usize>,
 

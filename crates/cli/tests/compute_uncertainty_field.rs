@@ -15,7 +15,7 @@ const DIC_FILE: &str = "dissic_pathway-moderate_201501-201506.nc";
 /// step, missing elsewhere) on the grid of the copied run's DIC file.
 fn write_misfit_map(run_dir: &Path, path: &Path, value: f32) {
     // Defining attributes probes for existing ones, which HDF5 reports on stderr.
-    acidscape_gridio::silence_hdf5_diagnostics();
+    acidscape_gridio::prepare_hdf5();
     let source = netcdf::open(run_dir.join(DIC_FILE)).unwrap();
     let mut file = netcdf::create(path).unwrap();
     file.add_attribute("comment", "SYNTHETIC misfit map (invented values)")

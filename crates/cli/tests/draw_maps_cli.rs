@@ -18,7 +18,7 @@ fn maps_of_a_compute_output_take_the_field_the_palette_and_the_contour_it_calls_
     let run = compute("century", "pathway-steep", dir.path());
     let known = dir.path().join("known.nc");
     std::fs::copy(&run, &known).unwrap();
-    acidscape_gridio::silence_hdf5_diagnostics();
+    acidscape_gridio::prepare_hdf5();
     let ramp = write_ramp(&known);
     let (lons, lats) = (read_all(&known, "lon"), read_all(&known, "lat"));
     let nx = lons.len();

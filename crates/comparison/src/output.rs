@@ -97,7 +97,7 @@ impl Output {
         emergence: Option<&str>,
         team: &dyn Team,
     ) -> Result<Output> {
-        acidscape_gridio::silence_hdf5_diagnostics();
+        acidscape_gridio::prepare_hdf5();
         let path = plan.output.clone();
         let partial = partial_path(&path);
         let nc = team.create(&partial).map_err(|e| ComparisonError::Output {

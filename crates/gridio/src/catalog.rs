@@ -5,14 +5,17 @@ use netcdf::AttributeValue;
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 
-/// Turns off HDF5's automatic error printing on the calling thread.
+/// Prepares HDF5 for the calling thread: once per process, installs the deflate and
+/// shuffle filters that use several threads ([`crate::chunk_filters`]); then turns off
+/// HDF5's automatic error printing on this thread.
 ///
 /// libnetcdf 4.9.0 (Debian 12) looks up optional quantization attributes on every
 /// NetCDF-4 variable it reads; on variables with many attributes HDF5 prints a
 /// harmless "HDF5-DIAG ... can't locate attribute" trace to stderr for each lookup.
 /// The errors are handled by libnetcdf; only the printing is suppressed. HDF5 keeps
 /// this setting per thread, so every public entry point calls this.
-pub fn silence_hdf5_diagnostics() {
+pub fn prepare_hdf5() {
+    crate::chunk_filters::install();
     thread_local! {
         static DONE: std::cell::Cell<bool> = const { std::cell::Cell::new(false) };
     }
@@ -273,41 +276,72 @@ impl MaskRule {
             self.valid_min.unwrap_or(f64::NEG_INFINITY),
             self.valid_max.unwrap_or(f64::INFINITY),
         );
-        // Hot loop (every value read): the common one- or two-entry list in registers.
+        // Hot loop (every value read): the common one- or two-entry list compared without
+        // branches, so the loop vectorises; a NaN entry matches nothing.
+        let (m, n) = match self.missing.as_slice() {
+            [] => (f64::NAN, f64::NAN),
+            [m] => (*m, *m),
+            [m, n] => (*m, *n),
+            more => {
+                return self.apply_each(values, more, packed, lo, hi);
+            }
+        };
+        let (tm, tn) = (tolerance(m), tolerance(n));
         let is_missing = |raw: f64| -> bool {
             !raw.is_finite()
-                || raw < lo
-                || raw > hi
-                || match self.missing.as_slice() {
-                    [] => false,
-                    [m] => same_value(raw, *m),
-                    [m, n] => same_value(raw, *m) || same_value(raw, *n),
-                    more => more.iter().any(|m| same_value(raw, *m)),
-                }
+                | (raw < lo)
+                | (raw > hi)
+                | ((raw - m).abs() <= tm)
+                | ((raw - n).abs() <= tn)
         };
         if packed {
             let (scale, offset) = (self.scale_factor, self.add_offset);
             for v in values.iter_mut() {
-                *v = if is_missing(*v) {
-                    f64::NAN
-                } else {
-                    *v * scale + offset
-                };
+                let unpacked = *v * scale + offset;
+                *v = if is_missing(*v) { f64::NAN } else { unpacked };
             }
         } else {
             for v in values.iter_mut() {
-                if is_missing(*v) {
-                    *v = f64::NAN;
-                }
+                *v = if is_missing(*v) { f64::NAN } else { *v };
             }
         }
+    }
+
+    /// [`MaskRule::apply`] for a list of three or more missing values.
+    fn apply_each(&self, values: &mut [f64], missing: &[f64], packed: bool, lo: f64, hi: f64) {
+        let (scale, offset) = (self.scale_factor, self.add_offset);
+        for v in values.iter_mut() {
+            let raw = *v;
+            *v = if !raw.is_finite()
+                || raw < lo
+                || raw > hi
+                || missing.iter().any(|m| same_value(raw, *m))
+            {
+                f64::NAN
+            } else if packed {
+                raw * scale + offset
+            } else {
+                raw
+            };
+        }
+    }
+}
+
+/// How far from a missing value `b` a value still counts as it (see [`same_value`]); none
+/// for an infinite or NaN `b`, which only equality matches.
+#[inline]
+fn tolerance(b: f64) -> f64 {
+    if b.is_finite() {
+        1e-6 * b.abs().max(f64::MIN_POSITIVE)
+    } else {
+        0.0
     }
 }
 
 /// Equality tolerant of a float32 fill value stored in a float64 attribute (or the reverse).
 #[inline]
 fn same_value(a: f64, b: f64) -> bool {
-    a == b || (a - b).abs() <= 1e-6 * b.abs().max(f64::MIN_POSITIVE)
+    a == b || (a - b).abs() <= tolerance(b)
 }
 
 #[cfg(test)]
@@ -327,5 +361,52 @@ mod tests {
         rule.apply(&mut v);
         assert!(v[..4].iter().all(|x| x.is_nan()) && v[5].is_nan());
         assert_eq!(v[4], 21.0);
+    }
+
+    #[test]
+    fn every_length_of_missing_list_masks_alike() {
+        let raw = [
+            1e20,
+            f64::from(1e20_f32),
+            -999.0,
+            -0.0,
+            7.5,
+            f64::INFINITY,
+            3.0,
+        ];
+        for missing in [
+            vec![],
+            vec![1e20],
+            vec![1e20, -999.0],
+            vec![1e20, -999.0, 3.0],
+        ] {
+            let rule = MaskRule {
+                missing: missing.clone(),
+                valid_min: None,
+                valid_max: None,
+                scale_factor: 1.0,
+                add_offset: 0.0,
+            };
+            let mut v = raw.to_vec();
+            rule.apply(&mut v);
+            for (got, r) in v.iter().zip(raw) {
+                let expected_missing = !r.is_finite() || missing.iter().any(|m| same_value(r, *m));
+                assert_eq!(got.is_nan(), expected_missing, "{r} with {missing:?}");
+                if !expected_missing {
+                    assert_eq!(got.to_bits(), r.to_bits(), "{r} kept bit for bit");
+                }
+            }
+        }
+        // An infinite missing value matches only itself (already missing as not finite).
+        let rule = MaskRule {
+            missing: vec![f64::INFINITY],
+            valid_min: None,
+            valid_max: None,
+            scale_factor: 1.0,
+            add_offset: 0.0,
+        };
+        let mut v = vec![1.0, 1e30];
+        rule.apply(&mut v);
+        assert_eq!(v, [1.0, 1e30]);
     }
 }

@@ -147,7 +147,7 @@ pub(crate) fn midpoint_bounds(centres_m: &[f64], bottom_m: Option<f64>, out: &mu
 impl Run {
     /// Reads what the run says about the shape of its cells (see [`CellGeometry`]).
     pub fn cell_geometry(&self) -> Result<CellGeometry> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         let files = open_paths(&self.paths)?;
         Ok(CellGeometry {
             outlines: outlines(self, &files)?,

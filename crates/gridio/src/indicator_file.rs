@@ -118,7 +118,7 @@ impl IndicatorFile {
     /// (global attribute `acidscape_version`), and reads its variables, grid, vertical
     /// coordinate and time axis.
     pub fn open(path: impl AsRef<Path>) -> Result<IndicatorFile> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         let path = path.as_ref().to_path_buf();
         if !path.exists() {
             return Err(GridError::FileNotFound { path });

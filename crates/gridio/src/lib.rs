@@ -17,6 +17,7 @@ mod catalog;
 mod cell_geometry;
 mod cell_outlines;
 mod chunk_cache;
+pub mod chunk_filters;
 mod conversion;
 mod discovery;
 mod error;
@@ -38,7 +39,7 @@ mod timeline;
 mod uncertainty_field;
 mod vertical;
 
-pub use catalog::silence_hdf5_diagnostics;
+pub use catalog::prepare_hdf5;
 pub use cell_geometry::{CellGeometry, ColumnField, VerticalCells};
 pub use cell_outlines::CellOutlines;
 pub use error::{GridError, Result};

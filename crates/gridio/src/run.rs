@@ -252,7 +252,7 @@ impl Run {
     /// reads what every file of every input holds, checks grids and time, and checks a
     /// sample of the values (refused when implausible unless `spec.checks` accepts them).
     pub fn open(spec: &RunSpec) -> Result<Run> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         if let DensityChoice::Reference(rho) = spec.density {
             if !(rho.is_finite() && rho > 0.0) {
                 return Err(GridError::Mapping {
@@ -439,7 +439,7 @@ impl Run {
         out: &mut netcdf::FileMut,
         steps: Range<usize>,
     ) -> Result<OutputAxes> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         let files = crate::catalog::open_paths(&self.paths)?;
         crate::output::write_coordinates(self, &files, out, steps)
     }

@@ -61,7 +61,7 @@ impl Run {
     /// ([`Run::convert_slab`]) is pure computation, so a pipeline can convert one slab on
     /// its worker threads while its reader thread reads the next.
     pub fn read_raw_slab(&self, step: usize, rows: Range<usize>) -> Result<RawSlab> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         if step >= self.time_steps() || rows.start >= rows.end || rows.end > self.shape.rows {
             return Err(GridError::OutOfRange {
                 message: format!(
@@ -206,15 +206,17 @@ impl Run {
                 .zip(pressure.par_chunks_mut(columns.max(1)))
                 .enumerate()
                 .for_each(|(level, (depth, pressure))| {
-                    let mut last: Option<(f64, (f64, f64))> = None;
-                    for column in 0..columns {
+                    let mut column = 0;
+                    while column < columns {
                         let lat = lat_of(column);
-                        let value = match last {
-                            Some((l, v)) if l == lat => v,
-                            _ => at(level, lat),
-                        };
-                        last = Some((lat, value));
-                        (depth[column], pressure[column]) = value;
+                        let run = latitude.as_ref().map_or(columns - column, |l| {
+                            l[column..columns].iter().take_while(|&&x| x == lat).count()
+                        });
+                        let end = column + run.max(1);
+                        let (d, p) = at(level, lat);
+                        depth[column..end].fill(d);
+                        pressure[column..end].fill(p);
+                        column = end;
                     }
                 });
             (depth, pressure)

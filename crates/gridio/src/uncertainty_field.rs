@@ -78,7 +78,7 @@ impl UncertaintyField {
     /// Opens `variable` of `path` as the standard uncertainty of the input `role` (a key such
     /// as "dic") of `run`, checking its grid, time steps and units against the run's.
     pub fn open(run: &Run, role: &str, path: &Path, variable: &str) -> Result<UncertaintyField> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         let role = (FIELD_ROLES.iter().copied())
             .find(|r| r.key() == role)
             .ok_or_else(|| GridError::Mapping {
@@ -177,7 +177,7 @@ impl UncertaintyField {
     /// The field's values for time step `step`, rows `rows` (all levels and columns, in
     /// canonical order), masked to NaN; a negative value is refused naming its cell.
     pub fn read(&self, step: usize, rows: Range<usize>) -> Result<Vec<f64>> {
-        crate::catalog::silence_hdf5_diagnostics();
+        crate::catalog::prepare_hdf5();
         let values = self
             .source
             .read(std::slice::from_ref(&self.path), step, &rows)?;

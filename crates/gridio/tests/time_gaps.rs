@@ -220,7 +220,7 @@ fn time_bounds_that_overlap_are_refused() {
     );
     // The second file's first upper bound moved a day back into the month before.
     let path = dir.path().join("run_1.nc");
-    acidscape_gridio::silence_hdf5_diagnostics();
+    acidscape_gridio::prepare_hdf5();
     let mut file = netcdf::append(&path).unwrap();
     let mut b = file.variable_mut("time_bnds").unwrap();
     let mut values: Vec<f64> = b.get_values(..).unwrap();
