@@ -17,6 +17,7 @@
 //! parameters (the shuffle's value size) stay. Set `ACIDSCAPE_HDF5_OWN_FILTERS=1` to keep
 //! HDF5's own filters (same values, one core).
 
+use std::cell::{Cell, RefCell};
 use std::ffi::{c_char, c_int, c_uint, c_void};
 use std::mem::MaybeUninit;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
@@ -90,10 +91,10 @@ fn symbol(name: &std::ffi::CStr) -> Option<*mut c_void> {
     (!found.is_null()).then_some(found)
 }
 
-/// Replaces HDF5's deflate filter with this module's, once per process, unless
-/// [`OWN_FILTER_SETTING`] is set, or the HDF5 library is not a 1.8 to 1.14 release, or it
-/// lacks a symbol needed (then HDF5's own filter stays). Returns whether this module's
-/// filter is in use.
+/// Replaces the functions of HDF5's deflate and shuffle filters with this module's, once
+/// per process, unless [`OWN_FILTER_SETTING`] is set, or the HDF5 library is not a 1.8 to
+/// 1.14 release, or it lacks a symbol needed (then HDF5's own filters stay). Returns whether
+/// this module's filters are in use.
 pub fn install() -> bool {
     static ONCE: Once = Once::new();
     static INSTALLED: AtomicBool = AtomicBool::new(false);
@@ -278,15 +279,7 @@ fn deflate_or_inflate(
 ) -> Filtered {
     if reverse {
         CHUNKS_INFLATED.fetch_add(1, Ordering::Relaxed);
-        // SAFETY: `memory` holds HDF5's own allocator functions.
-        return match unsafe { inflate_into(memory, input) } {
-            Some((out, capacity, valid)) => Filtered::Into {
-                out,
-                capacity,
-                valid,
-            },
-            None => Filtered::Failed,
-        };
+        return inflate_into(memory, input);
     }
     let &[level] = parameters else {
         return Filtered::Failed;
@@ -320,7 +313,7 @@ fn shuffle_chunk(memory: &Memory, reverse: bool, parameters: &[c_uint], input: &
 }
 
 /// A chunk deflated in pieces, ready to be laid out as one zlib stream (RFC 1950).
-pub struct Deflated {
+struct Deflated {
     level: i32,
     pieces: Vec<Vec<u8>>,
     adler: u32,
@@ -328,7 +321,7 @@ pub struct Deflated {
 
 impl Deflated {
     /// Deflates `data` at `level` in pieces of [`PIECE_BYTES`], on `pool` when given.
-    pub fn new(data: &[u8], level: i32, pool: Option<&rayon::ThreadPool>) -> Deflated {
+    fn new(data: &[u8], level: i32, pool: Option<&rayon::ThreadPool>) -> Deflated {
         use rayon::prelude::*;
         let pieces: Vec<&[u8]> = if data.is_empty() {
             vec![data]
@@ -360,12 +353,12 @@ impl Deflated {
     }
 
     /// Bytes of the whole stream: header, pieces, checksum.
-    pub fn stream_len(&self) -> usize {
+    fn stream_len(&self) -> usize {
         2 + self.pieces.iter().map(Vec::len).sum::<usize>() + 4
     }
 
     /// Lays the stream out into `out`, which holds exactly [`Deflated::stream_len`] bytes.
-    pub fn write_into(&self, out: &mut [u8]) {
+    fn write_into(&self, out: &mut [u8]) {
         let (header, mut rest) = out.split_at_mut(2);
         header.copy_from_slice(&zlib_header(self.level));
         for piece in &self.pieces {
@@ -375,14 +368,6 @@ impl Deflated {
         }
         rest.copy_from_slice(&self.adler.to_be_bytes());
     }
-}
-
-/// The zlib stream of `data` deflated at `level` in pieces, on `pool` when given.
-pub fn deflate_chunk(data: &[u8], level: i32, pool: Option<&rayon::ThreadPool>) -> Vec<u8> {
-    let deflated = Deflated::new(data, level, pool);
-    let mut stream = vec![0; deflated.stream_len()];
-    deflated.write_into(&mut stream);
-    stream
 }
 
 /// The two header bytes zlib itself writes for a 32 KiB window at `level` (RFC 1950 2.2).
@@ -398,8 +383,22 @@ fn zlib_header(level: i32) -> [u8; 2] {
 }
 
 /// Raw deflate data of one piece: ended by a sync flush, or by the final block when `last`.
+/// Each thread keeps its compressor (some 300 KiB of state) from piece to piece.
 fn deflate_piece(piece: &[u8], level: i32, last: bool) -> Vec<u8> {
-    let mut deflate = Deflate::new(level, false, 15);
+    thread_local! {
+        static KEPT: RefCell<Option<(i32, Deflate)>> = const { RefCell::new(None) };
+    }
+    KEPT.with_borrow_mut(|kept| {
+        if !matches!(kept, Some((l, _)) if *l == level) {
+            *kept = Some((level, Deflate::new(level, false, 15)));
+        }
+        let (_, deflate) = kept.as_mut().expect("set just above");
+        deflate.reset();
+        deflate_piece_with(deflate, piece, last)
+    })
+}
+
+fn deflate_piece_with(deflate: &mut Deflate, piece: &[u8], last: bool) -> Vec<u8> {
     let flush = if last {
         DeflateFlush::Finish
     } else {
@@ -423,19 +422,32 @@ fn deflate_piece(piece: &[u8], level: i32, last: bool) -> Vec<u8> {
     }
 }
 
-/// Inflates one zlib stream into a buffer from HDF5's allocator: (buffer, capacity, valid
-/// bytes), or `None` when the stream is damaged or truncated (checked by its Adler-32).
-unsafe fn inflate_into(memory: &Memory, input: &[u8]) -> Option<(*mut c_void, usize, usize)> {
+/// Inflates one zlib stream into a buffer from HDF5's allocator; fails when the stream is
+/// damaged or truncated (checked by its Adler-32). Each thread keeps its decompressor.
+fn inflate_into(memory: &Memory, input: &[u8]) -> Filtered {
     thread_local! {
-        static LAST_SIZE: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
+        static LAST_SIZE: Cell<usize> = const { Cell::new(0) };
+        static KEPT: RefCell<Option<Inflate>> = const { RefCell::new(None) };
     }
-    let mut capacity = LAST_SIZE.get().max(input.len().saturating_mul(4)).max(4096);
+    KEPT.with_borrow_mut(|kept| {
+        let inflate = kept.get_or_insert_with(|| Inflate::new(true, 15));
+        inflate.reset(true);
+        let filtered = inflate_with(inflate, memory, input, LAST_SIZE.get());
+        if let Filtered::Into { valid, .. } = filtered {
+            LAST_SIZE.set(valid);
+        }
+        filtered
+    })
+}
+
+/// [`inflate_into`] with a decompressor ready for a new stream and a first guess of the size.
+fn inflate_with(inflate: &mut Inflate, memory: &Memory, input: &[u8], guess: usize) -> Filtered {
+    let mut capacity = guess.max(input.len().saturating_mul(4)).max(4096);
     // SAFETY: a plain allocation, grown and freed below with HDF5's own functions.
     let mut out = unsafe { (memory.allocate)(capacity, false) };
     if out.is_null() {
-        return None;
+        return Filtered::Failed;
     }
-    let mut inflate = Inflate::new(true, 15);
     loop {
         let (consumed, written) = (inflate.total_in() as usize, inflate.total_out() as usize);
         // SAFETY: `out` holds `capacity` bytes, of which `written` are filled.
@@ -450,9 +462,11 @@ unsafe fn inflate_into(memory: &Memory, input: &[u8]) -> Option<(*mut c_void, us
             inflate.total_in() as usize > consumed || inflate.total_out() as usize > written;
         match status {
             Ok(Status::StreamEnd) => {
-                let valid = inflate.total_out() as usize;
-                LAST_SIZE.set(valid);
-                return Some((out, capacity, valid));
+                return Filtered::Into {
+                    out,
+                    capacity,
+                    valid: inflate.total_out() as usize,
+                };
             }
             Ok(_) if inflate.total_out() as usize == capacity => {
                 capacity *= 2;
@@ -460,7 +474,7 @@ unsafe fn inflate_into(memory: &Memory, input: &[u8]) -> Option<(*mut c_void, us
                 let grown = unsafe { (memory.resize)(out, capacity) };
                 if grown.is_null() {
                     unsafe { (memory.free)(out) };
-                    return None;
+                    return Filtered::Failed;
                 }
                 out = grown;
             }
@@ -468,7 +482,7 @@ unsafe fn inflate_into(memory: &Memory, input: &[u8]) -> Option<(*mut c_void, us
             _ => {
                 // SAFETY: our own allocation, not handed to HDF5.
                 unsafe { (memory.free)(out) };
-                return None;
+                return Filtered::Failed;
             }
         }
     }
