@@ -61,6 +61,22 @@ struct Range {
     constants: &'static str,
 }
 
+/// The common part of every range of each quantity (temperature, salinity, pressure), min and
+/// max: a sample inside all three breaches no range of any set.
+static INSIDE_ALL_RANGES: std::sync::LazyLock<[(f64, f64); 3]> = std::sync::LazyLock::new(|| {
+    let common = |quantity: Quantity| {
+        let ranges = RANGES.iter().filter(|r| r.quantity as u8 == quantity as u8);
+        ranges.fold((f64::NEG_INFINITY, f64::INFINITY), |(min, max), r| {
+            (min.max(r.min), max.min(r.max))
+        })
+    };
+    [
+        common(Quantity::Temperature),
+        common(Quantity::Salinity),
+        common(Quantity::Pressure),
+    ]
+});
+
 // Ranges as the papers state them (all `from memory`, except Lueker et al. 2000 which
 // check-values.md quotes as T 2-35 °C, S 19-43).
 const RANGES: &[Range] = &[
@@ -365,6 +381,22 @@ impl Validity {
         pressure_dbar: f64,
         choice: &ConstantChoice,
     ) -> Self {
+        // Inside every range of every set (most of the ocean): nothing to look up.
+        let [t, s, p] = *INSIDE_ALL_RANGES;
+        let within = |value: f64, (min, max): (f64, f64)| (value >= min) & (value <= max);
+        if within(temperature_c, t) & within(salinity, s) & within(pressure_dbar, p) {
+            return Validity(0);
+        }
+        Self::assess_each(temperature_c, salinity, pressure_dbar, choice)
+    }
+
+    /// [`Validity::assess`] range by range.
+    fn assess_each(
+        temperature_c: f64,
+        salinity: f64,
+        pressure_dbar: f64,
+        choice: &ConstantChoice,
+    ) -> Self {
         // Every range is checked without branching, then the ones of unused sets are masked off.
         let outside = RANGES.iter().fold(0, |bits, range| {
             let value = range.value(temperature_c, salinity, pressure_dbar);
@@ -378,6 +410,9 @@ impl Validity {
     /// for the conditions `self` was assessed at. A NaN condition counts as neither below nor above.
     pub fn out_of_range(self, temperature_c: f64, salinity: f64, pressure_dbar: f64) -> OutOfRange {
         let material = self.0 & Self::MATERIAL;
+        if material == 0 {
+            return OutOfRange(0);
+        }
         let bits = RANGES
             .iter()
             .filter(|range| material & range.bit != 0)
@@ -487,5 +522,45 @@ impl OutOfRange {
             .map(|(_, text)| text)
             .collect::<Vec<_>>()
             .join("; ")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_shortcut_inside_every_range_agrees_with_each_range() {
+        // Edges of every range, just inside and just outside, and NaN, for every set.
+        let mut values: [Vec<f64>; 3] = Default::default();
+        for range in RANGES {
+            let quantity = range.quantity as usize;
+            for edge in [range.min, range.max] {
+                values[quantity].extend([edge - 1e-9, edge, edge + 1e-9]);
+            }
+        }
+        for v in &mut values {
+            v.extend([f64::NAN, -1e9, 1e9, 0.0]);
+        }
+        let mut inside = 0;
+        for &carbonic in CarbonicSet::ALL {
+            for &fluoride in FluorideSet::ALL {
+                let choice = ConstantChoice {
+                    carbonic,
+                    fluoride,
+                    ..ConstantChoice::default()
+                };
+                for &t in &values[0] {
+                    for &s in &values[1] {
+                        for &p in &values[2] {
+                            let each = Validity::assess_each(t, s, p, &choice);
+                            assert_eq!(Validity::assess(t, s, p, &choice), each, "{t} {s} {p}");
+                            inside += usize::from(each.is_within());
+                        }
+                    }
+                }
+            }
+        }
+        assert!(inside > 0);
     }
 }

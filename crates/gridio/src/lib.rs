@@ -18,6 +18,7 @@ mod cell_geometry;
 mod cell_outlines;
 mod chunk_cache;
 pub mod chunk_filters;
+mod conservative_temperature;
 mod conversion;
 mod discovery;
 mod error;

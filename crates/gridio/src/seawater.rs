@@ -334,7 +334,8 @@ pub fn in_situ_state_knowing(
     p: f64,
     in_situ: Option<f64>,
 ) -> Result<InSituState, SeawaterError> {
-    let (temperature_c, ct) = in_situ_and_conservative(kind, temperature, practical, p, in_situ)?;
+    let (temperature_c, ct) =
+        in_situ_and_conservative(kind, temperature, practical, p, in_situ, None)?;
     Ok(InSituState {
         temperature_c,
         density_kg_m3: density_from_conservative(absolute_from_practical(practical), ct, p)?,
@@ -342,13 +343,15 @@ pub fn in_situ_state_knowing(
 }
 
 /// In-situ and Conservative Temperature \[°C\] of one cell (what its density needs), from a
-/// temperature of any kind; `in_situ` as for [`in_situ_state_knowing`].
+/// temperature of any kind; `in_situ` as for [`in_situ_state_knowing`], and likewise
+/// `conservative`, a potential temperature's Conservative Temperature when already known.
 pub fn in_situ_and_conservative(
     kind: TemperatureKind,
     temperature: f64,
     practical: f64,
     p: f64,
     in_situ: Option<f64>,
+    conservative: Option<f64>,
 ) -> Result<(f64, f64), SeawaterError> {
     if practical < 0.0 {
         return Err(SeawaterError::NegativeSalinity {
@@ -363,7 +366,10 @@ pub fn in_situ_and_conservative(
         }
         TemperatureKind::Potential => (
             in_situ.unwrap_or_else(|| in_situ_from_potential(practical, temperature, p)),
-            conservative_from_potential(sa, temperature)?,
+            match conservative {
+                Some(ct) => ct,
+                None => conservative_from_potential(sa, temperature)?,
+            },
         ),
         TemperatureKind::Conservative => {
             let theta = potential_from_conservative(sa, temperature)?;

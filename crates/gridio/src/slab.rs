@@ -3,12 +3,14 @@
 //! that file's own meaning.
 
 use crate::axes::Axis;
+use crate::conservative_temperature::conservative_from_potential_lanes;
 use crate::conversion::Conversion;
 use crate::error::{GridError, Result};
 use crate::mapping::{SalinityKind, TemperatureKind};
 use crate::roles::Role;
 use crate::run::Run;
 use crate::seawater;
+use crate::source::ReadValues;
 use crate::specific_volume::density_lanes;
 use crate::units::{Concentration, SalinityUnits, TemperatureUnits};
 use crate::vertical::Vertical;
@@ -73,14 +75,14 @@ impl Run {
                 ),
             });
         }
-        let read = |role: Role| self.required(role).source.read(&self.paths, step, &rows);
+        let read = |role: Role| (self.required(role).source).read_values(&self.paths, step, &rows);
         let temperature_raw = read(Role::Temperature)?;
         let salinity_raw = read(Role::Salinity)?;
         let dic_raw = read(Role::Dic)?;
         let alkalinity_raw = read(Role::Alkalinity)?;
-        let optional = |role: Role| -> Result<Option<Vec<f64>>> {
+        let optional = |role: Role| -> Result<Option<ReadValues>> {
             self.input(role)
-                .map(|i| i.source.read(&self.paths, step, &rows))
+                .map(|i| i.source.read_values(&self.paths, step, &rows))
                 .transpose()
         };
         let phosphate_raw = optional(Role::Phosphate)?;
@@ -128,9 +130,9 @@ impl Run {
         let (depth_m, mut pressure_dbar) =
             self.depth_and_pressure(&raw.rows, &raw.latitude, raw.heights);
         let step = raw.step;
-        if let (Some(given), Some(input)) = (&raw.pressure_raw, self.input(Role::Pressure)) {
+        if let (Some(given), Some(input)) = (raw.pressure_raw, self.input(Role::Pressure)) {
             if let Conversion::Pressure(to_dbar, atmosphere) = input.meaning_at(step).conversion {
-                for (p, r) in pressure_dbar.iter_mut().zip(given) {
+                for (p, r) in pressure_dbar.iter_mut().zip(given.finish()) {
                     *p = r * to_dbar - atmosphere;
                 }
             }
@@ -139,13 +141,15 @@ impl Run {
         // Temperature, salinity, density, concentrations: converted in place, each by the
         // meaning of the file the step was read from.
         let conversions = self.cell_conversions(step);
-        let mut temperature_c = raw.temperature_raw;
-        let mut salinity = raw.salinity_raw;
-        let mut dic = raw.dic_raw;
-        let mut alkalinity = raw.alkalinity_raw;
+        let mut temperature_c = raw.temperature_raw.finish();
+        let mut salinity = raw.salinity_raw.finish();
+        let mut dic = raw.dic_raw.finish();
+        let mut alkalinity = raw.alkalinity_raw.finish();
         // Absent nutrients are 0 µmol kg-1 and stay so (their units are None).
-        let mut phosphate = raw.phosphate_raw.unwrap_or_else(|| vec![0.0; cells]);
-        let mut silicate = raw.silicate_raw.unwrap_or_else(|| vec![0.0; cells]);
+        let finish_or_zero =
+            |raw: Option<ReadValues>| raw.map_or_else(|| vec![0.0; cells], ReadValues::finish);
+        let mut phosphate = finish_or_zero(raw.phosphate_raw);
+        let mut silicate = finish_or_zero(raw.silicate_raw);
         let mut density_kg_m3 = vec![0.0; cells];
         (
             (
@@ -269,19 +273,20 @@ impl Run {
     }
 }
 
-/// One slab's values as read from the files (masked and unpacked, in canonical order), before
-/// conversion: the output of [`Run::read_raw_slab`], the input of [`Run::convert_slab`].
+/// One slab's values as read from the files (as stored: widening, masking, unpacking and the
+/// canonical order wait for the conversion): the output of [`Run::read_raw_slab`], the input
+/// of [`Run::convert_slab`].
 #[derive(Clone, Debug)]
 pub struct RawSlab {
     pub(crate) step: usize,
     pub(crate) rows: Range<usize>,
-    temperature_raw: Vec<f64>,
-    salinity_raw: Vec<f64>,
-    dic_raw: Vec<f64>,
-    alkalinity_raw: Vec<f64>,
-    phosphate_raw: Option<Vec<f64>>,
-    silicate_raw: Option<Vec<f64>>,
-    pressure_raw: Option<Vec<f64>>,
+    temperature_raw: ReadValues,
+    salinity_raw: ReadValues,
+    dic_raw: ReadValues,
+    alkalinity_raw: ReadValues,
+    phosphate_raw: Option<ReadValues>,
+    silicate_raw: Option<ReadValues>,
+    pressure_raw: Option<ReadValues>,
     /// Latitude per column of the slab, when the run has one.
     latitude: Option<Vec<f64>>,
     /// Height per cell and free-surface height per column, when levels are not fixed.
@@ -392,6 +397,15 @@ impl CellConversions {
             _ => [None; LANES],
         };
         let in_situ_density = self.density == DensityChoice::InSitu;
+        // A potential temperature's Conservative Temperature, side by side (a negative
+        // salinity's NaN is never used: the scalar path below refuses that cell first).
+        let conservative = match t_kind {
+            TemperatureKind::Potential if any_sea && in_situ_density => {
+                let absolute = sp.map(seawater::absolute_from_practical);
+                conservative_from_potential_lanes(&absolute, &t_file).map(Some)
+            }
+            _ => [None; LANES],
+        };
         let (mut t_situ, mut sa, mut ct) =
             ([f64::NAN; LANES], [f64::NAN; LANES], [f64::NAN; LANES]);
         for i in 0..count {
@@ -408,7 +422,14 @@ impl CellConversions {
                 continue;
             }
             // One pass gives both (saves a potential-temperature evaluation per cell).
-            match seawater::in_situ_and_conservative(t_kind, t_file, sp, p, known[i]) {
+            match seawater::in_situ_and_conservative(
+                t_kind,
+                t_file,
+                sp,
+                p,
+                known[i],
+                conservative[i],
+            ) {
                 Ok((t, conservative)) => {
                     (t_situ[i], ct[i]) = (t, conservative);
                     sa[i] = seawater::absolute_from_practical(sp);

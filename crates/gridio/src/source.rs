@@ -8,6 +8,7 @@ use crate::error::{GridError, Result};
 use crate::timeline::TimeSpan;
 use netcdf::types::{FloatType, NcVariableType};
 use netcdf::Extent;
+use rayon::prelude::*;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
@@ -250,6 +251,17 @@ impl VarSource {
     /// columns; result in canonical order over the axes the variable has (Z, Y, X),
     /// masked to NaN and unpacked.
     pub fn read(&self, paths: &[PathBuf], step: usize, rows: &Range<usize>) -> Result<Vec<f64>> {
+        Ok(self.read_values(paths, step, rows)?.finish())
+    }
+
+    /// As [`VarSource::read`], leaving the widening, masking and reordering to
+    /// [`ReadValues::finish`], so the reading thread only reads.
+    pub(crate) fn read_values(
+        &self,
+        paths: &[PathBuf],
+        step: usize,
+        rows: &Range<usize>,
+    ) -> Result<ReadValues> {
         let piece = match self.piece_index(step) {
             Some(i) => &self.pieces[i],
             None => {
@@ -294,7 +306,7 @@ impl VarSource {
         piece: &Piece,
         step: usize,
         rows: &Range<usize>,
-    ) -> Result<Vec<f64>> {
+    ) -> Result<ReadValues> {
         let var = nc.variable(&self.name).ok_or_else(|| GridError::Metadata {
             file: path.to_path_buf(),
             variable: self.name.clone(),
@@ -341,41 +353,105 @@ impl VarSource {
             extents.push(extent);
             sizes.push(size);
         }
-        let mut raw = read_hyperslab(&var, extents, &sizes, path)?;
-        piece.mask.apply(&mut raw);
-        Ok(to_canonical(raw, &piece.axes, &sizes))
+        Ok(ReadValues {
+            stored: read_stored(&var, extents, &sizes, path)?,
+            mask: piece.mask.clone(),
+            axes: piece.axes.clone(),
+            sizes,
+        })
     }
 }
 
-/// Reads a hyperslab as f64 and checks its length (`sizes`: the extents' counts). float32
-/// data are read as stored and widened here, outside libnetcdf's lock (half the bytes copied
-/// under it, no libnetcdf type conversion); widening is exact.
+/// One variable's hyperslab as read (float32 kept as stored), not yet widened, masked nor in
+/// canonical order: [`ReadValues::finish`] does that, in parallel, off the reading thread.
+#[derive(Clone, Debug)]
+pub struct ReadValues {
+    stored: Stored,
+    mask: MaskRule,
+    /// Axes in the file's order and the hyperslab's count along each.
+    axes: Vec<Axis>,
+    sizes: Vec<usize>,
+}
+
+impl ReadValues {
+    /// The values as f64 in canonical (level, row, col) order, masked to NaN and unpacked; on
+    /// the current rayon pool.
+    pub(crate) fn finish(self) -> Vec<f64> {
+        // Pieces large enough to amortise scheduling, small enough to share a slab.
+        const PIECE: usize = 1 << 15;
+        let mut values: Vec<f64> = match self.stored {
+            // Widened straight into the new vector (rayon writes it once, no zeroing first).
+            Stored::Single(stored) => (stored.par_iter().with_min_len(PIECE))
+                .map(|&v| f64::from(v))
+                .collect(),
+            Stored::Double(values) => values,
+        };
+        let mask = &self.mask;
+        values.par_chunks_mut(PIECE).for_each(|v| mask.apply(v));
+        to_canonical(values, &self.axes, &self.sizes)
+    }
+}
+
+/// Values as the file stores them: float32 stays float32 until widened (exact).
+#[derive(Clone, Debug)]
+enum Stored {
+    Single(Vec<f32>),
+    Double(Vec<f64>),
+}
+
+impl Stored {
+    fn len(&self) -> usize {
+        match self {
+            Stored::Single(values) => values.len(),
+            Stored::Double(values) => values.len(),
+        }
+    }
+
+    fn widened(self) -> Vec<f64> {
+        match self {
+            Stored::Single(values) => values.into_iter().map(f64::from).collect(),
+            Stored::Double(values) => values,
+        }
+    }
+}
+
+/// Reads a hyperslab as f64 and checks its length (`sizes`: the extents' counts).
 pub(crate) fn read_hyperslab(
     var: &netcdf::Variable,
     extents: Vec<Extent>,
     sizes: &[usize],
     path: &Path,
 ) -> Result<Vec<f64>> {
+    Ok(read_stored(var, extents, sizes, path)?.widened())
+}
+
+/// Reads a hyperslab as stored and checks its length. float32 data are read as float32 (half
+/// the bytes copied under libnetcdf's lock, no libnetcdf type conversion) and widened later.
+fn read_stored(
+    var: &netcdf::Variable,
+    extents: Vec<Extent>,
+    sizes: &[usize],
+    path: &Path,
+) -> Result<Stored> {
     let read_error = |e: netcdf::Error| GridError::Read {
         file: path.to_path_buf(),
         variable: var.name(),
         message: e.to_string(),
     };
-    let raw: Vec<f64> = if var.vartype() == NcVariableType::Float(FloatType::F32) {
-        let stored: Vec<f32> = var.get_values(extents).map_err(read_error)?;
-        stored.into_iter().map(f64::from).collect()
+    let stored = if var.vartype() == NcVariableType::Float(FloatType::F32) {
+        Stored::Single(var.get_values(extents).map_err(read_error)?)
     } else {
-        var.get_values(extents).map_err(read_error)?
+        Stored::Double(var.get_values(extents).map_err(read_error)?)
     };
     let wanted: usize = sizes.iter().product();
-    if raw.len() != wanted {
+    if stored.len() != wanted {
         return Err(GridError::Read {
             file: path.to_path_buf(),
             variable: var.name(),
-            message: format!("short read: {} of {wanted} values", raw.len()),
+            message: format!("short read: {} of {wanted} values", stored.len()),
         });
     }
-    Ok(raw)
+    Ok(stored)
 }
 
 fn describe_shape(dims: &[(Axis, usize)]) -> String {

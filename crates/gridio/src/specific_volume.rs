@@ -8,7 +8,7 @@
 use crate::lanes::widest_lanes;
 
 /// Salinity scale: 1/(40 × 35.16504/35) (Roquet et al. 2015).
-const SALINITY_FACTOR: f64 = 1.0 / (40.0 * (35.16504 / 35.0));
+pub(crate) const SALINITY_FACTOR: f64 = 1.0 / (40.0 * (35.16504 / 35.0));
 /// Salinity offset: 24 g kg-1 × [`SALINITY_FACTOR`] (Roquet et al. 2015).
 const SALINITY_OFFSET: f64 = 24.0 * SALINITY_FACTOR;
 /// Conservative Temperature scale \[°C\] (Roquet et al. 2015).

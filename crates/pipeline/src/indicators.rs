@@ -468,6 +468,25 @@ impl OutputField {
         }
     }
 
+    /// [`OutputField::value_of_output`] of many cells: `each(i, value)` for the `i`th of
+    /// `outputs`, with the density beside it in `densities`.
+    pub fn each_value_of_output(
+        &self,
+        outputs: &[f64],
+        densities: &[f64],
+        mut each: impl FnMut(usize, f64),
+    ) {
+        // The match hoisted out of the loop: only concentrations read the density.
+        match self.quantity {
+            Quantity::Concentration(..) => {
+                for (i, (&v, &density)) in outputs.iter().zip(densities).enumerate() {
+                    each(i, self.value_of_output(v, density));
+                }
+            }
+            _ => outputs.iter().enumerate().for_each(|(i, &v)| each(i, v)),
+        }
+    }
+
     /// Whether the value needs the cell's density.
     pub fn needs_density(&self) -> bool {
         matches!(

@@ -2,9 +2,9 @@
 //! together, and their results scattered back.
 
 use super::{
-    assessed_ranges, ranges, unsolvable, write_solved, Block, BlockSolver, KeepOmega, SlabJob,
+    assessed_ranges, ranges, unsolvable, Block, BlockSolver, KeepOmega, SlabJob, VALUE_FILL,
 };
-use crate::flags::outcome_flag;
+use crate::flags::{outcome_flag, NO_PHYSICAL_SOLUTION};
 use crate::indicators::OutputField;
 use acidscape_chem::{
     solve_cells, CellInputs, CellOutputs, CellStatus, ConstantChoice, Output, Validity,
@@ -18,6 +18,8 @@ pub(super) struct Gathered {
     /// Temperature, salinity, pressure, DIC, alkalinity, phosphate, silicate.
     columns: [Vec<f64>; 7],
     density: Vec<f64>,
+    /// Whether every indicator of each gathered cell is finite.
+    all_finite: Vec<bool>,
     status: Vec<CellStatus>,
     validity: Vec<Validity>,
     /// The chemistry's outputs wanted (each once) and their values.
@@ -48,6 +50,7 @@ impl Gathered {
             offsets: Vec::new(),
             columns: Default::default(),
             density: Vec::new(),
+            all_finite: Vec::new(),
             status: Vec::new(),
             validity: Vec::new(),
             outputs,
@@ -59,41 +62,12 @@ impl Gathered {
 }
 
 impl BlockSolver for Gathered {
-    /// Flags the block's unsolvable cells at once and solves the others through the kernel.
+    /// Flags the block's unsolvable cells at once, solves the others through the kernel and
+    /// scatters their values field by field.
     fn solve_block(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
-        let SlabJob {
-            inputs,
-            fields,
-            choice,
-            ..
-        } = *job;
-        self.gather(inputs, choice, block);
-        self.run_kernel(choice);
-        for (i, &offset) in self.offsets.iter().enumerate() {
-            let cell = block.start + offset;
-            block.flags[offset] = match self.status[i] {
-                CellStatus::Solved => {
-                    let outs = &mut block.fields;
-                    let mut omega = None;
-                    let density = self.density[i];
-                    let flag = write_solved(
-                        fields,
-                        ranges(self.validity[i], inputs, cell),
-                        |k| {
-                            let output = self.outputs[self.field_outputs[k]].1[i];
-                            fields[k].value_of_output(output, density)
-                        },
-                        |k, v| outs[k][offset] = v,
-                        || omega = Some(self.omega_outputs.map(|o| self.value(o, i))),
-                    );
-                    if let Some(values) = omega {
-                        block.put_omega(offset, values);
-                    }
-                    flag
-                }
-                failed => outcome_flag(failed) | assessed_ranges(inputs, cell, choice),
-            };
-        }
+        self.gather(job.inputs, job.choice, block);
+        self.run_kernel(job.choice);
+        self.scatter(job, block);
     }
 }
 
@@ -101,9 +75,31 @@ impl Gathered {
     /// Flags the block's unsolvable cells and copies the others' inputs into the columns.
     fn gather(&mut self, inputs: &SlabInputs, choice: &ConstantChoice, block: &mut Block<'_>) {
         self.offsets.clear();
-        self.density.clear();
-        for column in &mut self.columns {
-            column.clear();
+        for (offset, flag) in block.flags.iter_mut().enumerate() {
+            let cell = block.start + offset;
+            // Every input finite (and a usable density): solvable, without unsolvable's checks.
+            let finite = [
+                inputs.temperature_c[cell],
+                inputs.salinity[cell],
+                inputs.pressure_dbar[cell],
+                inputs.dic[cell],
+                inputs.alkalinity[cell],
+                inputs.phosphate[cell],
+                inputs.silicate[cell],
+            ]
+            .iter()
+            .fold(true, |all, v| all & v.is_finite());
+            let density = inputs.density_kg_m3[cell];
+            let density_usable = !self.needs_density | (density.is_finite() & (density > 0.0));
+            let unsolved = if finite & density_usable {
+                None
+            } else {
+                unsolvable(inputs, cell, self.needs_density, choice)
+            };
+            match unsolved {
+                Some(unsolved) => *flag = unsolved,
+                None => self.offsets.push(offset),
+            }
         }
         let sources = [
             &inputs.temperature_c,
@@ -113,18 +109,60 @@ impl Gathered {
             &inputs.alkalinity,
             &inputs.phosphate,
             &inputs.silicate,
+            &inputs.density_kg_m3,
         ];
-        for (offset, flag) in block.flags.iter_mut().enumerate() {
+        let block_sources = sources.map(|source| &source[block.start..][..block.flags.len()]);
+        let targets = self.columns.iter_mut().chain([&mut self.density]);
+        for (column, source) in targets.zip(block_sources) {
+            column.clear();
+            column.extend(self.offsets.iter().map(|&offset| source[offset]));
+        }
+    }
+
+    /// Writes the solved cells' fields, one field at a time, then every gathered cell's flag:
+    /// [`super::write_solved`]'s rules (fill and [`NO_PHYSICAL_SOLUTION`] when an indicator is not
+    /// finite; an uncertainty that is not finite is fill on its own).
+    fn scatter(&mut self, job: &SlabJob<'_>, block: &mut Block<'_>) {
+        let SlabJob {
+            inputs,
+            fields,
+            choice,
+            ..
+        } = *job;
+        let cells = self.offsets.len();
+        self.all_finite.clear();
+        self.all_finite.resize(cells, true);
+        for (k, field) in fields.iter().enumerate() {
+            let out = &mut *block.fields[k];
+            let (offsets, all_finite) = (&self.offsets, &mut self.all_finite);
+            let optional = field.uncertainty.is_some();
+            let outputs = &self.outputs[self.field_outputs[k]].1;
+            field.each_value_of_output(outputs, &self.density, |i, value| {
+                let finite = value.is_finite();
+                all_finite[i] &= finite | optional;
+                out[offsets[i]] = if finite | !optional {
+                    value as f32
+                } else {
+                    VALUE_FILL
+                };
+            });
+        }
+        for (i, &offset) in self.offsets.iter().enumerate() {
             let cell = block.start + offset;
-            if let Some(unsolved) = unsolvable(inputs, cell, self.needs_density, choice) {
-                *flag = unsolved;
+            let solved = self.status[i] == CellStatus::Solved;
+            if solved && self.all_finite[i] {
+                block.flags[offset] = ranges(self.validity[i], inputs, cell);
+                block.put_omega(offset, self.omega_outputs.map(|o| self.value(o, i)));
                 continue;
             }
-            self.offsets.push(offset);
-            self.density.push(inputs.density_kg_m3[cell]);
-            for (column, source) in self.columns.iter_mut().zip(sources) {
-                column.push(source[cell]);
+            for out in block.fields.iter_mut() {
+                out[offset] = VALUE_FILL;
             }
+            block.flags[offset] = if solved {
+                NO_PHYSICAL_SOLUTION | ranges(self.validity[i], inputs, cell)
+            } else {
+                outcome_flag(self.status[i]) | assessed_ranges(inputs, cell, choice)
+            };
         }
     }
 
