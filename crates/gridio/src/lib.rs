@@ -53,7 +53,7 @@ pub use mapping::{MappedVariable, SalinityKind, TemperatureKind, VariableMapping
 pub use run::Run;
 
 pub use chunk_cache::lcm as least_common_multiple;
-pub use slab::RawSlab;
+pub use slab::{filled_on_pool, RawSlab};
 pub use uncertainty_field::UncertaintyField;
 
 use std::ops::Range;

@@ -146,11 +146,12 @@ impl Run {
         let mut dic = raw.dic_raw.finish();
         let mut alkalinity = raw.alkalinity_raw.finish();
         // Absent nutrients are 0 µmol kg-1 and stay so (their units are None).
-        let finish_or_zero =
-            |raw: Option<ReadValues>| raw.map_or_else(|| vec![0.0; cells], ReadValues::finish);
+        let finish_or_zero = |raw: Option<ReadValues>| {
+            raw.map_or_else(|| filled_on_pool(0.0, cells), ReadValues::finish)
+        };
         let mut phosphate = finish_or_zero(raw.phosphate_raw);
         let mut silicate = finish_or_zero(raw.silicate_raw);
-        let mut density_kg_m3 = vec![0.0; cells];
+        let mut density_kg_m3 = filled_on_pool(0.0, cells);
         (
             (
                 temperature_c.par_chunks_mut(LANES),
@@ -203,8 +204,8 @@ impl Run {
         let cells = self.shape.levels * columns;
         let lat_of = |column: usize| latitude.as_ref().map_or(0.0, |l| l[column]);
         let per_level = |at: &(dyn Fn(usize, f64) -> (f64, f64) + Sync)| {
-            let mut depth = vec![0.0; cells];
-            let mut pressure = vec![0.0; cells];
+            let mut depth = filled_on_pool(0.0, cells);
+            let mut pressure = filled_on_pool(0.0, cells);
             depth
                 .par_chunks_mut(columns.max(1))
                 .zip(pressure.par_chunks_mut(columns.max(1)))
@@ -271,6 +272,15 @@ impl Run {
                 .collect(),
         ))
     }
+}
+
+/// `len` copies of `value`, written on the current rayon pool: a slab's buffers are tens of
+/// MiB, which one thread would otherwise fill (and fault in) alone.
+pub fn filled_on_pool<T: Copy + Send + Sync>(value: T, len: usize) -> Vec<T> {
+    const PIECE: usize = 1 << 15;
+    rayon::iter::repeat_n(value, len)
+        .with_min_len(PIECE)
+        .collect()
 }
 
 /// One slab's values as read from the files (as stored: widening, masking, unpacking and the

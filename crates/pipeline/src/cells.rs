@@ -18,7 +18,7 @@ use crate::flags::WITHOUT_VALUES;
 use crate::flags::{range_flag, Flag, FlagCounts, FLAG_FILL, MISSING_INPUT, NO_PHYSICAL_SOLUTION};
 use crate::indicators::OutputField;
 use acidscape_chem::{ConstantChoice, Validity};
-use acidscape_gridio::SlabInputs;
+use acidscape_gridio::{filled_on_pool, SlabInputs};
 use by_cell::ByCell;
 use gathered::Gathered;
 use rayon::prelude::*;
@@ -139,8 +139,10 @@ impl SlabJob<'_> {
         let inputs = self.inputs;
         let field_count = self.fields.len();
         let cells = inputs.shape.iter().product::<usize>();
-        let mut values: Vec<Vec<f32>> = (0..field_count).map(|_| vec![VALUE_FILL; cells]).collect();
-        let mut flags = vec![FLAG_FILL; cells];
+        let mut values: Vec<Vec<f32>> = (0..field_count)
+            .map(|_| filled_on_pool(VALUE_FILL, cells))
+            .collect();
+        let mut flags = filled_on_pool(FLAG_FILL, cells);
         // The kept states reuse `spare` (the previous slab's) as they are: every cell is written
         // once, on the rayon pool, so no pass over the slab precedes the solve.
         let kept = |on: bool, mut buffer: Vec<f64>| {
