@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # Reading speed: acidscape's reading stage alone (crates/gridio/examples/read_slabs.rs --raw:
-# every slab of every step read, masked and unpacked, not converted) against an independent
+# every slab of every step read as stored: widening, masking and conversions run on the
+# pool in compute, not on its reading thread) against an independent
 # reader (the Python netCDF4 module reading the same six variables a time step at a time,
 # scripts/read_with_netcdf4.py), run in turn REPEAT times; medians.
 #

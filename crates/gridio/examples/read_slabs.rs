@@ -2,8 +2,9 @@
 //! `Run::read_slab` (e.g. under `valgrind --tool=callgrind`).
 //!
 //! Usage: `read_slabs [--rows N] [--steps N] [--raw] [--default-cache] FILE...` (default: 30
-//! rows per slab, all steps; `--raw` reads without converting, the reading stage of `compute`
-//! alone; `--default-cache` keeps the library's chunk cache instead of one sized for the slabs).
+//! rows per slab, all steps; `--raw` reads the values as stored, without widening, masking or
+//! converting: the reading stage of `compute` alone; `--default-cache` keeps the library's
+//! chunk cache instead of one sized for the slabs).
 
 use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
 use std::time::Instant;

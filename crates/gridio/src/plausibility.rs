@@ -82,10 +82,15 @@ pub(crate) const PLAUSIBLE: [Plausible; 7] = [
 /// is refused: a few bad cells are flagged per cell, a tenth of the grid is a wrong input.
 pub(crate) const REFUSE_SHARE: f64 = 0.10;
 
-/// The most chunk cache the sampling at open may hold (freed before any slab is read; half
-/// the default memory budget): inputs whose chunks need more are sampled with the library's
-/// default cache, which inflates a chunk spanning many rows or steps once per block read.
+/// The most chunk cache the sampling at open may hold (freed before any slab is read, up to
+/// [`FIRST_SLAB_CACHE_LIMIT_BYTES`]; half the default memory budget): inputs whose chunks
+/// need more are sampled with the library's default cache, which inflates a chunk spanning
+/// many rows or steps once per block read.
 const SAMPLING_CACHE_LIMIT_BYTES: u64 = 1024 * 1024 * 1024;
+
+/// The most chunk cache the sampling may leave to the first slab read after it (freed by
+/// that read): a few chunks per input, small beside any slab of a large grid.
+const FIRST_SLAB_CACHE_LIMIT_BYTES: u64 = 128 * 1024 * 1024;
 
 /// Most time steps whose values are checked when a run is opened (each read in full).
 pub(crate) const MAX_SAMPLED_STEPS: usize = 24;
@@ -114,8 +119,10 @@ pub(crate) struct ValueCheck {
     /// Converted extremes over the sample.
     pub min: f64,
     pub max: f64,
-    /// Why this input is implausible, if it is.
+    /// Why this input is implausible, if it is (from the earliest sampled step that is).
     pub refusal: Option<String>,
+    /// The step `refusal` comes from.
+    refusal_step: usize,
 }
 
 impl ValueCheck {
@@ -135,12 +142,15 @@ impl ValueCheck {
             min: f64::INFINITY,
             max: f64::NEG_INFINITY,
             refusal: None,
+            refusal_step: usize::MAX,
         }
     }
 
-    /// Adds one sampled step's tally (`rough` converts a raw value), keeping the first refusal.
+    /// Adds the tally of sampled step `step` (`rough` converts a raw value), keeping the
+    /// earliest step's refusal.
     fn add(
         &mut self,
+        step: usize,
         tally: &Tally,
         scale: f64,
         refusal: Option<String>,
@@ -155,8 +165,8 @@ impl ValueCheck {
             self.min = self.min.min(rough(tally.min));
             self.max = self.max.max(rough(tally.max));
         }
-        if self.refusal.is_none() {
-            self.refusal = refusal;
+        if refusal.is_some() && step < self.refusal_step {
+            (self.refusal, self.refusal_step) = (refusal, step);
         }
     }
 }
@@ -293,8 +303,11 @@ impl Run {
         if self.read_cache_bytes(block) <= SAMPLING_CACHE_LIMIT_BYTES {
             self.read_in_slabs_of(Some(block));
         }
-        // (On an error the run is not opened, so the caches go with it.)
-        for &step in &steps {
+        // (On an error the run is not opened, so the caches go with it.) The first step is
+        // sampled last, so its chunks are still cached when a job reads its first slab.
+        let first_last =
+            (steps.iter().filter(|&&s| s != 0)).chain(steps.iter().filter(|&&s| s == 0));
+        for &step in first_last {
             let (tallies, wet) = self.tally_step(step, &checked)?;
             if step == 0 {
                 self.wet_cells = wet;
@@ -308,12 +321,12 @@ impl Run {
                 }
                 let refusal = judge(self, &self.inputs[i], step, &mut tally, scale);
                 let conversion = &self.inputs[i].meaning_at(step).conversion;
-                check.add(&tally, scale, refusal, |v| {
+                check.add(step, &tally, scale, refusal, |v| {
                     conversion.rough_value(v, self.rough_density(), scale)
                 });
             }
         }
-        self.read_in_slabs_of(None);
+        self.default_caches_after_next_read(FIRST_SLAB_CACHE_LIMIT_BYTES);
         // Salinity files not sampled share their variable's first file's scale.
         let salinity = self.inputs.iter().position(|i| i.role == Role::Salinity);
         if let Some(s) = salinity {

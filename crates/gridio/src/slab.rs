@@ -53,6 +53,22 @@ impl Run {
         }
     }
 
+    /// Gives every input the library's default chunk cache back, letting open files keep
+    /// theirs for one more read when they hold `limit_bytes` or less in all (the sampling at
+    /// open leaves the first step's chunks there: the first slab then reads from memory).
+    pub(crate) fn default_caches_after_next_read(&self, limit_bytes: u64) {
+        let held: u64 = (self.slab_inputs())
+            .map(|i| i.source.open_cache_bytes() as u64)
+            .sum();
+        for input in self.slab_inputs() {
+            if held <= limit_bytes {
+                input.source.default_cache_after_next_read();
+            } else {
+                input.source.read_in_slabs_of(None);
+            }
+        }
+    }
+
     /// The inputs read for every slab (one value per cell).
     fn slab_inputs(&self) -> impl Iterator<Item = &crate::run::Input> {
         self.inputs.iter().filter(|i| i.role.per_cell())

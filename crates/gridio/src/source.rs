@@ -70,6 +70,8 @@ pub(crate) struct DataHandle(Mutex<OpenFile>);
 struct OpenFile {
     file: Option<(usize, netcdf::File)>,
     cache_bytes: usize,
+    /// Close the file after its next read (its cache sized for another reader).
+    close_after_read: bool,
 }
 
 impl DataHandle {
@@ -87,6 +89,7 @@ impl Clone for DataHandle {
         DataHandle(Mutex::new(OpenFile {
             file: None,
             cache_bytes,
+            close_after_read: false,
         }))
     }
 }
@@ -227,8 +230,25 @@ impl VarSource {
         let mut data = self.data.lock();
         if data.cache_bytes != bytes {
             data.file = None;
+            data.close_after_read = false;
             data.cache_bytes = bytes;
         }
+    }
+
+    /// Bytes of the chunk cache of the open file (0 when none is open or it has the
+    /// library's default).
+    pub fn open_cache_bytes(&self) -> usize {
+        let data = self.data.lock();
+        data.file.as_ref().map_or(0, |_| data.cache_bytes)
+    }
+
+    /// Gives the library's default chunk cache back, but lets the open file keep its cache,
+    /// and the chunks in it, for one more read (sizing the cache again before then closes
+    /// it at once, as [`VarSource::read_in_slabs_of`] does).
+    pub fn default_cache_after_next_read(&self) {
+        let mut data = self.data.lock();
+        data.close_after_read = data.file.is_some() && data.cache_bytes != 0;
+        data.cache_bytes = 0;
     }
 
     pub fn has_time(&self) -> bool {
@@ -285,6 +305,7 @@ impl VarSource {
             previous => {
                 // Close the previous file before opening the next: one cache at a time.
                 drop(previous);
+                data.close_after_read = false;
                 open_with_chunk_cache(path, data.cache_bytes).map_err(|e| {
                     GridError::Unreadable {
                         path: path.clone(),
@@ -294,7 +315,11 @@ impl VarSource {
             }
         };
         let values = self.read_from(&nc, path, piece, step, rows);
-        data.file = Some((piece.file, nc));
+        if std::mem::take(&mut data.close_after_read) {
+            drop(nc);
+        } else {
+            data.file = Some((piece.file, nc));
+        }
         values
     }
 
