@@ -22,7 +22,8 @@
 #   5. against the same job written with xarray and vectorised numpy
 #      (scripts/baseline_xarray_numpy.py, pinned to one core): acidscape on 2 cores and the
 #      script run in turn REPEAT times on the same STEPS-step run, with the load seen before
-#      each (and BASELINE, when given, in the same rounds); medians, the ratios, and acidscape's
+#      each (and BASELINE, when given, in the same rounds, before or after this build in
+#      turn; every timed run starts after `sync`); medians, the ratios, and acidscape's
 #      serial netCDF time. With PY_STEPS=N the script
 #      reads only the first N steps and its time is scaled per cell to STEPS steps (said so).
 # PARTS chooses the parts (default "floor cores horizons memory baseline").
@@ -68,6 +69,7 @@ measure() {
     local label=$1; shift
     local log="$dir/$label.time" walls=() rsss=()
     for ((i = 1; i <= repeat; i++)); do
+        sync  # the previous run's output written back before this one starts
         /usr/bin/time -f '%e %M' -o "$log" "$@" >"$dir/$label.out" 2>"$dir/$label.err" \
             || { cat "$dir/$label.err"; return 1; }
         read -r wall rss <"$log"
@@ -165,7 +167,11 @@ if part baseline; then
         echo "  the script reads $py_steps of $steps steps; its time is scaled by $steps / $py_steps (per cell)"
     fi
     walls_a=(); walls_b=(); walls_p=(); serials=()
-    for ((i = 1; i <= repeat; i++)); do
+    # This build, then BASELINE (in even rounds the other way round, so neither always follows
+    # the script), then the script; each timed run starts after `sync`, so the write-back of
+    # the previous run's output (the script does not flush its own) does not land in it.
+    this_build() {
+        sync
         load=$(cut -d' ' -f1 /proc/loadavg)
         /usr/bin/time -f '%e %M' -o "$dir/turn.time" taskset -c 0,1 "$bin" compute "${half[@]}" -o "$dir/out-turn.nc" \
             --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
@@ -175,14 +181,20 @@ if part baseline; then
         walls_a+=("$wall"); serials+=("$serial")
         printf '  round %d acidscape   wall %7.2f s  serial netCDF %6.2f s  peak RSS %6.0f MiB (load before %s)\n' \
             "$i" "$wall" "$serial" "$(echo "$rss / 1024" | bc -l)" "$load"
-        if [[ -n "${BASELINE:-}" ]]; then
-            load=$(cut -d' ' -f1 /proc/loadavg)
-            /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "$BASELINE" compute "${half[@]}" -o "$dir/out-turn.nc" \
-                --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
-                || { cat "$dir/turn.out"; exit 1; }
-            walls_b+=("$(cat "$dir/turn.time")")
-            printf '  round %d baseline    wall %7.2f s (load before %s)\n' "$i" "$(cat "$dir/turn.time")" "$load"
-        fi
+    }
+    baseline_build() {
+        [[ -n "${BASELINE:-}" ]] || return 0
+        sync
+        load=$(cut -d' ' -f1 /proc/loadavg)
+        /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "$BASELINE" compute "${half[@]}" -o "$dir/out-turn.nc" \
+            --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
+            || { cat "$dir/turn.out"; exit 1; }
+        walls_b+=("$(cat "$dir/turn.time")")
+        printf '  round %d baseline    wall %7.2f s (load before %s)\n' "$i" "$(cat "$dir/turn.time")" "$load"
+    }
+    for ((i = 1; i <= repeat; i++)); do
+        if ((i % 2)); then this_build; baseline_build; else baseline_build; this_build; fi
+        sync
         load=$(cut -d' ' -f1 /proc/loadavg)
         OMP_NUM_THREADS=1 OPENBLAS_NUM_THREADS=1 MKL_NUM_THREADS=1 \
             /usr/bin/time -f '%e %M' -o "$dir/turn.time" taskset -c 0 python3 scripts/baseline_xarray_numpy.py \

@@ -15,6 +15,7 @@ run_in_turn() {
     for ((i = 1; i <= repeat; i++)); do
         for variant in "$@"; do
             variant_command "$variant"
+            sync  # the previous run's output written back before this one starts
             load=$(cut -d' ' -f1 /proc/loadavg)
             /usr/bin/time -f '%e' -o "$dir/turn.time" taskset -c 0,1 "${cmd[@]}" -o "$dir/out-$variant.nc" \
                 --overwrite --threads 2 --memory-budget "$budget" --deflate-level "$level" >"$dir/turn.out" 2>&1 \
