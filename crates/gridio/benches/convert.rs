@@ -7,33 +7,10 @@
 //! levels), its first time step as one slab, read once; each iteration converts a copy on a
 //! one-thread rayon pool, so the figure is per core.
 
-use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
-use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
-use std::path::Path;
+mod common;
 
-fn sample_run() -> Run {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../sample-grids/cmip-style/pathway-moderate");
-    let mut inputs: Vec<String> = std::fs::read_dir(&dir)
-        .expect("the sample run is in the repository")
-        .map(|entry| {
-            entry
-                .expect("a readable folder")
-                .path()
-                .display()
-                .to_string()
-        })
-        .filter(|path| path.ends_with(".nc"))
-        .collect();
-    inputs.sort();
-    let spec = RunSpec {
-        inputs,
-        mapping: VariableMapping::default(),
-        density: DensityChoice::InSitu,
-        ..Default::default()
-    };
-    Run::open(&spec).expect("the sample run opens")
-}
+use common::sample_run;
+use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
 
 fn bench_convert(c: &mut Criterion) {
     let run = sample_run();

@@ -6,36 +6,14 @@
 //! Gulf" values), its first time step as one converted slab, read once; each iteration solves
 //! it on a one-thread rayon pool, so the figure is per core.
 
+#[path = "../../gridio/benches/common/mod.rs"]
+mod common;
+
 use acidscape_chem::ConstantChoice;
-use acidscape_gridio::{DensityChoice, Run, RunSpec, VariableMapping};
 use acidscape_pipeline::cells::{solve_slab, KeepOmega, SaturationStates, SlabSolver};
 use acidscape_pipeline::IndicatorChoice;
+use common::sample_run;
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
-use std::path::Path;
-
-fn sample_run() -> Run {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../sample-grids/cmip-style/pathway-moderate");
-    let mut inputs: Vec<String> = std::fs::read_dir(&dir)
-        .expect("the sample run is in the repository")
-        .map(|entry| {
-            entry
-                .expect("a readable folder")
-                .path()
-                .display()
-                .to_string()
-        })
-        .filter(|path| path.ends_with(".nc"))
-        .collect();
-    inputs.sort();
-    let spec = RunSpec {
-        inputs,
-        mapping: VariableMapping::default(),
-        density: DensityChoice::InSitu,
-        ..Default::default()
-    };
-    Run::open(&spec).expect("the sample run opens")
-}
 
 fn bench_solve_slab(c: &mut Criterion) {
     let run = sample_run();
