@@ -1,5 +1,6 @@
-//! Conservative Temperature of many cells at once: TEOS-10's polynomial for potential enthalpy
-//! (IOC, SCOR and IAPSO 2010; McDougall 2003), written so cells sit side by side in SIMD lanes.
+//! Conservative Temperature of many cells at once: potential enthalpy over cp0 (IOC, SCOR and
+//! IAPSO 2010; McDougall 2003) by the GSW toolbox's polynomial (McDougall and Barker 2011),
+//! written so cells sit side by side in SIMD lanes.
 //!
 //! The coefficients and the order of every operation are those of the `gsw` crate's
 //! `conversions::ct_from_pt` (BSD-3-Clause; transcribed from its source), with the hardware
@@ -13,7 +14,7 @@ use crate::specific_volume::SALINITY_FACTOR;
 const CP0: f64 = 3_991.867_957_119_63;
 
 /// Conservative Temperature \[°C\] from absolute salinity \[g kg-1\] and potential temperature
-/// (0 dbar) \[°C\]: potential enthalpy / cp0 (IOC et al. 2010, eq. 3.3.3); NaN for NaN inputs.
+/// (0 dbar) \[°C\]: potential enthalpy / cp0 (IOC et al. 2010); NaN for NaN inputs.
 /// Salinity must not be negative (the caller checks, as `gsw` refuses it).
 #[inline(always)]
 pub(crate) fn conservative_from_potential(sa: f64, pt: f64) -> f64 {

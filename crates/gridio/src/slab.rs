@@ -74,8 +74,8 @@ impl Run {
         self.inputs.iter().filter(|i| i.role.per_cell())
     }
 
-    /// The file-reading half of [`Run::read_slab`]: every value the slab needs, masked and
-    /// unpacked but not converted. Reading is serialised by libnetcdf; converting
+    /// The file-reading half of [`Run::read_slab`]: every value the slab needs, as stored
+    /// (widened, masked, unpacked and converted by [`Run::convert_slab`]). Reading is serialised by libnetcdf; converting
     /// ([`Run::convert_slab`]) is pure computation, so a pipeline can convert one slab on
     /// its worker threads while its reader thread reads the next.
     pub fn read_raw_slab(&self, step: usize, rows: Range<usize>) -> Result<RawSlab> {
@@ -131,7 +131,8 @@ impl Run {
         })
     }
 
-    /// The converting half of [`Run::read_slab`]: units, TEOS-10 and EOS-80 conversions,
+    /// The converting half of [`Run::read_slab`]: widening and masking the stored values,
+    /// then units, TEOS-10 and EOS-80 conversions,
     /// in parallel on the current rayon pool. Never fails: what cannot be converted is NaN.
     /// `raw` must come from this run's [`Run::read_raw_slab`].
     pub fn convert_slab(&self, raw: RawSlab) -> SlabInputs {
